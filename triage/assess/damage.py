@@ -1,0 +1,161 @@
+"""Member damage class, reduction factor eta, and the residual seismic capacity ratio R.
+
+JBDPA (2001) Guideline for Post-earthquake Damage Evaluation of RC Buildings, as described by
+Nakano et al. (2004) and Maeda et al. (2017); from memory. Crack classes: under 0.2 mm I,
+0.2-1.0 mm II, over 1.0-2.0 mm III, over 2.0 mm IV; class V from signs only.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from triage.model import MemberGroup, Storey, Survey
+from triage.standards import CLASSES, Assumptions, Standards
+
+from .stats import norm_cdf
+
+# Class indices: 0 undamaged, 1..5 classes I..V.
+UNDAMAGED = 0
+# Probabilities under this are treated as impossible when deciding what is uncertain.
+EPS = 1e-9
+
+
+def class_name(i: int) -> str | None:
+    """'I'..'V', or None for undamaged."""
+    return None if i == UNDAMAGED else CLASSES[i - 1]
+
+
+def class_index(name: str | None) -> int:
+    """The index of a class name (None: undamaged)."""
+    return UNDAMAGED if name is None else CLASSES.index(name) + 1  # type: ignore[arg-type]
+
+
+def crack_bounds(std: Standards) -> tuple[float, float, float]:
+    """The residual crack widths (mm) above which classes II, III and IV begin."""
+    c = std.capacity.classes
+    b2, b3, b4 = c["II"].crack_above_mm, c["III"].crack_above_mm, c["IV"].crack_above_mm
+    assert b2 is not None and b3 is not None and b4 is not None
+    return b2, b3, b4
+
+
+def crack_class(crack_mm: float, std: Standards) -> int:
+    """The class a residual crack width implies (1..4); 0 for no crack."""
+    if not crack_mm:
+        return UNDAMAGED
+    b2, b3, b4 = crack_bounds(std)
+    if crack_mm < b2:
+        return 1
+    if crack_mm <= b3:
+        return 2
+    if crack_mm <= b4:
+        return 3
+    return 4
+
+
+def sign_class(m: MemberGroup, std: Standards) -> int:
+    """The worst class the group's signs imply (0 when none)."""
+    return max((class_index(std.signs[s].damage_class) for s in m.signs), default=UNDAMAGED)
+
+
+@dataclass(frozen=True)
+class MemberClass:
+    """A member group's point class, how it was set, and its class distribution."""
+
+    point: int
+    class_from: str | None
+    probs: np.ndarray  # shape (6,), P(class index k) from the crack's uncertainty
+    crack_sd: float | None
+    sd_defaulted: bool
+
+    @property
+    def uncertain(self) -> bool:
+        """More than one class is possible under the crack's uncertainty."""
+        return int(np.count_nonzero(self.probs > EPS)) > 1
+
+
+def member_class(m: MemberGroup, std: Standards, a: Assumptions) -> MemberClass:
+    """The class of a group: the override, else the worse of crack class and sign class."""
+    probs = np.zeros(len(CLASSES) + 1)
+    if m.damage_class is not None:
+        k = class_index(m.damage_class)
+        probs[k] = 1.0
+        return MemberClass(k, "override", probs, None, False)
+    s = sign_class(m, std)
+    if not m.crack_mm:
+        probs[s] = 1.0
+        return MemberClass(s, "signs" if s else None, probs, None, False)
+    c = crack_class(m.crack_mm, std)
+    point = max(c, s)
+    sd = m.crack_sd_mm if m.crack_sd_mm is not None else a.sd_crack_mm
+    # The crack was seen, so its class is at least I whatever the draw: I..IV by the bounds.
+    b2, b3, b4 = crack_bounds(std)
+    cdf = norm_cdf((np.array([b2, b3, b4]) - m.crack_mm) / sd)
+    crack_p = np.array([cdf[0], cdf[1] - cdf[0], cdf[2] - cdf[1], 1.0 - cdf[2]])
+    for i, p in enumerate(crack_p, start=1):
+        probs[max(i, s)] += p
+    return MemberClass(point, "crack" if c >= s else "signs", probs, sd, m.crack_sd_mm is None)
+
+
+def eta_table(m: MemberGroup, std: Standards) -> np.ndarray | None:
+    """eta for class index 0..5 of a column or wall; None for kinds R does not count."""
+    if m.kind == "column":
+        col = "eta_ductile_column" if m.ductility == "ductile" else "eta_brittle_column"
+    elif m.kind == "wall":
+        col = "eta_wall"
+    else:
+        return None
+    rows = std.capacity.classes
+    return np.array([1.0] + [getattr(rows[c], col) for c in CLASSES])
+
+
+def counts_in(m: MemberGroup, d: str) -> bool:
+    """Whether a column or wall counts toward R in direction `d`."""
+    return m.kind == "column" or (m.kind == "wall" and (m.dir is None or m.dir == d))
+
+
+def rc_dirs(survey: Survey, std: Standards) -> list[str]:
+    """The directions whose structural system the JBDPA method covers (reinforced concrete)."""
+    return [d for d in ("x", "y")
+            if std.systems[getattr(survey.building.system, d)].residual_capacity]
+
+
+@dataclass(frozen=True)
+class CapacityTerms:
+    """R of a storey in one direction as sum(eta[class_g] * w_g) / sum(w_g) over its groups."""
+
+    groups: tuple[int, ...]  # member group indices counted
+    weights: np.ndarray  # count * weight per counted group
+    etas: np.ndarray  # shape (n, 6)
+
+    @property
+    def total(self) -> float:
+        """The summed weight of the counted groups."""
+        return float(self.weights.sum())
+
+
+def capacity_terms(storey: Storey, d: str, std: Standards) -> CapacityTerms | None:
+    """The groups counted toward R in direction `d`, or None when none count."""
+    idx, w, e = [], [], []
+    for gi, m in enumerate(storey.members):
+        table = eta_table(m, std)
+        if table is not None and counts_in(m, d):
+            idx.append(gi)
+            w.append(m.count * m.weight)
+            e.append(table)
+    if not idx:
+        return None
+    return CapacityTerms(tuple(idx), np.array(w), np.array(e))
+
+
+def grade_of(r: float, std: Standards) -> str:
+    """JBDPA damage grade of a residual capacity ratio R (fraction): slight to severe."""
+    g = std.capacity.grades
+    pct = r * 100.0
+    # Rounding guard: R is a ratio of sums and may land a hair under a bound it meets exactly.
+    pct = round(pct, 9)
+    for name in ("slight", "light", "moderate"):
+        if pct >= g[name]:
+            return name
+    return "severe"

@@ -1,0 +1,188 @@
+"""The assessment: `triage-assessment/1` as pydantic models.
+
+Screens, JSON and the PDF are all drawn from one `Assessment` object. Floats are rounded to
+6 significant digits by the engine, so the same survey gives the same JSON to the byte.
+"""
+
+from __future__ import annotations
+
+import json
+from typing import Any, Literal
+
+from pydantic import BaseModel, ConfigDict, Field
+
+from triage.standards import DamageClass, Grade, Level
+
+FORMAT = "triage-assessment/1"
+
+Tier = Literal["occupy", "hold", "evacuate"]
+TIERS: tuple[Tier, ...] = ("occupy", "hold", "evacuate")
+Basis = Literal["drift", "capacity", "damage", "hazard", "no-data"]
+Dir = Literal["x", "y"]
+
+# Our mark for each tier, always written beside the word (DESIGN.md: presentation is ours).
+TIER_MARK: dict[str, str] = {"occupy": "○", "hold": "◐", "evacuate": "●"}
+
+CAUTION = ("Indicative only, not a safety certificate: the licensed engineer of record and the "
+           "local building authority decide, under local codes.")
+PROBABILITY_LABEL = "from measurement uncertainty only"
+
+
+def tier_words(tier: str) -> str:
+    """The tier with our mark, e.g. '◐ hold'."""
+    return f"{TIER_MARK.get(tier, '?')} {tier}"
+
+
+class _Out(BaseModel):
+    model_config = ConfigDict(frozen=True, extra="forbid")
+
+
+class PerDir(_Out):
+    """A value per principal direction; null where there is none."""
+
+    x: float | None = None
+    y: float | None = None
+
+    def get(self, d: str) -> float | None:
+        """The value of direction `d`."""
+        return self.x if d == "x" else self.y
+
+
+class LevelPerDir(_Out):
+    """A performance level per direction; null where unmeasured."""
+
+    x: Level | None = None
+    y: Level | None = None
+
+    def get(self, d: str) -> Level | None:
+        """The level of direction `d`."""
+        return self.x if d == "x" else self.y
+
+
+class Figures(_Out):
+    """The residual drift ratios that bound IO, LS and CP for one direction's system."""
+
+    system: str
+    system_name: str
+    IO: float
+    LS: float
+    CP: float
+    io_negligible: bool = Field(description="IO is FEMA 356's 'negligible', given our number")
+
+
+class Governing(_Out):
+    """What sets the tier."""
+
+    storey: str | None
+    dir: Dir | None
+    basis: Basis
+
+
+class MeasureNext(_Out):
+    """Where one more reading helps most."""
+
+    storey: str
+    dir: Dir
+    why: str
+    where: str | None = None
+
+
+class MemberResult(_Out):
+    """A member group's damage class and reduction factor."""
+
+    index: int
+    ref: str | None
+    kind: str
+    count: int
+    damage_class: DamageClass | None = Field(description="null: undamaged")
+    eta: float | None = Field(description="JBDPA eta; null where R does not apply")
+    class_from: Literal["crack", "signs", "override"] | None
+
+
+class StoreyResult(_Out):
+    """One storey's drift, levels, residual capacity and members."""
+
+    label: str
+    height_m: float
+    below_grade: bool
+    access: str
+    drift_ratio: PerDir = Field(description="largest absolute reading per direction")
+    drift_mean: PerDir = Field(description="mean of absolute readings per direction")
+    drift_sd: PerDir = Field(description="standard uncertainty of the governing reading")
+    readings: dict[str, int] = Field(description="number of readings per direction")
+    performance_level: LevelPerDir = Field(description="level by drift, per direction")
+    residual_capacity: float | None
+    residual_capacity_by_dir: PerDir
+    damage_grade: Grade | None
+    damage_floor: Level | None = Field(description="least level set by member damage")
+    level: Level | None = Field(description="the storey's worst level over directions and bases")
+    members: tuple[MemberResult, ...]
+
+
+class HazardResult(_Out):
+    """A hazard and what it does."""
+
+    index: int
+    kind: str
+    where: str | None
+    storey: str | None
+    effect: str
+    tier: Tier
+    keep_out_m: float | None = Field(description="width of the zone kept clear, m")
+
+
+class RepairResult(_Out):
+    """A named repairability alternative applied to the largest storey drift."""
+
+    key: str
+    name: str
+    source: str
+    probability: float | None
+
+
+class Engine(_Out):
+    """Which engine and which assumption values made this assessment."""
+
+    version: str
+    seed: int
+    assumptions: dict[str, Any]
+
+
+class Assessment(_Out):
+    """The assessment of one survey: tier, level, reasons, uncertainty, per storey detail."""
+
+    format: Literal["triage-assessment/1"] = FORMAT
+    survey: str
+    building: str
+    tier: Tier
+    performance_level: Level | None
+    governing: Governing
+    provisional: bool
+    borderline: bool
+    tier_probability: dict[Tier, float]
+    measure_next: MeasureNext | None
+    reasons: tuple[str, ...]
+    storeys: tuple[StoreyResult, ...]
+    hazards: tuple[HazardResult, ...]
+    repairability: tuple[RepairResult, ...]
+    defaulted: tuple[str, ...]
+    notes: tuple[str, ...]
+    drift_figures: dict[Dir, Figures]
+    engine: Engine
+    sources: tuple[str, ...]
+
+    def to_json(self) -> str:
+        """The `triage-assessment/1` JSON text (sorted keys off: the schema's own order)."""
+        return json.dumps(self.model_dump(mode="json"), ensure_ascii=False, indent=2) + "\n"
+
+    def storey(self, label: str) -> StoreyResult:
+        """The result of the storey with this label."""
+        for s in self.storeys:
+            if s.label == label:
+                return s
+        raise KeyError(label)
+
+
+def parse_assessment(data: dict[str, Any]) -> Assessment:
+    """Read back `triage-assessment/1` JSON data (for reports and stored results)."""
+    return Assessment.model_validate(data)

@@ -1,0 +1,75 @@
+"""The `triage` command: parses the command line, then calls the layers below.
+
+Each command lives in its own module of this package with `add_parser(subparsers)` and
+`run(args) -> int`; heavy libraries are imported inside `run`, so start-up stays quick.
+Every refusal is one line on standard error naming the file or field and the rule, with the
+exit status of DESIGN.md; never a traceback.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+from collections.abc import Sequence
+
+from .errors import UserError
+
+# Command modules, in the order `triage --help` lists them.
+MODULES = ("assess_cmd", "store_cmd", "report_cmd", "area_cmd", "form_cmd", "ui_cmd")
+
+
+class _Parser(argparse.ArgumentParser):
+    """An argument parser whose complaints are one line and exit status 2."""
+
+    def error(self, message: str) -> None:  # type: ignore[override]
+        sys.stderr.write(f"{self.prog}: {message} (see '{self.prog} --help')\n")
+        raise SystemExit(2)
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """The full command-line parser."""
+    parser = _Parser(prog="triage", description=(
+        "Post-earthquake building inspection: residual drift and damage, storey by storey, to "
+        "an indicative occupancy tier. Indicative only: the licensed engineer of record and "
+        "the local building authority decide."))
+    parser.add_argument("--db", metavar="PATH", help="the survey database (default: under the "
+                        "user's data folder)")
+    from triage import __version__
+    parser.add_argument("--version", action="version", version=f"triage {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    for name in MODULES:
+        importlib.import_module(f"triage.cli.{name}").add_parser(sub)
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the command; return its exit status (DESIGN.md)."""
+    parser = build_parser()
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:
+        return int(exc.code or 0)
+    if args.command is None:
+        args.command = "ui"
+        from . import ui_cmd
+        args.func = ui_cmd.run_default
+    try:
+        return int(args.func(args) or 0)
+    except UserError as err:
+        sys.stderr.write(f"triage {args.command}: {err}\n")
+        return err.code
+    except KeyboardInterrupt:
+        sys.stderr.write(f"triage {args.command}: interrupted\n")
+        return 1
+    except BrokenPipeError:
+        return 0
+    except Exception as err:  # a bug of ours: still one line, never a traceback
+        sys.stderr.write(f"triage {args.command}: internal error: {type(err).__name__}: {err} "
+                         "(nothing was changed; please report it)\n")
+        return 1
+
+
+def entry() -> None:
+    """Console-script entry point."""
+    raise SystemExit(main())

@@ -1,0 +1,24 @@
+"""Commands: demo (being built)."""
+
+from __future__ import annotations
+
+import argparse
+
+from .errors import UserError
+
+
+def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+    """Register the commands of this module."""
+    p = sub.add_parser("demo", help="open the screens on a scratch database loaded with the demo surveys")
+    p.add_argument("rest", nargs=argparse.REMAINDER)
+    p.set_defaults(func=run)
+
+
+def run(args: argparse.Namespace) -> int:
+    """Not built yet."""
+    raise UserError(f"{args.command}: not available yet")
+
+
+def run_default(args: argparse.Namespace) -> int:
+    """Open the screens (not built yet)."""
+    raise UserError("the screens are not available yet")

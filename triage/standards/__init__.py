@@ -1,0 +1,260 @@
+"""Published tables and our named assumptions, as data.
+
+Each table is a TOML file beside this module; the file and the model loaded from it carry the
+document, edition, table number and how sure we are of the figures (checked, secondary, memory).
+Nothing here computes: `triage.assess` reads these objects.
+"""
+
+from __future__ import annotations
+
+import tomllib
+from functools import cache
+from pathlib import Path
+from typing import Any, Literal
+
+from pydantic import BaseModel, ConfigDict, Field
+
+HERE = Path(__file__).resolve().parent
+
+Status = Literal["checked", "secondary", "memory"]
+Level = Literal["IO", "LS", "CP", "beyond-CP"]
+DamageClass = Literal["I", "II", "III", "IV", "V"]
+Grade = Literal["slight", "light", "moderate", "severe", "collapse"]
+
+LEVELS: tuple[Level, ...] = ("IO", "LS", "CP", "beyond-CP")
+CLASSES: tuple[DamageClass, ...] = ("I", "II", "III", "IV", "V")
+GRADES: tuple[Grade, ...] = ("slight", "light", "moderate", "severe", "collapse")
+DIRS: tuple[Literal["x", "y"], ...] = ("x", "y")
+
+
+class _Frozen(BaseModel):
+    model_config = ConfigDict(frozen=True, extra="forbid")
+
+
+class Source(_Frozen):
+    """Where a table's figures come from."""
+
+    document: str
+    edition: str
+    table: str
+    status: Status
+    status_note: str = ""
+
+    def cite(self) -> str:
+        """A short citation: document, edition, table; 'from memory' where it is."""
+        text = f"{self.document} ({self.edition}) {self.table}"
+        return text + (", from memory" if self.status == "memory" else "")
+
+
+class DriftRow(_Frozen):
+    """One structural system's row of FEMA 356 Table C1-3 (drift ratios in percent)."""
+
+    name: str
+    io_transient_pct: float
+    io_permanent_pct: float | Literal["negligible"]
+    ls_transient_pct: float
+    ls_permanent_pct: float
+    cp_pct: float
+
+
+class DriftTable(_Frozen):
+    """FEMA 356 Table C1-3: structural performance levels by residual drift."""
+
+    source: Source
+    title: str
+    systems: dict[str, DriftRow]
+
+
+class DamageClassRow(_Frozen):
+    """One JBDPA damage class: its signs, crack bound and reduction factors eta."""
+
+    signs: str
+    crack_above_mm: float | None = None
+    eta_ductile_column: float
+    eta_brittle_column: float
+    eta_wall: float
+
+
+class CapacityTable(_Frozen):
+    """JBDPA damage classes, eta factors and damage grades by R."""
+
+    source: Source
+    classes: dict[DamageClass, DamageClassRow]
+    grades: dict[str, float] = Field(description="lower bound of R in percent, per grade")
+
+
+class DamageStateRow(_Frozen):
+    """A FEMA P-58 residual drift damage state."""
+
+    residual_pct: float | None = None
+    meaning: str
+
+
+class DamageStateTable(_Frozen):
+    """FEMA P-58-1 Appendix C Table C-1."""
+
+    source: Source
+    damage_states: dict[str, DamageStateRow]
+
+
+class Repairability(_Frozen):
+    """A named repairability alternative: a lognormal fragility or a plain threshold."""
+
+    key: str
+    name: str
+    kind: Literal["lognormal", "threshold"]
+    median_pct: float | None = None
+    beta: float | None = None
+    threshold_pct: float | None = None
+    source: Source
+    label: str = Field(description="the short source line shown beside the probability")
+
+
+class Tolerance(_Frozen):
+    """An as-built plumbness tolerance."""
+
+    source: Source
+    rule: str
+    drift_pct: float
+
+
+class System(_Frozen):
+    """A structural system key of DESIGN.md, with our one-line description."""
+
+    key: str
+    material: str
+    description: str
+    residual_capacity: bool
+
+
+class Sign(_Frozen):
+    """A damage sign: the member kinds and systems it applies to and the class it implies."""
+
+    key: str
+    damage_class: DamageClass
+    basis: str
+    kinds: tuple[str, ...]
+    systems: tuple[str, ...]
+    description: str
+
+
+class HazardKind(_Frozen):
+    """A hazard kind and what it does to the result."""
+
+    key: str
+    effect: Literal["beyond-CP", "evacuate", "hold"]
+    group: str
+    description: str
+
+
+class Assumption(_Frozen):
+    """A named assumption of ours, with its default value and why."""
+
+    key: str
+    value: Any
+    status: Literal["ours", "common practice"]
+    why: str
+
+
+class Assumptions(_Frozen):
+    """The values of the named assumptions an assessment runs with (overridable)."""
+
+    negligible_permanent_drift: float = Field(gt=0, lt=0.05)
+    plumbness_band: float = Field(ge=0, lt=0.05)
+    large_drift_warning: float = Field(gt=0, lt=0.25)
+    max_drift_ratio: float = Field(gt=0, le=1)
+    keep_out_factor: float = Field(gt=0, le=5)
+    sd_offset_mm: float = Field(gt=0)
+    sd_tilt_deg: float = Field(gt=0)
+    sd_crack_mm: float = Field(gt=0)
+    grade_to_level: dict[Grade, Level]
+    member_damage_floor: dict[DamageClass, Level]
+    vertical_kinds: tuple[str, ...]
+
+    def with_overrides(self, **changes: Any) -> Assumptions:
+        """A copy with some values replaced, validated like the defaults."""
+        return Assumptions.model_validate({**self.model_dump(), **changes})
+
+
+class Standards(_Frozen):
+    """Every table the assessment uses, loaded once."""
+
+    drift: DriftTable
+    capacity: CapacityTable
+    damage_states: DamageStateTable
+    repairability: tuple[Repairability, ...]
+    plumbness: tuple[Tolerance, ...]
+    systems: dict[str, System]
+    signs: dict[str, Sign]
+    sign_rule: str
+    hazards: dict[str, HazardKind]
+    assumption_notes: dict[str, Assumption]
+    assumptions: Assumptions
+
+    def sources(self) -> list[str]:
+        """Every published table the method rests on, cited."""
+        out = [self.drift.source.cite(), self.capacity.source.cite(),
+               self.damage_states.source.cite()]
+        out += [r.source.cite() for r in self.repairability]
+        out += [t.source.cite() for t in self.plumbness]
+        return out
+
+
+def _read(name: str) -> dict[str, Any]:
+    with open(HERE / name, "rb") as f:
+        return tomllib.load(f)
+
+
+def _source(d: dict[str, Any]) -> Source:
+    return Source(**{k: d[k] for k in ("document", "edition", "table", "status")},
+                  status_note=d.get("status_note", ""))
+
+
+@cache
+def load() -> Standards:
+    """Read every table file once; a malformed file raises a pydantic ValidationError."""
+    drift = _read("fema356_c1_3.toml")
+    cap = _read("jbdpa_rc.toml")
+    ds = _read("fema_p58_residual.toml")
+    rep = _read("repairability.toml")
+    plumb = _read("plumbness.toml")
+    systems = _read("systems.toml")["systems"]
+    signs = _read("signs.toml")
+    hazards = _read("hazards.toml")["hazards"]
+    assumptions = _read("assumptions.toml")
+    return Standards(
+        drift=DriftTable(source=_source(drift), title=drift["title"], systems=drift["systems"]),
+        capacity=CapacityTable(source=_source(cap), classes=cap["classes"], grades=cap["grades"]),
+        damage_states=DamageStateTable(source=_source(ds), damage_states=ds["damage_states"]),
+        repairability=tuple(
+            Repairability(
+                key=a["key"], name=a["name"], kind=a["kind"], median_pct=a.get("median_pct"),
+                beta=a.get("beta"), threshold_pct=a.get("threshold_pct"), source=_source(a),
+                label=a["source"])
+            for a in rep["alternatives"]),
+        plumbness=tuple(Tolerance(source=_source(t), rule=t["rule"], drift_pct=t["drift_pct"])
+                        for t in plumb["tolerances"]),
+        systems={k: System(key=k, **v) for k, v in systems.items()},
+        signs={k: Sign(key=k, damage_class=v["class"], basis=v["basis"], kinds=tuple(v["kinds"]),
+                       systems=tuple(v["systems"]), description=v["description"])
+               for k, v in signs["signs"].items()},
+        sign_rule=signs["rule_of_ours"],
+        hazards={k: HazardKind(key=k, **v) for k, v in hazards.items()},
+        assumption_notes={k: Assumption(key=k, **v) for k, v in assumptions.items()},
+        assumptions=Assumptions(**{k: v["value"] for k, v in assumptions.items()}),
+    )
+
+
+def system_keys() -> tuple[str, ...]:
+    """The structural system keys, in table order."""
+    return tuple(load().systems)
+
+
+def sign_keys() -> tuple[str, ...]:
+    """The damage sign keys of the one sign table."""
+    return tuple(load().signs)
+
+
+def hazard_keys() -> tuple[str, ...]:
+    """The hazard kinds."""
+    return tuple(load().hazards)

@@ -1,0 +1,13 @@
+"""Shared fixtures: a fixed clock and hypothesis settings. Subfolders add their own conftest."""
+
+from __future__ import annotations
+
+import os
+
+from hypothesis import HealthCheck, settings
+
+settings.register_profile("ci", max_examples=60, deadline=None,
+                          suppress_health_check=[HealthCheck.too_slow])
+settings.register_profile("dev", max_examples=30, deadline=None,
+                          suppress_health_check=[HealthCheck.too_slow])
+settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE", "ci"))

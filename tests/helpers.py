@@ -1,0 +1,76 @@
+"""Builders of survey data for tests: small, explicit, invented (no real place or person)."""
+
+from __future__ import annotations
+
+import copy
+from typing import Any
+
+from triage.model import Survey, parse_survey
+
+
+def reading(d: str, offset_mm: float, gauge_mm: float = 2000.0, sd_mm: float | None = 1.0,
+            **extra: Any) -> dict[str, Any]:
+    """An offset reading over a gauge."""
+    r: dict[str, Any] = {"dir": d, "offset_mm": offset_mm, "gauge_mm": gauge_mm}
+    if sd_mm is not None:
+        r["sd_mm"] = sd_mm
+    r.update(extra)
+    return r
+
+
+def tilt(d: str, tilt_deg: float, sd_deg: float | None = 0.05, **extra: Any) -> dict[str, Any]:
+    """A tilt reading."""
+    r: dict[str, Any] = {"dir": d, "tilt_deg": tilt_deg}
+    if sd_deg is not None:
+        r["sd_deg"] = sd_deg
+    r.update(extra)
+    return r
+
+
+def storey(label: str, readings: list[dict[str, Any]] | None = None,
+           members: list[dict[str, Any]] | None = None, height_m: float = 3.2,
+           **extra: Any) -> dict[str, Any]:
+    """A storey; by default with one sound group of 12 columns."""
+    s: dict[str, Any] = {"label": label, "height_m": height_m,
+                         "readings": readings or [],
+                         "members": [{"kind": "column", "count": 12}] if members is None
+                         else members}
+    s.update(extra)
+    return s
+
+
+def survey_dict(storeys: list[dict[str, Any]], sx: str = "rc_frame", sy: str = "rc_frame",
+                hazards: list[dict[str, Any]] | None = None, name: str = "Test House",
+                **extra: Any) -> dict[str, Any]:
+    """A whole survey of the invented town of Kōwhai Bay."""
+    d: dict[str, Any] = {
+        "format": "triage-survey/1",
+        "building": {"name": name, "address": "1 Test Lane, Kōwhai Bay", "use": "test",
+                     "system": {"x": sx, "y": sy}},
+        "inspection": {"inspector": {"name": "Tess Tester", "id": "T-1"},
+                       "at": "2026-11-29T09:00:00+13:00"},
+        "storeys": storeys,
+        "hazards": hazards or [],
+    }
+    d.update(extra)
+    return d
+
+
+def make(storeys: list[dict[str, Any]], **kw: Any) -> Survey:
+    """A validated survey."""
+    return parse_survey(survey_dict(storeys, **kw))
+
+
+def two_storey_frame() -> dict[str, Any]:
+    """The example of DESIGN.md: storey 2 y at 0.60% in a concrete frame, one cracked column."""
+    return survey_dict([
+        storey("1", [reading("x", 1.0), reading("y", 1.6)], [{"kind": "column", "count": 20}]),
+        storey("2", [reading("x", 2.0), reading("y", 12.0)],
+               [{"kind": "column", "count": 19},
+                {"kind": "column", "count": 1, "crack_mm": 1.4, "ref": "C3"}]),
+    ], sx="rc_wall", sy="rc_frame")
+
+
+def clone(d: dict[str, Any]) -> dict[str, Any]:
+    """A deep copy to mutate."""
+    return copy.deepcopy(d)

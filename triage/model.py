@@ -38,25 +38,31 @@ DamageClass = standards.DamageClass
 Access = Literal["full", "partial", "none"]
 
 
-def _one_of(keys_of: Any, what: str) -> Any:
-    """A string validator against a key table of `triage.standards`, named in the schema."""
-
-    def check(value: str) -> str:
-        keys = keys_of()
-        if value not in keys:
-            raise ValueError(f"{value!r} is not a known {what} (known: {', '.join(keys)})")
-        return value
-
-    return Annotated[
-        str,
-        AfterValidator(check),
-        WithJsonSchema({"type": "string", "enum": list(keys_of())}),
-    ]
+def _known(keys: tuple[str, ...], what: str, value: str) -> str:
+    if value not in keys:
+        raise ValueError(f"{value!r} is not a known {what} (known: {', '.join(keys)})")
+    return value
 
 
-SystemKey = _one_of(standards.system_keys, "structural system")
-SignKey = _one_of(standards.sign_keys, "damage sign")
-HazardKey = _one_of(standards.hazard_keys, "hazard kind")
+def _system(value: str) -> str:
+    return _known(standards.system_keys(), "structural system", value)
+
+
+def _sign(value: str) -> str:
+    return _known(standards.sign_keys(), "damage sign", value)
+
+
+def _hazard(value: str) -> str:
+    return _known(standards.hazard_keys(), "hazard kind", value)
+
+
+# Keys checked against the tables of triage.standards (one table each; never redefined here).
+SystemKey = Annotated[str, AfterValidator(_system),
+                      WithJsonSchema({"type": "string", "enum": list(standards.system_keys())})]
+SignKey = Annotated[str, AfterValidator(_sign),
+                    WithJsonSchema({"type": "string", "enum": list(standards.sign_keys())})]
+HazardKey = Annotated[str, AfterValidator(_hazard),
+                      WithJsonSchema({"type": "string", "enum": list(standards.hazard_keys())})]
 
 
 class _Model(BaseModel):
@@ -267,7 +273,8 @@ class Survey(_Model):
             object.__setattr__(self, "building", b)
         if self.id is None:
             body = self.model_dump(mode="json", exclude={"id"})
-            object.__setattr__(self, "id", uuid.uuid5(ID_NAMESPACE, "survey:" + canonical_json(body)))
+            derived = uuid.uuid5(ID_NAMESPACE, "survey:" + canonical_json(body))
+            object.__setattr__(self, "id", derived)
         if self.inspection.previous is not None and self.inspection.previous == self.id:
             raise ValueError("inspection.previous: a survey cannot follow itself")
         return self

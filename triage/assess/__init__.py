@@ -1,8 +1,8 @@
 """The computing core: survey in, assessment out. Pure: no I/O, no clock, no UI.
 
-    from triage.assess import assess
-    result = assess(survey)          # an Assessment
-    text = result.to_json()          # triage-assessment/1
+from triage.assess import assess
+result = assess(survey)          # an Assessment
+text = result.to_json()          # triage-assessment/1
 """
 
 from .engine import assess, seed_of

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from triage.model import MemberGroup, Storey, Survey
-from triage.standards import CLASSES, Assumptions, Standards
+from triage.standards import CLASSES, Assumptions, Grade, Standards
 
 from .stats import norm_cdf
 
@@ -29,7 +29,7 @@ def class_name(i: int) -> str | None:
 
 def class_index(name: str | None) -> int:
     """The index of a class name (None: undamaged)."""
-    return UNDAMAGED if name is None else CLASSES.index(name) + 1  # type: ignore[arg-type]
+    return UNDAMAGED if name is None else CLASSES.index(name) + 1
 
 
 def crack_bounds(std: Standards) -> tuple[float, float, float]:
@@ -99,7 +99,7 @@ def member_class(m: MemberGroup, std: Standards, a: Assumptions) -> MemberClass:
 
 
 def eta_table(m: MemberGroup, std: Standards) -> np.ndarray | None:
-    """eta for class index 0..5 of a column or wall; None for kinds R does not count."""
+    """Eta for class index 0..5 of a column or wall; None for kinds R does not count."""
     if m.kind == "column":
         col = "eta_ductile_column" if m.ductility == "ductile" else "eta_brittle_column"
     elif m.kind == "wall":
@@ -149,13 +149,16 @@ def capacity_terms(storey: Storey, d: str, std: Standards) -> CapacityTerms | No
     return CapacityTerms(tuple(idx), np.array(w), np.array(e))
 
 
-def grade_of(r: float, std: Standards) -> str:
+def grade_of(r: float, std: Standards) -> Grade:
     """JBDPA damage grade of a residual capacity ratio R (fraction): slight to severe."""
     g = std.capacity.grades
     pct = r * 100.0
     # Rounding guard: R is a ratio of sums and may land a hair under a bound it meets exactly.
     pct = round(pct, 9)
-    for name in ("slight", "light", "moderate"):
-        if pct >= g[name]:
-            return name
+    if pct >= g["slight"]:
+        return "slight"
+    if pct >= g["light"]:
+        return "light"
+    if pct >= g["moderate"]:
+        return "moderate"
     return "severe"

@@ -13,7 +13,7 @@ import numpy as np
 
 from triage import __version__
 from triage.model import Survey, survey_warnings
-from triage.standards import LEVELS, Assumptions, Standards, load
+from triage.standards import LEVELS, Assumptions, Grade, Standards, load
 
 from . import damage as dmg
 from .drift import ReadingValue, figures, level_index, pct, storey_readings
@@ -97,7 +97,7 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
     rc = dmg.rc_dirs(survey, std)
     floor_map = {dmg.class_index(c): LEVELS.index(lv) for c, lv in a.member_damage_floor.items()}
     floor_of_class = np.array([floor_map.get(k, 0) for k in range(6)])
-    grade_names = ("slight", "light", "moderate", "severe")
+    grade_names: tuple[Grade, ...] = ("slight", "light", "moderate", "severe")
     level_of_grade = np.array([LEVELS.index(a.grade_to_level[g]) for g in grade_names])
     gb = std.capacity.grades
     grade_bounds = np.array([gb["slight"], gb["light"], gb["moderate"]]) / 100.0
@@ -173,9 +173,9 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
             counted = table is not None and any(dmg.counts_in(m, d) for d in terms)
             w.members.append(MemberResult(
                 index=gi, ref=m.ref, kind=m.kind, count=m.count,
-                damage_class=dmg.class_name(c.point),  # type: ignore[arg-type]
+                damage_class=dmg.class_name(c.point),
                 eta=sig6(float(table[c.point])) if counted and table is not None else None,
-                class_from=c.class_from))  # type: ignore[arg-type]
+                class_from=c.class_from))
         vertical = [m.kind in a.vertical_kinds for m in st.members]
         rs = [r for r in w.r_by_dir.values() if r is not None]
         if rs:
@@ -184,7 +184,7 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
             r_worst = w.r_by_dir[worst_dir]
             assert r_worst is not None
             w.grade = dmg.grade_of(r_worst, std)
-            cap_lv = LEVELS.index(a.grade_to_level[w.grade])  # type: ignore[index]
+            cap_lv = LEVELS.index(a.grade_to_level[w.grade])
             walls1 = any(m.kind == "wall" and m.weight == 1.0 for m in st.members)
             wall_note = ("; walls counted at weight 1 each, as a column (a wall is usually "
                          "worth several)") if walls1 else ""
@@ -258,7 +258,7 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
             w.level = 3
     nothing = not values and not any(st.members for st in survey.storeys)
     struct_level = None if nothing else max((c.level for c in candidates), default=0)
-    level = struct_level
+    level: int | None = struct_level
     if collapse:
         level = 3
     struct_tier = 1 if struct_level is None else LEVEL_TIER[struct_level]
@@ -276,11 +276,12 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
                 "building has been surveyed"]
         first = -1
     else:
-        top = min((c for c in candidates if c.level == struct_level),
+        gov = min((c for c in candidates if c.level == struct_level),
                   key=lambda c: (c.storey, BASIS_ORDER[c.basis]))
-        governing = Governing(storey=survey.storeys[top.storey].label,
-                              dir=top.dir, basis=top.basis.split("-")[0])  # type: ignore[arg-type]
-        lead = [top.reason]
+        governing = Governing.model_validate(
+            {"storey": survey.storeys[gov.storey].label, "dir": gov.dir,
+             "basis": gov.basis.split("-")[0]})
+        lead = [gov.reason]
         first = -1
     others = sorted((c for c in candidates if c.level > 0 and c.reason not in lead),
                     key=lambda c: (-c.level, c.storey, BASIS_ORDER[c.basis]))
@@ -313,7 +314,7 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
     hold = sig6(max(p_le_hold - p_occ, 0.0))
     evac = sig6(max(1.0 - occ - hold, 0.0))
     probs = {"occupy": occ, "hold": hold, "evacuate": evac}
-    borderline = probs[TIERS[tier]] < 0.5  # type: ignore[index]
+    borderline = probs[TIERS[tier]] < 0.5
     if any_sampled:
         notes.append("tier probabilities: members near a class bound were sampled "
                      f"({40_000} draws, seed {seed})")
@@ -330,13 +331,13 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
             drift_sd=PerDir(**{d: sig6_opt(w.sd[d]) for d in ("x", "y")}),
             readings=dict(w.nread),
             performance_level=LevelPerDir(**{
-                d: (LEVELS[lv] if (lv := w.drift_level[d]) is not None else None)
+                d: (None if w.drift_level[d] is None else LEVELS[w.drift_level[d] or 0])
                 for d in ("x", "y")}),
             residual_capacity=sig6_opt(min((r for r in w.r_by_dir.values() if r is not None),
                                            default=None)),
             residual_capacity_by_dir=PerDir(**{d: sig6_opt(w.r_by_dir.get(d))
                                                for d in ("x", "y")}),
-            damage_grade=w.grade,  # type: ignore[arg-type]
+            damage_grade=w.grade,
             damage_floor=LEVELS[w.floor] if w.floor is not None else None,
             level=LEVELS[w.level] if w.level is not None else None,
             members=tuple(w.members))
@@ -350,10 +351,10 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
         survey=str(survey.survey_id), building=str(survey.building_id),
         tier=TIERS[tier], performance_level=LEVELS[level] if level is not None else None,
         governing=governing, provisional=provisional, borderline=borderline,
-        tier_probability=probs,  # type: ignore[arg-type]
+        tier_probability=probs,
         measure_next=measure_next, reasons=tuple(reasons), storeys=storeys,
         hazards=tuple(hazards), repairability=repairability(largest, std),
-        defaulted=tuple(defaulted), notes=tuple(notes), drift_figures=figs,  # type: ignore[arg-type]
+        defaulted=tuple(defaulted), notes=tuple(notes), drift_figures=figs,
         engine=Engine(version=__version__, seed=seed, assumptions=a.model_dump(mode="json")),
         sources=tuple(std.sources()))
 
@@ -373,7 +374,7 @@ def _measure_next(survey: Survey, work: list[_StoreyWork],
             continue
         for d in ("x", "y"):
             if not w.nread[d]:
-                return MeasureNext(storey=st.label, dir=d,  # type: ignore[arg-type]
+                return MeasureNext(storey=st.label, dir=d,
                                    why=f"no reading yet in {d}; the level of this storey "
                                        "is unknown there")
     best: tuple[float, int, int, int] | None = None
@@ -392,7 +393,7 @@ def _measure_next(survey: Survey, work: list[_StoreyWork],
                     best = key
                     side = "under" if abs(v.ratio) <= t else "over"
                     pick = MeasureNext(
-                        storey=survey.storeys[si].label, dir=d,  # type: ignore[arg-type]
+                        storey=survey.storeys[si].label, dir=d,
                         why=f"{pct(abs(v.ratio))} is {z:.1f} sd {side} the {name} value "
                             f"{pct(t)}", where=v.where)
     return pick

@@ -151,7 +151,7 @@ class Engine(_Out):
 class Assessment(_Out):
     """The assessment of one survey: tier, level, reasons, uncertainty, per storey detail."""
 
-    format: Literal["triage-assessment/1"] = FORMAT
+    format: Literal["triage-assessment/1"] = "triage-assessment/1"
     survey: str
     building: str
     tier: Tier

@@ -8,7 +8,7 @@ import sys
 from .common import read_survey_file
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+def add_parser(sub: argparse._SubParsersAction) -> None:
     """Register `assess` and `schema`."""
     p = sub.add_parser("assess", help="assess a survey file")
     p.add_argument("file", help="a triage-survey/1 JSON file")

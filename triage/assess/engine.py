@@ -201,6 +201,11 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
                 floor, floor_by = f, (gi, c.point)
         if st.members:
             w.floor = floor
+        if floor_by is None and st.members:
+            candidates.append(_Candidate(
+                0, si, "damage", None,
+                f"storey {st.label}: no vertical member group of class IV or V (member-damage "
+                "floor, a rule of ours)"))
         if floor_by is not None:
             m = st.members[floor_by[0]]
             how = classes[floor_by[0]].class_from

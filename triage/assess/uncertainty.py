@@ -37,7 +37,8 @@ def drift_cdfs(values: Sequence[ReadingValue], groups: Sequence[int], n_groups: 
     out = np.ones((n_groups, 4))
     if not values:
         return out
-    mu = np.array([v.ratio for v in values])[:, None]
+    # P(|d| <= t) depends on |mu| only; using |mu| keeps the tail term small (no cancellation).
+    mu = np.abs(np.array([v.ratio for v in values]))[:, None]
     sd = np.array([v.sd for v in values])[:, None]
     t = np.array([[f.IO, f.LS, f.CP] for f in figs])
     p = norm_cdf((t - mu) / sd) - norm_cdf((-t - mu) / sd)

@@ -1,0 +1,20 @@
+"""The walls of DESIGN.md: the computing core loads no UI, PDF or database library."""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+
+import pytest
+
+FORBIDDEN = ("textual", "rich", "reportlab", "sqlite_utils")
+
+
+@pytest.mark.parametrize("module", ["triage.model", "triage.standards", "triage.assess",
+                                    "triage.assess.text"])
+def test_core_module_imports_no_ui_pdf_or_database(module):
+    code = (f"import sys, {module}\n"
+            f"bad = [m for m in {FORBIDDEN!r} if m in sys.modules]\n"
+            "print(','.join(bad))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "", f"{module} loads {out.stdout.strip()}"

@@ -1,0 +1,146 @@
+"""The report: a PDF for the engineer of record, signed when a key is given.
+
+    from triage.report import write_report, read_embedded
+    info = write_report(survey, assessment, Path("out.pdf"), key=None, revision=None)
+    survey_text, assessment_text = read_embedded(Path("out.pdf"))
+
+This package is the only one that imports reportlab; it is imported inside functions, so
+importing `triage.report` itself stays cheap. The report model (`triage.report.model`) is pure.
+"""
+
+from __future__ import annotations
+
+import json
+import logging
+import os
+from dataclasses import dataclass
+from datetime import UTC, datetime
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:
+    from triage.assess import Assessment
+    from triage.model import Survey
+
+    from .keys import SigningKey
+    from .model import Comparison
+
+__all__ = ["ReportInfo", "read_embedded", "read_embedded_files", "write_report"]
+
+
+@dataclass(frozen=True)
+class ReportInfo:
+    """What was written: the path, whether it is signed, and the signer's key fingerprint."""
+
+    path: Path
+    signed: bool
+    fingerprint: str | None
+    pages: int
+    size: int
+
+
+def survey_text(survey: Survey) -> str:
+    """The survey JSON text embedded in a report."""
+    return json.dumps(survey.to_json_dict(), ensure_ascii=False, indent=2) + "\n"
+
+
+def render_report(survey: Survey, assessment: Assessment, *, key: SigningKey | None = None,
+                  revision: int | None = None, comparison: Comparison | None = None,
+                  photo_dir: Path | None = None,
+                  signed_at: datetime | None = None) -> bytes:
+    """The report PDF as bytes (signed when `key` is given); see `write_report`."""
+    from .draw import render
+    from .model import Signer, build_report_model
+    from .pdfparts import ASSESSMENT_FILE, SIGNER_FILE, SURVEY_FILE
+    from .signing import file_digest, fill_slot, find_slot, payload
+
+    if assessment.survey != str(survey.survey_id):
+        raise ValueError(f"the assessment is of survey {assessment.survey}, "
+                         f"not of {survey.survey_id}")
+    signer = Signer(key.name, key.id, key.fingerprint) if key is not None else None
+    model = build_report_model(survey, assessment, revision=revision, signer=signer,
+                               comparison=comparison, photo_dir=photo_dir)
+    stext = survey_text(survey)
+    atext = assessment.to_json()
+    files = [(SURVEY_FILE, stext.encode("utf-8"), "the survey (triage-survey/1)"),
+             (ASSESSMENT_FILE, atext.encode("utf-8"), "the assessment (triage-assessment/1)")]
+    if key is not None:
+        at = (signed_at or datetime.now(UTC)).replace(microsecond=0).isoformat()
+        signer_data = {**key.public.to_json_dict(), "format": "triage-signer/1",
+                       "signed_at": at}
+        files.append((SIGNER_FILE, (json.dumps(signer_data, ensure_ascii=False, indent=2)
+                                    + "\n").encode("utf-8"), "who signed this report"))
+    data = render(model, files, signed=key is not None)
+    if key is not None:
+        start, end = find_slot(data)
+        digest = file_digest(data, start, end)
+        msg = payload(json.loads(stext), json.loads(atext), digest)
+        data = fill_slot(data, key.sign(msg))
+    return data
+
+
+def write_report(survey: Survey, assessment: Assessment, out: Path, *,
+                 key: SigningKey | None = None, revision: int | None = None,
+                 comparison: Comparison | None = None,
+                 photo_dir: Path | None = None) -> ReportInfo:
+    """Write the report PDF to `out` (atomically: a complete file or none).
+
+    `revision` is the store's revision when the survey comes from the database; `comparison`
+    (anything with `.lines()`) adds a "since the previous inspection" section; photo paths are
+    resolved against `photo_dir`, the survey file's folder. Unsigned output is byte-for-byte
+    reproducible for the same input.
+    """
+    data = render_report(survey, assessment, key=key, revision=revision, comparison=comparison,
+                         photo_dir=photo_dir)
+    out = Path(out)
+    tmp = out.with_name(f".{out.name}.part")
+    try:
+        tmp.write_bytes(data)
+        os.replace(tmp, out)
+    except OSError as err:
+        tmp.unlink(missing_ok=True)
+        raise ValueError(f"{out}: cannot be written ({err.strerror})") from None
+    return ReportInfo(path=out, signed=key is not None,
+                      fingerprint=key.fingerprint if key is not None else None,
+                      pages=data.count(b"/Type /Page\n"), size=len(data))
+
+
+def read_embedded_files(pdf: Path | bytes) -> dict[str, bytes]:
+    """Every file embedded in a PDF, by name; ValueError (one line) when it cannot be read."""
+    import io
+
+    from pypdf import PdfReader
+    from pypdf.errors import PyPdfError
+
+    where = "the PDF" if isinstance(pdf, bytes) else str(pdf)
+    logging.getLogger("pypdf").setLevel(logging.CRITICAL)
+    try:
+        reader = PdfReader(io.BytesIO(pdf) if isinstance(pdf, bytes) else pdf)
+        found: dict[str, Any] = dict(reader.attachments)
+    except FileNotFoundError:
+        raise ValueError(f"{where}: no such file") from None
+    except (PyPdfError, OSError, ValueError, KeyError, TypeError, AttributeError,
+            IndexError, AssertionError) as err:
+        raise ValueError(f"{where}: not a readable PDF ({type(err).__name__})") from None
+    out: dict[str, bytes] = {}
+    for name, contents in found.items():
+        if len(contents) != 1:
+            raise ValueError(f"{where}: the embedded file {name!r} appears more than once")
+        out[name] = contents[0]
+    return out
+
+
+def read_embedded(pdf: Path) -> tuple[str, str]:
+    """(survey JSON text, assessment JSON text) carried by a triage report PDF.
+
+    Raises ValueError with one line naming the file when there are none.
+    """
+    from .pdfparts import ASSESSMENT_FILE, SURVEY_FILE
+
+    files = read_embedded_files(pdf)
+    if SURVEY_FILE not in files or ASSESSMENT_FILE not in files:
+        raise ValueError(f"{pdf}: carries no embedded triage survey (not a triage report)")
+    try:
+        return files[SURVEY_FILE].decode("utf-8"), files[ASSESSMENT_FILE].decode("utf-8")
+    except UnicodeDecodeError:
+        raise ValueError(f"{pdf}: the embedded survey is not UTF-8 text") from None

@@ -1,0 +1,345 @@
+"""Lay the report model out as a PDF with reportlab (platypus), in memory.
+
+`render(model, files, signed)` returns the PDF bytes: the caution band, "page n of N" and the
+survey's identification on every page, page one's recommendation, then storeys, drift chart,
+members, hazards, repairability, notes, photos and the method page. Every piece of text goes
+through `_p` / `esc`, so user text such as `<b>`, `&` or `</para>` prints as typed.
+"""
+
+from __future__ import annotations
+
+import io
+from typing import Any
+from xml.sax.saxutils import escape
+
+from reportlab.lib.pagesizes import A4
+from reportlab.lib.units import mm
+from reportlab.pdfgen.canvas import Canvas
+from reportlab.platypus import (
+    BaseDocTemplate,
+    Frame,
+    Image,
+    KeepTogether,
+    PageBreak,
+    PageTemplate,
+    Paragraph,
+    Spacer,
+    Table,
+    TableStyle,
+)
+
+from .chart import DriftChart
+from .fonts import register
+from .model import ReportModel
+from .pdfparts import add_to_document
+from .style import ACCENT, ACCENT_TINT, ACCENT_WEAK, INK, MUTED, styles
+
+PAGE_W, PAGE_H = A4
+MARGIN = 16 * mm
+BAND_H = 30.0
+FOOT_H = 22.0
+CONTENT_W = PAGE_W - 2 * MARGIN
+
+
+def esc(text: str) -> str:
+    """User or table text made safe for reportlab's paragraph markup; newlines kept."""
+    return escape(text).replace("\n", "<br/>")
+
+
+def _p(text: str, style: str = "body", markup: str | None = None) -> Paragraph:
+    """A paragraph of literal text; `markup` (ours, trusted) wraps the escaped text."""
+    body = esc(text)
+    if markup:
+        body = markup.replace("{}", body)
+    return Paragraph(body, styles()[style])
+
+
+def _grid(rows: list[list[Any]], widths: list[float], header: bool = True,
+          zebra: bool = True) -> Table:
+    t = Table(rows, colWidths=widths, repeatRows=1 if header else 0)
+    regular, bold = register()
+    cmds: list[tuple[Any, ...]] = [
+        ("FONTNAME", (0, 0), (-1, -1), regular),
+        ("FONTSIZE", (0, 0), (-1, -1), 7.5),
+        ("LEADING", (0, 0), (-1, -1), 9),
+        ("TEXTCOLOR", (0, 0), (-1, -1), INK),
+        ("VALIGN", (0, 0), (-1, -1), "TOP"),
+        ("TOPPADDING", (0, 0), (-1, -1), 1.5),
+        ("BOTTOMPADDING", (0, 0), (-1, -1), 1.5),
+        ("LEFTPADDING", (0, 0), (-1, -1), 3),
+        ("RIGHTPADDING", (0, 0), (-1, -1), 3),
+        ("LINEBELOW", (0, -1), (-1, -1), 0.4, ACCENT_WEAK),
+    ]
+    if header:
+        cmds += [("FONTNAME", (0, 0), (-1, 0), bold), ("TEXTCOLOR", (0, 0), (-1, 0), ACCENT),
+                 ("LINEBELOW", (0, 0), (-1, 0), 0.8, ACCENT)]
+    if zebra and len(rows) > 2:
+        cmds.append(("ROWBACKGROUNDS", (0, 1), (-1, -1), [None, ACCENT_TINT]))
+    t.setStyle(TableStyle(cmds))
+    return t
+
+
+def _h2(text: str) -> Paragraph:
+    return _p(text, "h2")
+
+
+def _bullets(lines: list[str], style: str = "bullet") -> list[Paragraph]:
+    return [Paragraph(esc(x), styles()[style], bulletText="–") for x in lines]
+
+
+def _page_one(m: ReportModel) -> list[Any]:
+    st = styles()
+    out: list[Any] = [
+        _p("Occupancy recommendation · indicative, for the engineer of record", "kicker"),
+        _p(m.building[0][1], "title"),
+    ]
+    kv = [[_p(k, "label"), _p(v, "cell")] for k, v in m.building[1:]]
+    out.append(_grid(kv, [28 * mm, CONTENT_W - 28 * mm], header=False, zebra=False))
+    out.append(Spacer(1, 8))
+
+    # The result as three plain columns under an accent rule: words and mark, not a notice.
+    result = Table([
+        [_p("indicative tier", "label"), _p("structural performance level", "label"),
+         _p("governed by", "label")],
+        [_p(m.tier_words, "tier"), _p(m.level, "tier"), _p(m.governing, "strong")],
+        [_p(m.tier_line, "small"), "", ""],
+    ], colWidths=[58 * mm, 58 * mm, CONTENT_W - 116 * mm])
+    result.setStyle(TableStyle([
+        ("LINEABOVE", (0, 0), (-1, 0), 1.6, ACCENT),
+        ("VALIGN", (0, 0), (-1, -1), "BOTTOM"),
+        ("LEFTPADDING", (0, 0), (-1, -1), 0),
+        ("TOPPADDING", (0, 0), (-1, 0), 5),
+        ("SPAN", (0, 2), (-1, 2)),
+    ]))
+    out.append(result)
+    out.append(Spacer(1, 4))
+    out.append(_p(m.provisional_text, "strong" if m.provisional else "body"))
+
+    out.append(_h2("Why"))
+    out += _bullets(m.reasons or ["no reason recorded"])
+
+    out.append(_h2(f"Tier probabilities ({m.probability_label})"))
+    out.append(Paragraph("   ·   ".join(f"{esc(t)}  <b>{esc(p)}</b>" for t, p in m.probabilities),
+                         st["body"]))
+    out.append(_p(m.borderline_text, "strong" if m.borderline else "body"))
+    out.append(_p("measure next: " + m.measure_next))
+
+    out.append(_h2("Keep-out distances"))
+    out += _bullets(m.keep_out) if m.keep_out else [
+        _p("no hazard with a height above ground was logged")]
+
+    out.append(_h2("Digital signature"))
+    out.append(_p(m.signer_text, "strong" if m.signer is None else "body"))
+
+    block = Table([
+        [_p("For the engineer of record: the binding decision, made under local codes and "
+            "with the local building authority, is yours. Sign by hand below.", "small"), ""],
+        [_p("name", "label"), ""], [_p("registration", "label"), ""],
+        [_p("decision and conditions", "label"), ""], ["", ""],
+        [_p("signature", "label"), ""], [_p("date", "label"), ""],
+    ], colWidths=[38 * mm, CONTENT_W - 38 * mm],
+        rowHeights=[None, 18, 18, 18, 18, 24, 18])
+    block.setStyle(TableStyle([
+        ("SPAN", (0, 0), (-1, 0)),
+        ("LINEBELOW", (1, 1), (1, -1), 0.5, MUTED),
+        ("LINEABOVE", (0, 0), (-1, 0), 0.8, ACCENT),
+        ("VALIGN", (0, 1), (-1, -1), "BOTTOM"),
+        ("LEFTPADDING", (0, 0), (-1, -1), 0),
+    ]))
+    out.append(Spacer(1, 6))
+    out.append(KeepTogether([_h2("Engineer of record"), block]))
+    return out
+
+
+def _thumb(path: Any) -> Image | None:
+    """A small JPEG of the photo, or None when it cannot be read."""
+    try:
+        from PIL import Image as PILImage
+
+        with PILImage.open(path) as src:
+            im = src.convert("RGB")
+        im.thumbnail((640, 640))
+        buf = io.BytesIO()
+        im.save(buf, format="JPEG", quality=80)
+        w, h = im.size
+    except Exception:  # any unreadable image is listed, never fatal
+        return None
+    buf.seek(0)
+    box = 52 * mm
+    scale = min(box / w, box / h)
+    return Image(buf, width=w * scale, height=h * scale)
+
+
+def _rest(m: ReportModel) -> list[Any]:
+    out: list[Any] = [PageBreak(), _h2("Storeys (top to bottom)")]
+    rows: list[list[Any]] = [["storey", "height m", "drift x", "drift y", "level x", "level y",
+                              "R", "grade", "access"]]
+    rows += [[s.label, s.height, s.drift_x, s.drift_y, s.level_x, s.level_y, s.r, s.grade,
+              s.access] for s in reversed(m.storeys)]
+    w = CONTENT_W / 9
+    out.append(_grid(rows, [w] * 9))
+    out.append(_p("drift: the largest absolute residual drift ratio read in the storey; level "
+                  "by drift (FEMA 356 figures); R: residual seismic capacity ratio where a "
+                  "published method covers the system; grade from R.", "small"))
+
+    n = len(m.chart)
+    chart_h = min(200 * mm, max(80 * mm, 34.0 * mm + n * 4.2 * mm))
+    out.append(KeepTogether([_h2("Drift profile"),
+                             DriftChart(m.chart, m.chart_figures, CONTENT_W, chart_h,
+                                        *register())]))
+
+    out.append(_h2("Member groups"))
+    if m.members:
+        rows = [["storey", "group", "kind", "count", "class", "eta", "class set", "seen"]]
+        rows += [[_p(r.storey, "cell"), _p(r.group, "cell"), r.kind, r.count, r.damage_class,
+                  r.eta, _p(r.class_from, "cell"), _p(r.seen, "cell")] for r in m.members]
+        out.append(_grid(rows, [16 * mm, 16 * mm, 16 * mm, 12 * mm, 11 * mm, 10 * mm,
+                                44 * mm, CONTENT_W - 125 * mm]))
+    else:
+        out.append(_p("no member group was logged"))
+
+    out.append(_h2("Hazards"))
+    if m.hazards:
+        rows = [["kind", "where", "storey", "effect", "keep out", "note"]]
+        rows += [[_p(h.kind, "cell"), _p(h.where, "cell"), _p(h.storey, "cell"),
+                  _p(h.effect, "cell"), h.keep_out, _p(h.note, "cell")] for h in m.hazards]
+        out.append(_grid(rows, [28 * mm, 34 * mm, 14 * mm, 26 * mm, 16 * mm,
+                                CONTENT_W - 118 * mm]))
+    else:
+        out.append(_p("no hazard was logged"))
+
+    out.append(_h2("Repairability (named alternatives)"))
+    rows = [["alternative", "probability", "source"]]
+    rows += [[_p(a, "cell"), p, _p(s, "cell")] for a, p, s in m.repairability]
+    out.append(_grid(rows, [70 * mm, 20 * mm, CONTENT_W - 90 * mm]))
+    out.append(_p(m.repairability_basis, "small"))
+
+    if m.comparison is not None:
+        out.append(_h2("Since the previous inspection"))
+        out += _bullets(m.comparison) if m.comparison else [_p("nothing changed")]
+
+    if m.storey_notes or m.notes or m.defaulted:
+        out.append(_h2("Notes"))
+        out += _bullets([f"storey {lab}: {text}" for lab, text in m.storey_notes])
+        out += _bullets(m.notes)
+        if m.defaulted:
+            out.append(_p("uncertainties taken from instrument defaults:", "small"))
+            out += _bullets(m.defaulted, "small")
+
+    if m.photos:
+        out.append(_h2("Photos"))
+        cells: list[Any] = []
+        missing: list[str] = []
+        for ph in m.photos:
+            img = _thumb(ph.file) if ph.file is not None else None
+            if img is None:
+                why = "not found" if ph.file is None else "could not be read"
+                missing.append(f"{ph.belongs_to}: {ph.path} ({why})"
+                               + (f", {ph.caption}" if ph.caption else ""))
+                continue
+            cells.append([img, _p(f"{ph.belongs_to}: {ph.caption or ph.path}", "small")])
+        if cells:
+            grid_rows = [cells[i:i + 3] for i in range(0, len(cells), 3)]
+            grid_rows[-1] += [""] * (3 - len(grid_rows[-1]))
+            t = Table(grid_rows, colWidths=[CONTENT_W / 3] * 3)
+            t.setStyle(TableStyle([("VALIGN", (0, 0), (-1, -1), "TOP")]))
+            out.append(t)
+        if missing:
+            out.append(_p("photos named in the survey but not included:", "small"))
+            out += _bullets(missing, "small")
+
+    out += [PageBreak(), _h2("Method")]
+    out += [_p(t) for t in m.method_text]
+    out.append(_h2("Tables used"))
+    rows = [["what", "source", "status", "note"]]
+    rows += [[_p(r.what, "cell"), _p(r.source, "cell"), r.status, _p(r.note, "cell")]
+             for r in m.method]
+    out.append(_grid(rows, [46 * mm, 50 * mm, 16 * mm, CONTENT_W - 112 * mm]))
+    out.append(_h2("Assumptions applied (values used by this assessment)"))
+    rows = [["assumption", "value", "status", "why"]]
+    rows += [[_p(a.key, "cell"), _p(a.value, "cell"), a.status, _p(a.why, "cell")]
+             for a in m.assumptions]
+    out.append(_grid(rows, [38 * mm, 38 * mm, 20 * mm, CONTENT_W - 96 * mm]))
+    out.append(Spacer(1, 6))
+    out.append(_p(f"Made by {m.engine}. The survey and the assessment travel inside this PDF as "
+                  "embedded files (survey.json, assessment.json).", "small"))
+    return out
+
+
+def _canvas_class(m: ReportModel, files: list[tuple[str, bytes, str]], signed: bool) -> type:
+    regular, bold = register()
+
+    class ReportCanvas(Canvas):
+        """Holds pages back until the end, to print 'page n of N' and the band on each."""
+
+        def __init__(self, *args: Any, **kw: Any) -> None:
+            super().__init__(*args, **kw)
+            self._pages: list[dict[str, Any]] = []
+
+        def showPage(self) -> None:
+            self._pages.append(dict(self.__dict__))
+            self._startPage()
+
+        def save(self) -> None:
+            total = len(self._pages)
+            for i, state in enumerate(self._pages):
+                self.__dict__.update(state)
+                self._furniture(i + 1, total)
+                Canvas.showPage(self)
+            add_to_document(self._doc, files, signed)
+            Canvas.save(self)
+
+        def _furniture(self, page: int, total: int) -> None:
+            self.saveState()
+            top = PAGE_H - MARGIN + 8
+            self.setFillColor(ACCENT_TINT)
+            self.setStrokeColor(ACCENT)
+            self.rect(MARGIN, top - BAND_H, CONTENT_W, BAND_H, stroke=0, fill=1)
+            self.setLineWidth(2)
+            self.line(MARGIN, top - BAND_H, MARGIN, top)
+            self.setFillColor(ACCENT)
+            self.setFont(bold, 7.5)
+            self.drawString(MARGIN + 7, top - 11, "Caution")
+            self.setFont(regular, 7.5)
+            self.setFillColor(INK)
+            words = m.caution.split()
+            line, lines = "", []
+            for wd in words:
+                trial = (line + " " + wd).strip()
+                if self.stringWidth(trial, regular, 7.5) > CONTENT_W - 60:
+                    lines.append(line)
+                    line = wd
+                else:
+                    line = trial
+            lines.append(line)
+            for k, text in enumerate(lines[:2]):
+                self.drawString(MARGIN + 46, top - 11 - 9 * k, text)
+            self.setFont(regular, 6.5)
+            self.setFillColor(MUTED)
+            self.setStrokeColor(ACCENT_WEAK)
+            self.setLineWidth(0.4)
+            self.line(MARGIN, MARGIN + 10, PAGE_W - MARGIN, MARGIN + 10)
+            self.drawString(MARGIN, MARGIN + 2, m.footer)
+            self.setFont(bold, 7)
+            self.setFillColor(INK)
+            self.drawRightString(PAGE_W - MARGIN, MARGIN + 2, f"page {page} of {total}")
+            self.restoreState()
+
+    return ReportCanvas
+
+
+def render(m: ReportModel, files: list[tuple[str, bytes, str]], signed: bool) -> bytes:
+    """The PDF bytes of the report, byte-reproducible for the same input (invariant mode)."""
+    register()
+    buf = io.BytesIO()
+    doc = BaseDocTemplate(
+        buf, pagesize=A4, leftMargin=MARGIN, rightMargin=MARGIN,
+        topMargin=MARGIN + BAND_H + 4, bottomMargin=MARGIN + FOOT_H, invariant=1,
+        title=m.title, author=m.inspector,
+        subject=f"triage report of survey {m.survey_id}", creator="triage",
+        keywords="triage report; indicative only")
+    frame = Frame(doc.leftMargin, doc.bottomMargin, doc.width, doc.height, id="body",
+                  leftPadding=0, rightPadding=0, topPadding=0, bottomPadding=0)
+    doc.addPageTemplates([PageTemplate(id="page", frames=[frame])])
+    doc.build(_page_one(m) + _rest(m), canvasmaker=_canvas_class(m, files, signed))
+    return buf.getvalue()

@@ -1,0 +1,312 @@
+"""One edit of a survey's JSON, and the validation of only what it touched. No SQL here.
+
+A field edit of a large survey must not run the whole survey through pydantic: the edit is
+applied to the survey's JSON data, then only the unit it touched is validated (a reading, a
+member group, a hazard, a storey without its readings and members, the building block or the
+inspection block) together with the rules across fields that an edit can break (storey labels
+unique, a hazard's storey naming an existing storey, at least one storey, `inspection.previous`
+not the survey itself). The unit is replaced by its validated, normalised JSON, so the stored
+data is what `Survey.to_json_dict()` would give (a test checks this against full validation).
+
+Paths name fields the way the survey file does: `building.name`, `storeys[2].label`,
+`storeys[2].readings[1].offset_mm`, `hazards[0]`; indices count the visible items only.
+"""
+
+from __future__ import annotations
+
+import copy
+import re
+from dataclasses import dataclass
+from typing import Any
+
+from pydantic import BaseModel, ValidationError
+
+from triage.model import (
+    Building,
+    Hazard,
+    Inspection,
+    MemberGroup,
+    Reading,
+    Storey,
+    error_lines,
+)
+
+from .connect import StoreError
+
+Token = str | int
+
+_TOKEN = re.compile(r"([A-Za-z_][A-Za-z0-9_]*)((?:\[\d+\])*)")
+_INDEX = re.compile(r"\[(\d+)\]")
+
+
+class EditRefused(StoreError, ValueError):
+    """An edit broke a rule; `str()` is one line naming the field path and the rule."""
+
+
+def parse_path(path: str) -> list[Token]:
+    """`storeys[2].readings[1].offset_mm` -> ['storeys', 2, 'readings', 1, 'offset_mm']."""
+    if not isinstance(path, str) or not path:
+        raise EditRefused("(path): an edit names a field, e.g. storeys[0].label")
+    out: list[Token] = []
+    for part in path.split("."):
+        m = _TOKEN.fullmatch(part)
+        if m is None:
+            raise EditRefused(f"{path}: not a field path (e.g. storeys[0].readings[1].offset_mm)")
+        out.append(m.group(1))
+        out.extend(int(i) for i in _INDEX.findall(m.group(2)))
+    return out
+
+
+def format_path(tokens: list[Token]) -> str:
+    """The inverse of `parse_path`."""
+    out = ""
+    for t in tokens:
+        out += f"[{t}]" if isinstance(t, int) else ("." if out else "") + t
+    return out
+
+
+@dataclass(frozen=True)
+class Applied:
+    """An edit applied to a copy of the survey data: the new data and what it changed."""
+
+    doc: dict[str, Any]
+    op: str          # set | add | remove
+    path: str        # the field set, the item added (with its index) or the item removed
+    old: Any         # JSON value before (None: absent)
+    new: Any         # JSON value after (None: absent)
+
+
+# The item models of the survey, by where they sit.
+_UNITS: dict[str, type[BaseModel]] = {"building": Building, "inspection": Inspection}
+
+
+def _walk_copy(doc: dict[str, Any], tokens: list[Token]) -> tuple[dict[str, Any], Any]:
+    """Copy the containers along `tokens[:-1]` (copy on write) and return (new doc, parent)."""
+    root = dict(doc)
+    node: Any = root
+    for i, t in enumerate(tokens[:-1]):
+        where = format_path(tokens[: i + 1])
+        if isinstance(t, int):
+            if not isinstance(node, list) or not 0 <= t < len(node):
+                raise EditRefused(f"{where}: no such item (there are "
+                                  f"{len(node) if isinstance(node, list) else 0})")
+            child = node[t]
+        else:
+            if not isinstance(node, dict):
+                raise EditRefused(f"{where}: no such field")
+            child = node.get(t)
+            if child is None:
+                # An absent optional block (a location, a list left out) is created on write.
+                nxt = tokens[i + 1]
+                child = [] if isinstance(nxt, int) else {}
+        if isinstance(child, dict):
+            child = dict(child)
+        elif isinstance(child, list):
+            child = list(child)
+        else:
+            raise EditRefused(f"{where}: is a value, not a block or a list")
+        node[t] = child
+        node = child
+    return root, node
+
+
+def apply_set(doc: dict[str, Any], path: str, value: Any) -> Applied:
+    """Set a field (or replace a whole item); `None` makes an optional field absent."""
+    tokens = parse_path(path)
+    if tokens in (["format"], ["id"]):
+        raise EditRefused(f"{path}: the survey's {tokens[0]} is fixed once it is stored")
+    new_doc, parent = _walk_copy(doc, tokens)
+    last = tokens[-1]
+    if isinstance(last, int):
+        if not isinstance(parent, list) or not 0 <= last < len(parent):
+            raise EditRefused(f"{path}: no such item")
+        if value is None:
+            raise EditRefused(f"{path}: remove an item with remove, not by setting it to null")
+        old = parent[last]
+        parent[last] = copy.deepcopy(value)
+    else:
+        if not isinstance(parent, dict):
+            raise EditRefused(f"{path}: no such field")
+        old = parent.get(last)
+        if value is None:
+            parent.pop(last, None)
+        else:
+            parent[last] = copy.deepcopy(value)
+    return Applied(new_doc, "set", path, old, value)
+
+
+def apply_add(doc: dict[str, Any], path: str, item: Any, index: int | None = None) -> Applied:
+    """Insert an item into the list at `path` (at `index`, or at the end)."""
+    tokens = parse_path(path)
+    if isinstance(tokens[-1], int):
+        raise EditRefused(f"{path}: add to a list, e.g. storeys[0].readings")
+    new_doc, parent = _walk_copy(doc, [*tokens, 0])
+    if not isinstance(parent, list):
+        raise EditRefused(f"{path}: is not a list")
+    at = len(parent) if index is None else index
+    if not 0 <= at <= len(parent):
+        raise EditRefused(f"{path}: index {at} is outside 0..{len(parent)}")
+    if item is None:
+        raise EditRefused(f"{path}: an added item cannot be null")
+    parent.insert(at, copy.deepcopy(item))
+    return Applied(new_doc, "add", format_path([*tokens, at]), None, item)
+
+
+def apply_remove(doc: dict[str, Any], path: str) -> Applied:
+    """Take an item out of its list (the caller keeps it in the change log)."""
+    tokens = parse_path(path)
+    if not isinstance(tokens[-1], int):
+        raise EditRefused(f"{path}: name an item to remove, e.g. storeys[0].readings[1]")
+    new_doc, parent = _walk_copy(doc, tokens)
+    last = tokens[-1]
+    assert isinstance(last, int)
+    if not isinstance(parent, list) or not 0 <= last < len(parent):
+        raise EditRefused(f"{path}: no such item")
+    old = parent.pop(last)
+    return Applied(new_doc, "remove", path, old, None)
+
+
+def _lines(err: ValidationError, where: str) -> str:
+    lines = error_lines(err)
+    out = []
+    for line in lines:
+        if line.startswith("(survey)"):
+            out.append(where + line[len("(survey)"):])
+        else:
+            out.append(f"{where}.{line}" if where else line)
+    more = f" (and {len(out) - 1} more)" if len(out) > 1 else ""
+    return out[0] + more
+
+
+def _validate(model: type[BaseModel], data: Any, where: str) -> dict[str, Any]:
+    if not isinstance(data, dict):
+        raise EditRefused(f"{where}: must be a JSON object")
+    try:
+        obj = model.model_validate(data)
+    except ValidationError as err:
+        raise EditRefused(_lines(err, where)) from None
+    return obj.model_dump(mode="json", exclude_none=True)
+
+
+def _unit(tokens: list[Token], op: str) -> list[Token] | None:
+    """The path of the item to validate after an edit at `tokens` (None: cross rules only)."""
+    if op == "remove":
+        tokens = tokens[:-1]   # the list it left; its parent item may have rules (photos)
+    n = len(tokens)
+    head = tokens[0] if tokens else None
+    if op == "set" and tokens in (["storeys"], ["hazards"]):
+        raise EditRefused(f"{head}: change the items one by one (add, set, remove)")
+    if head == "storeys":
+        if n >= 4 and tokens[2] in ("readings", "members") and isinstance(tokens[3], int):
+            return tokens[:4]
+        if n >= 2 and isinstance(tokens[1], int):
+            if n == 3 and tokens[2] in ("readings", "members") and op == "remove":
+                return None   # an item left a storey's list: nothing of the storey changed
+            return tokens[:2]
+        return None
+    if head == "hazards":
+        return tokens[:2] if n >= 2 else None
+    if head in _UNITS:
+        return tokens[:1]
+    raise EditRefused(f"{format_path(tokens) or '(survey)'}: not an editable part of a survey")
+
+
+def _get(doc: Any, tokens: list[Token]) -> Any:
+    node = doc
+    for t in tokens:
+        node = node[t]
+    return node
+
+
+def _put(doc: dict[str, Any], tokens: list[Token], value: Any) -> None:
+    _get(doc, tokens[:-1])[tokens[-1]] = value
+
+
+def validate_applied(applied: Applied) -> dict[str, Any]:
+    """Validate what an edit touched and the cross-field rules; return the normalised data."""
+    doc = applied.doc
+    tokens = parse_path(applied.path)
+    unit = _unit(tokens, applied.op)
+    if unit is not None:
+        where = format_path(unit)
+        data = _get(doc, unit)
+        if unit[0] == "storeys" and len(unit) == 4:
+            model: type[BaseModel] = Reading if unit[2] == "readings" else MemberGroup
+            _put(doc, unit, _validate(model, data, where))
+        elif unit[0] == "storeys":
+            # A storey added or replaced, or a whole list of it set, is validated with its items.
+            whole = len(tokens) == 2 or (len(tokens) == 3 and tokens[2] in ("readings", "members"))
+            if whole:
+                _put(doc, unit, _validate(Storey, data, where))
+            else:
+                if not isinstance(data, dict):
+                    raise EditRefused(f"{where}: must be a JSON object")
+                shallow = {k: v for k, v in data.items() if k not in ("readings", "members")}
+                out = _validate(Storey, shallow, where)
+                out["readings"] = data.get("readings", [])
+                out["members"] = data.get("members", [])
+                _put(doc, unit, out)
+        elif unit[0] == "hazards":
+            _put(doc, unit, _validate(Hazard, data, where))
+        else:
+            _put(doc, unit, _validate(_UNITS[str(unit[0])], data, where))
+    check_cross_rules(doc)
+    return doc
+
+
+def check_cross_rules(doc: dict[str, Any]) -> None:
+    """The survey rules across fields that a single edit can break."""
+    storeys = doc.get("storeys")
+    if not isinstance(storeys, list) or not storeys:
+        raise EditRefused("storeys: a survey keeps at least one storey")
+    seen: set[str] = set()
+    for i, st in enumerate(storeys):
+        lab = st.get("label")
+        if lab in seen:
+            raise EditRefused(f"storeys[{i}].label: {lab!r} is used twice; labels are unique")
+        seen.add(lab)
+    for i, h in enumerate(doc.get("hazards") or []):
+        s = h.get("storey")
+        if s is not None and s not in seen:
+            raise EditRefused(f"hazards[{i}].storey: {s!r} names no storey "
+                              f"(storeys: {', '.join(str(x) for x in seen)})")
+    prev = (doc.get("inspection") or {}).get("previous")
+    if prev is not None and str(prev) == str(doc.get("id")):
+        raise EditRefused("inspection.previous: a survey cannot follow itself")
+
+
+def inverse(op: str, path: str, old: Any, new: Any) -> tuple[str, str, Any]:
+    """The edit that undoes one: (op, path, value)."""
+    if op == "set":
+        return "set", path, old
+    if op == "add":
+        return "remove", path, None
+    if op == "remove":
+        return "add", path, old
+    raise EditRefused(f"{op}: this change cannot be undone")
+
+
+def apply(doc: dict[str, Any], op: str, path: str, value: Any) -> Applied:
+    """Apply one edit (set, add at the path's index, remove) and validate what it touched."""
+    if op == "set":
+        applied = apply_set(doc, path, value)
+    elif op == "add":
+        tokens = parse_path(path)
+        if isinstance(tokens[-1], int):
+            applied = apply_add(doc, format_path(tokens[:-1]), value, tokens[-1])
+        else:
+            applied = apply_add(doc, path, value)
+    elif op == "remove":
+        applied = apply_remove(doc, path)
+    else:
+        raise EditRefused(f"{op}: not an edit (set, add, remove)")
+    out = validate_applied(applied)
+    new_value = applied.new
+    if applied.op in ("set", "add") and new_value is not None:
+        # Log the value as validated (normalised), not as typed.
+        t = parse_path(applied.path)
+        try:
+            new_value = _get(out, t)
+        except (KeyError, IndexError, TypeError):
+            new_value = None
+    return Applied(out, applied.op, applied.path, applied.old, new_value)

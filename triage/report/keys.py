@@ -37,7 +37,7 @@ def home() -> Path:
         return Path(env)
     import platformdirs
 
-    return Path(platformdirs.user_data_dir("triage"))
+    return Path(platformdirs.user_data_dir("triage", appauthor=False))
 
 
 def fingerprint(public_raw: bytes) -> str:

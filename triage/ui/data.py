@@ -1,0 +1,308 @@
+"""The one place the screens talk to the store, the engine and the report writer.
+
+Screens never write SQL and never open the database themselves: they call `FieldData`, which
+wraps `triage.store.Store`. Every edit is one durable transaction in the store; a value the
+store (or the survey model behind it) refuses raises `Refused` with the rule in one line, and
+nothing is written.
+
+A `sqlite3` connection belongs to the thread that opened it, so work done in a thread worker
+(the verdict, the report) opens its own short-lived store with `worker_store`.
+"""
+
+from __future__ import annotations
+
+import getpass
+import re
+import uuid
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from dataclasses import dataclass
+from datetime import datetime
+from pathlib import Path
+from typing import Any
+
+from triage.model import Survey, SurveyError, parse_survey, parse_survey_text
+from triage.store import Store, StoreError
+
+Clock = Callable[[], datetime]
+
+
+class Refused(Exception):
+    """A value or an action was refused; `str()` is one line, the rule broken."""
+
+
+def rule_of(message: str) -> str:
+    """The rule part of a one-line message `field.path: rule` (the field is shown beside it)."""
+    head, sep, rest = message.partition(": ")
+    if sep and (re.fullmatch(r"[\w\[\].]+", head) is not None):
+        return rest
+    return message
+
+
+@dataclass(frozen=True)
+class Verdict:
+    """A survey as stored at one revision and its assessment, made in a worker thread."""
+
+    survey: Survey
+    assessment: Any  # triage.assess.Assessment (imported in the worker)
+    revision: int
+
+
+def now_local(clock: Clock | None = None) -> datetime:
+    """The time now, with the laptop's offset (or the test clock's)."""
+    if clock is not None:
+        return clock()
+    return datetime.now().astimezone().replace(microsecond=0)
+
+
+def default_who() -> str:
+    """Who edits when no inspector is known yet: the login name."""
+    try:
+        return getpass.getuser()
+    except Exception:  # no login name in some containers
+        return "inspector"
+
+
+def storey_labels(above: int, below: int) -> list[str]:
+    """Storey labels bottom to top: B2, B1 below ground, then G, 1, 2, … above."""
+    labels = [f"B{i}" for i in range(below, 0, -1)]
+    labels += ["G" if i == 0 else str(i) for i in range(above)]
+    return labels
+
+
+def next_label(existing: list[str]) -> str:
+    """A label for a storey added on top: one more than the highest number, or G first."""
+    if "G" not in existing and not any(x.isdigit() for x in existing):
+        return "G"
+    nums = [int(x) for x in existing if x.isdigit()]
+    n = (max(nums) + 1) if nums else 1
+    while str(n) in existing:
+        n += 1
+    return str(n)
+
+
+class FieldData:
+    """The store of one database, as the screens use it (UI thread only)."""
+
+    def __init__(self, db_path: Path, clock: Clock | None = None) -> None:
+        self.path = Path(db_path)
+        self.clock = clock
+        try:
+            self.store = Store.open(self.path, create=True)
+        except StoreError as err:
+            raise Refused(str(err)) from None
+
+    def close(self) -> None:
+        """Close the database."""
+        self.store.close()
+
+    # --- reading ---------------------------------------------------------------------------
+
+    def surveys(self, include_hidden: bool = False) -> list[Any]:
+        """The surveys on this laptop, as rows for the list."""
+        return list(self.store.list_surveys(include_hidden=include_hidden))
+
+    def row(self, survey_id: str) -> Any | None:
+        """The list row of one survey (None when hidden or gone)."""
+        return self.store.survey_row(survey_id)
+
+    def load(self, survey_id: str) -> Survey:
+        """The survey at its current revision."""
+        return self.store.load_survey(survey_id)
+
+    def revision(self, survey_id: str) -> int:
+        """The survey's current revision number."""
+        return int(self.store.revision(survey_id))
+
+    def stored_assessment(self, survey_id: str) -> Any | None:
+        """The last assessment saved for the survey, if any."""
+        return self.store.load_assessment(survey_id)
+
+    def changes(self, survey_id: str) -> list[Any]:
+        """The survey's change log, newest first."""
+        return list(self.store.change_log(survey_id))
+
+    # --- editing ---------------------------------------------------------------------------
+
+    def set(self, survey_id: str, path: str, value: Any, who: str) -> int:
+        """Save one field; returns the new revision, or raises `Refused` with the rule."""
+        try:
+            return int(self.store.set_value(survey_id, path, value, who))
+        except (StoreError, SurveyError, ValueError) as err:
+            raise Refused(str(err).splitlines()[0] if str(err) else "refused") from None
+
+    def add(self, survey_id: str, path: str, item: dict[str, Any], who: str,
+            index: int | None = None) -> int:
+        """Add an item to a list of the survey (a reading, a member group, a storey …)."""
+        try:
+            return int(self.store.add_item(survey_id, path, item, who, index=index))
+        except (StoreError, SurveyError, ValueError) as err:
+            raise Refused(str(err).splitlines()[0] if str(err) else "refused") from None
+
+    def remove(self, survey_id: str, path: str, who: str) -> int:
+        """Remove an item (kept in the change log)."""
+        try:
+            return int(self.store.remove_item(survey_id, path, who))
+        except (StoreError, SurveyError, ValueError) as err:
+            raise Refused(str(err).splitlines()[0] if str(err) else "refused") from None
+
+    def undo(self, survey_id: str, who: str) -> Any | None:
+        """Undo the survey's last change; the change undone, or None when there is none."""
+        try:
+            return self.store.undo_last(survey_id, who)
+        except (StoreError, SurveyError, ValueError) as err:
+            raise Refused(str(err).splitlines()[0]) from None
+
+    def hide(self, survey_id: str, who: str) -> None:
+        """Hide a survey from the list (kept, and logged)."""
+        self.store.hide_survey(survey_id, who)
+
+    def add_survey(self, data: dict[str, Any], who: str, source: str | None = None) -> str:
+        """Validate survey data and store it as a new survey; returns its id."""
+        try:
+            survey = parse_survey(data)
+            self.store.add_survey(survey, who, source)
+        except (StoreError, SurveyError) as err:
+            raise Refused(str(err)) from None
+        return str(survey.survey_id)
+
+    def new_survey(self, data: dict[str, Any], who: str) -> str:
+        """A new survey from the new-survey form: fresh ids, inspected now."""
+        data = dict(data)
+        data.setdefault("format", "triage-survey/1")
+        data["id"] = str(uuid.uuid4())
+        data["building"] = dict(data["building"])
+        data["building"].setdefault("id", str(uuid.uuid4()))
+        insp = dict(data.get("inspection") or {})
+        insp.setdefault("at", now_local(self.clock).isoformat())
+        data["inspection"] = insp
+        return self.add_survey(data, who, source="new survey")
+
+    def reinspect(self, survey_id: str, inspector: dict[str, Any], who: str) -> str:
+        """A re-inspection of a survey: building and storeys copied, readings and damage
+        cleared, the earlier survey linked as `previous`; returns the new survey's id."""
+        old = self.load(survey_id).to_json_dict()
+        storeys = [{"label": s["label"], "height_m": s["height_m"],
+                    "below_grade": s.get("below_grade", False)} for s in old["storeys"]]
+        data = {
+            "format": "triage-survey/1",
+            "id": str(uuid.uuid4()),
+            "building": old["building"],
+            "inspection": {"inspector": inspector, "at": now_local(self.clock).isoformat(),
+                           "previous": str(survey_id)},
+            "storeys": storeys,
+        }
+        return self.add_survey(data, who, source=f"re-inspection of {survey_id}")
+
+    def load_samples(self, folder: Path, who: str) -> int:
+        """Import every sample survey of a folder (the demo); returns how many were added."""
+        n = 0
+        for f in sorted(folder.glob("*.json")):
+            try:
+                survey = parse_survey_text(f.read_text(encoding="utf-8"))
+                self.store.add_survey(survey, who, f.name)
+                n += 1
+            except (StoreError, SurveyError, OSError):
+                continue  # a broken sample is left out; the rest still load
+        return n
+
+    # --- settings and reports ---------------------------------------------------------------
+
+    def setting(self, key: str, default: Any = None) -> Any:
+        """A remembered setting (last inspector, last gauge length, last key file)."""
+        return self.store.settings_get(key, default)
+
+    def remember(self, key: str, value: Any) -> None:
+        """Remember a setting for next time."""
+        self.store.settings_set(key, value)
+
+    def record_report(self, survey_id: str, revision: int, path: str,
+                      fingerprint: str | None) -> None:
+        """Note that a report of this revision was written."""
+        self.store.record_report(survey_id, revision, path, fingerprint)
+
+
+@contextmanager
+def worker_store(db_path: Path) -> Iterator[Store]:
+    """A store opened and closed in the calling (worker) thread."""
+    st = Store.open(Path(db_path), create=False, refresh=False)
+    try:
+        yield st
+    finally:
+        st.close()
+
+
+def compute_verdict(db_path: Path, survey_id: str) -> Verdict:
+    """Load the survey, assess it and store the assessment (run in a thread worker)."""
+    from triage.assess import assess
+
+    with worker_store(db_path) as st:
+        revision = int(st.revision(survey_id))
+        survey = st.load_survey(survey_id)
+        assessment = assess(survey)
+        st.save_assessment(survey_id, revision, assessment)
+    return Verdict(survey, assessment, revision)
+
+
+# --- the field forms (forms/): what to look for, per storey systems -------------------------
+
+
+def _forms(systems: tuple[str, ...]) -> list[Any]:
+    from triage.forms import FormError, load_form
+
+    out = []
+    for s in dict.fromkeys(systems):
+        try:
+            out.append(load_form(s))
+        except (FormError, KeyError, OSError):
+            continue
+    return out
+
+
+def member_kinds(systems: tuple[str, ...]) -> list[str]:
+    """Member kinds the forms of these systems count first, then every other kind."""
+    from triage.model import MEMBER_KINDS
+
+    kinds: list[str] = []
+    for f in _forms(systems):
+        kinds += [k for k in f.member_kinds if k not in kinds]
+    return kinds + [k for k in MEMBER_KINDS if k not in kinds]
+
+
+def sign_choices(systems: tuple[str, ...], kind: str) -> list[tuple[str, str]]:
+    """(sign key, where to look) for a member kind, from the forms of the storey's systems;
+    signs of the sign table for that kind that no form lists come after, without a hint."""
+    from triage import standards
+
+    out: dict[str, str] = {}
+    for f in _forms(systems):
+        try:
+            for key, hint in f.signs_for(kind):
+                out.setdefault(key, hint)
+        except KeyError:
+            continue
+    for key, sign in standards.load().signs.items():
+        if kind in sign.kinds and key not in out:
+            out[key] = sign.description
+    return list(out.items())
+
+
+def hazard_choices(systems: tuple[str, ...]) -> list[tuple[str, str, str]]:
+    """(group, hazard key, where to look) from the forms' check lists, in walking order."""
+    from triage import standards
+
+    seen: dict[str, tuple[str, str, str]] = {}
+    for f in _forms(systems):
+        for group, items in f.hazard_groups:
+            for key, hint in items:
+                seen.setdefault(key, (group, key, hint))
+    for key, h in standards.load().hazards.items():
+        seen.setdefault(key, (h.group, key, h.description))
+    return list(seen.values())
+
+
+def class_texts(systems: tuple[str, ...]) -> dict[str, str]:
+    """What each damage class looks like, in the first form's words."""
+    for f in _forms(systems):
+        return dict(f.class_text)
+    return {}

@@ -1,0 +1,1 @@
+"""The screens of the app, one module and one stylesheet each."""

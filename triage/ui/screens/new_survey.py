@@ -1,0 +1,162 @@
+"""A new survey: the building, its systems, its storeys, the inspector (remembered)."""
+
+from __future__ import annotations
+
+from typing import Any, ClassVar
+
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import VerticalScroll
+from textual.screen import Screen
+from textual.widgets import Button, Footer, Static
+
+from triage import standards
+from triage.ui.data import Refused, rule_of, storey_labels
+from triage.ui.messages import FieldAccepted
+from triage.ui.widgets.field import Choice, Field
+
+
+def system_options() -> list[tuple[str, str]]:
+    """The eight structural systems, each with its one-line description."""
+    return [(f"{k}: {s.description}", k) for k, s in standards.load().systems.items()]
+
+
+class NewSurveyScreen(Screen[str | None]):
+    """The form that starts a survey; returns the new survey's id (None when given up)."""
+
+    CSS_PATH = "new_survey.tcss"
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("ctrl+s", "create", "create survey", priority=True),
+        Binding("escape", "cancel", "back", priority=True),
+    ]
+
+    def compose(self) -> ComposeResult:
+        """The form."""
+        app: Any = self.app
+        typical = app.data.setting("last_storey_height_m") or 3.2
+        yield Static("New survey", classes="title")
+        with VerticalScroll(id="new-form"):
+            yield Static("Building", classes="section")
+            yield Field("name", "building.name", required=True, id="f-name", width=40)
+            yield Field("address", "building.address", required=True, id="f-address", width=40)
+            yield Field("use", "building.use", id="f-use", width=24,
+                        placeholder="e.g. clinic")
+            yield Field("latitude", "building.location.lat", kind="float", unit="deg",
+                        id="f-lat")
+            yield Field("longitude", "building.location.lon", kind="float", unit="deg",
+                        id="f-lon")
+            yield Static("Structural system, each direction", classes="section")
+            yield Choice("system x", "building.system.x", system_options(), "rc_frame",
+                         id="f-sx", width=62)
+            yield Choice("system y", "building.system.y", system_options(), "rc_frame",
+                         id="f-sy", width=62)
+            yield Static("Storeys (each can be changed later)", classes="section")
+            yield Field("above ground", "storeys.above", 2, kind="int", required=True,
+                        id="f-above")
+            yield Field("below ground", "storeys.below", 0, kind="int", id="f-below")
+            yield Field("typical height", "storeys.height_m", typical, kind="float", unit="m",
+                        required=True, id="f-height")
+            yield Static("Inspector", classes="section")
+            yield Field("name", "inspection.inspector.name",
+                        app.data.setting("last_inspector_name"), required=True,
+                        id="f-inspector", width=30)
+            yield Field("id", "inspection.inspector.id", app.data.setting("last_inspector_id"),
+                        id="f-inspector-id", width=16)
+            yield Static("Nothing is stored until the survey is created (ctrl+s); from then "
+                         "on every field is saved as soon as it is accepted.", classes="hint")
+            yield Button("create survey", id="create", compact=True)
+        yield Static("", id="new-status", classes="hint")
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        """Cursor in the first field."""
+        self.query_one("#f-name", Field).focus_input()
+
+    def on_field_accepted(self, event: FieldAccepted) -> None:
+        """A field passed its own check; it is stored with the rest on create."""
+        event.field.show_note("ok")
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        """The create button."""
+        if event.button.id == "create":
+            self.action_create()
+
+    def _collect(self) -> dict[str, Any] | None:
+        values: dict[str, Any] = {}
+        bad = False
+        for f in self.query(Field):
+            try:
+                values[f.id or ""] = f.value()
+            except ValueError as err:
+                f.show_refused(str(err))
+                bad = True
+        if bad:
+            return None
+        above = values["f-above"]
+        below = values["f-below"] or 0
+        height = values["f-height"]
+        for fid, v, rule in (("f-above", above, "at least one storey above ground"),
+                             ("f-below", below, "0 or more")):
+            if v < (1 if fid == "f-above" else 0) or v > 200:
+                self.query_one(f"#{fid}", Field).show_refused(
+                    rule if v >= 0 else "must not be negative")
+                bad = True
+        if bad:
+            return None
+        building: dict[str, Any] = {
+            "name": values["f-name"], "address": values["f-address"],
+            "system": {"x": self.query_one("#f-sx", Choice).value(),
+                       "y": self.query_one("#f-sy", Choice).value()},
+        }
+        if values["f-use"]:
+            building["use"] = values["f-use"]
+        if values["f-lat"] is not None or values["f-lon"] is not None:
+            building["location"] = {"lat": values["f-lat"], "lon": values["f-lon"]}
+        inspector = {"name": values["f-inspector"]}
+        if values["f-inspector-id"]:
+            inspector["id"] = values["f-inspector-id"]
+        storeys = [{"label": lab, "height_m": height, "below_grade": lab.startswith("B")}
+                   for lab in storey_labels(above, below)]
+        return {"format": "triage-survey/1", "building": building,
+                "inspection": {"inspector": inspector}, "storeys": storeys}
+
+    def _field_for(self, message: str) -> Any:
+        path = message.partition(":")[0]
+        if path.startswith("storeys"):
+            return self.query_one("#f-height", Field)
+        for f in self.query(Field).results():
+            if f.path and path.startswith(f.path):
+                return f
+        for c in self.query(Choice).results():
+            if c.path and path.startswith(c.path):
+                return c
+        if path.startswith("building.location"):
+            return self.query_one("#f-lat", Field)
+        return None
+
+    def action_create(self) -> None:
+        """Store the survey and open it."""
+        data = self._collect()
+        status = self.query_one("#new-status", Static)
+        if data is None:
+            status.update("not created: a field breaks its rule (shown beside it)")
+            return
+        app: Any = self.app
+        who = data["inspection"]["inspector"]["name"]
+        try:
+            sid = app.data.new_survey(data, who)
+        except Refused as err:
+            f = self._field_for(str(err))
+            if f is not None:
+                f.show_refused(rule_of(str(err)))
+            status.update(f"not created: {err}")
+            return
+        app.data.remember("last_inspector_name", who)
+        app.data.remember("last_inspector_id", data["inspection"]["inspector"].get("id"))
+        app.data.remember("last_storey_height_m", data["storeys"][0]["height_m"])
+        app.who = who
+        self.dismiss(sid)
+
+    def action_cancel(self) -> None:
+        """Back to the list; nothing stored."""
+        self.dismiss(None)

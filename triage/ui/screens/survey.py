@@ -1,0 +1,392 @@
+"""One survey, logged storey by storey in walking order, with the verdict always in view.
+
+Every accepted field is saved at once through the store (one durable transaction) and marked
+saved; then the verdict is recomputed in a thread worker, stored with `save_assessment`, and
+drawn when it comes back. The UI thread never assesses.
+"""
+
+from __future__ import annotations
+
+from typing import Any, ClassVar
+
+from textual import work
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Horizontal, VerticalScroll
+from textual.screen import Screen
+from textual.widgets import Footer, ListItem, ListView, Static, TabbedContent, TabPane
+from textual.worker import Worker, WorkerState, get_current_worker
+
+from triage.ui.data import Refused, Verdict, compute_verdict, next_label, rule_of
+from triage.ui.messages import FieldAccepted
+from triage.ui.widgets.hazards import HazardsPane
+from triage.ui.widgets.members import MembersPane
+from triage.ui.widgets.pane import ItemPane
+from triage.ui.widgets.photos import PhotosPane
+from triage.ui.widgets.readings import ReadingsPane
+from triage.ui.widgets.storey_pane import StoreyPane
+from triage.ui.widgets.verdict import VerdictLine, verdict_lines
+
+TABS = ("storey", "readings", "members", "hazards", "photos")
+WIDE = 150  # columns from which the full verdict sits beside the form
+
+
+class SurveyScreen(Screen[None]):
+    """The logging screen of one survey."""
+
+    CSS_PATH = "survey.tcss"
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("escape", "back", "list", priority=True),
+        Binding("f2", "verdict", "verdict", priority=True),
+        Binding("f3", "history", "history", priority=True),
+        Binding("f4", "report", "report", priority=True),
+        Binding("pageup", "storey(1)", "storey up", priority=True, key_display="PgUp"),
+        Binding("pagedown", "storey(-1)", "down", priority=True, key_display="PgDn"),
+        Binding("ctrl+n", "new", "new", priority=True),
+        Binding("ctrl+r", "remove", "remove", priority=True),
+        Binding("ctrl+z", "undo", "undo", priority=True),
+        Binding("ctrl+b", "add_below", "storey below", priority=True, show=False),
+        Binding("f5", "tab('storey')", "storey", priority=True, show=False),
+        Binding("f6", "tab('readings')", "readings", priority=True, show=False),
+        Binding("f7", "tab('members')", "members", priority=True, show=False),
+        Binding("f8", "tab('hazards')", "hazards", priority=True, show=False),
+        Binding("f9", "tab('photos')", "photos", priority=True, show=False),
+    ]
+
+    def __init__(self, survey_id: str) -> None:
+        super().__init__()
+        self.survey_id = survey_id
+        app: Any = self.app
+        self.data = app.data
+        self.survey = self.data.load(survey_id)
+        self.revision = self.data.revision(survey_id)
+        self.assessment: Any = self.data.stored_assessment(survey_id)
+        self.assessed_revision = -1
+        self.storey_index = self._first_storey()
+        self.who = app.who
+
+    def _first_storey(self) -> int:
+        """The lowest storey above ground: where the walk inside usually starts."""
+        for i, st in enumerate(self.survey.storeys):
+            if not st.below_grade:
+                return i
+        return 0
+
+    @property
+    def storey(self) -> Any:
+        """The storey in view."""
+        if 0 <= self.storey_index < len(self.survey.storeys):
+            return self.survey.storeys[self.storey_index]
+        return None
+
+    # --- layout --------------------------------------------------------------------------
+
+    def compose(self) -> ComposeResult:
+        """Title, storeys, tabs, verdict."""
+        yield Static("", id="survey-title", classes="title")
+        with Horizontal(id="body"):
+            yield ListView(id="storeys")
+            with TabbedContent(id="tabs", initial="readings"):
+                with TabPane("storey", id="storey"):
+                    yield StoreyPane(id="storey-pane")
+                with TabPane("readings", id="readings"):
+                    yield ReadingsPane(id="readings-pane")
+                with TabPane("members", id="members"):
+                    yield MembersPane(id="members-pane")
+                with TabPane("hazards", id="hazards"):
+                    yield HazardsPane(id="hazards-pane")
+                with TabPane("photos", id="photos"):
+                    yield PhotosPane(id="photos-pane")
+            with VerticalScroll(id="side"):
+                yield Static("", id="side-verdict")
+        yield VerdictLine(id="verdict-line")
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        """Fill everything, then work out the verdict."""
+        self.fill_storeys()
+        self.load_all()
+        self.show_title()
+        self.query_one(VerdictLine).show(self.assessment, pending=True)
+        self._layout_side()
+        self.request_verdict()
+
+    def on_resize(self) -> None:
+        """The full verdict beside the form when the terminal is wide enough."""
+        self._layout_side()
+
+    def _layout_side(self) -> None:
+        side = self.query_one("#side")
+        side.display = self.app.size.width >= WIDE
+        if side.display:
+            self._draw_side()
+
+    def _draw_side(self) -> None:
+        if self.assessment is not None and self.query_one("#side").display:
+            self.query_one("#side-verdict", Static).update(
+                verdict_lines(self.survey, self.assessment, width=56))
+
+    def show_title(self, note: str = "") -> None:
+        """Building, address, revision, report state."""
+        b = self.survey.building
+        row = self.data.row(self.survey_id)
+        report = ""
+        if row is not None and row.edited_since_report:
+            report = " · edited since its report"
+        elif row is not None and row.edited_since_report is False:
+            report = " · report issued"
+        prev = " · re-inspection" if self.survey.inspection.previous else ""
+        self.query_one("#survey-title", Static).update(
+            f"{b.name} · {b.address} · rev {self.revision}{report}{prev}"
+            + (f" · {note}" if note else ""))
+
+    def fill_storeys(self) -> None:
+        """The storey list, top storey first (as the building stands)."""
+        lv = self.query_one("#storeys", ListView)
+        lv.clear()
+        n = len(self.survey.storeys)
+        for i in range(n - 1, -1, -1):
+            st = self.survey.storeys[i]
+            dirs = {r.dir for r in st.readings}
+            mark = "✓" if dirs == {"x", "y"} and st.members else ("·" if st.readings or
+                                                                  st.members else " ")
+            lv.append(ListItem(Static(f"{st.label:<4}{mark}"), id=f"st-{i}"))
+        lv.index = n - 1 - self.storey_index
+
+    def load_all(self, keep_forms: bool = False) -> None:
+        """Redraw every pane for the storey in view."""
+        self.query_one(StoreyPane).load(refill=not keep_forms)
+        for pane in self.query(ItemPane).results():
+            pane.reload(keep_form=keep_forms)
+
+    # --- storeys -------------------------------------------------------------------------
+
+    def on_list_view_highlighted(self, event: ListView.Highlighted) -> None:
+        """Another storey picked in the list."""
+        if event.item is None or event.item.id is None:
+            return
+        i = int(event.item.id[3:])
+        if i != self.storey_index:
+            self.go_storey(i)
+
+    def go_storey(self, i: int) -> None:
+        """Show storey i (0 is the lowest)."""
+        self.storey_index = max(0, min(len(self.survey.storeys) - 1, i))
+        for pane in self.query(ItemPane).results():
+            if not isinstance(pane, HazardsPane):
+                pane.editing = None
+        self.load_all()
+        lv = self.query_one("#storeys", ListView)
+        want = len(self.survey.storeys) - 1 - self.storey_index
+        if lv.index != want:
+            lv.index = want
+
+    def action_storey(self, step: int) -> None:
+        """Walk up (1) or down (-1) a storey."""
+        self.go_storey(self.storey_index + step)
+
+    def action_tab(self, name: str) -> None:
+        """Show a tab."""
+        self.query_one(TabbedContent).active = name
+
+    # --- saving --------------------------------------------------------------------------
+
+    def on_field_accepted(self, event: FieldAccepted) -> None:
+        """Save a field the moment it is accepted; show saved, or the rule."""
+        event.stop()
+        if not event.path:
+            return
+        try:
+            rev = self.data.set(self.survey_id, event.path, event.value, self.who)
+        except Refused as err:
+            event.field.show_refused(rule_of(str(err)))
+            return
+        event.field.mark_saved()
+        self.after_save(rev, structural=event.path.endswith(".label"))
+        if event.path.endswith((".count", ".kind", ".crack_mm", ".signs", ".damage_class")):
+            self.query_one(MembersPane).class_line.update("class: working it out …")
+
+    def after_save(self, revision: int, structural: bool = False) -> None:
+        """A change is in the store: update the title, then the verdict."""
+        self.revision = revision
+        if structural:
+            self.survey = self.data.load(self.survey_id)
+            self.fill_storeys()
+            self.load_all(keep_forms=True)
+        self.show_title("✓ saved")
+        self.request_verdict()
+
+    def add_item(self, path: str, item: dict[str, Any]) -> int:
+        """Add an item (from a pane); Refused passes up to the pane."""
+        rev = self.data.add(self.survey_id, path, item, self.who)
+        self.survey = self.data.load(self.survey_id)
+        self.revision = rev
+        for pane in self.query(ItemPane).results():
+            pane.reload(keep_form=True)
+        self.fill_storeys()
+        self.show_title("✓ saved")
+        self.request_verdict()
+        return rev
+
+    def remove_item(self, path: str) -> int:
+        """Remove an item (kept in the log)."""
+        rev = self.data.remove(self.survey_id, path, self.who)
+        self.survey = self.data.load(self.survey_id)
+        self.revision = rev
+        self.fill_storeys()
+        self.show_title("✓ saved")
+        self.request_verdict()
+        return rev
+
+    def current_pane(self) -> Any:
+        """The pane of the tab in view."""
+        tab = self.query_one(TabbedContent).active
+        return self.query_one(f"#{tab}-pane")
+
+    def action_new(self) -> None:
+        """A new item in the tab in view (a storey on top in the storey tab)."""
+        pane = self.current_pane()
+        if isinstance(pane, ItemPane):
+            pane.edit(None)
+            return
+        labels = [s.label for s in self.survey.storeys]
+        top = self.survey.storeys[-1]
+        item = {"label": next_label(labels), "height_m": top.height_m}
+        try:
+            self.add_item("storeys", item)
+        except Refused as err:
+            self.notify(f"storey not added: {err}")
+            return
+        self.go_storey(len(self.survey.storeys) - 1)
+
+    def action_add_below(self) -> None:
+        """A basement storey below the lowest."""
+        labels = [s.label for s in self.survey.storeys]
+        n = 1
+        while f"B{n}" in labels:
+            n += 1
+        item = {"label": f"B{n}", "height_m": self.survey.storeys[0].height_m,
+                "below_grade": True}
+        try:
+            rev = self.data.add(self.survey_id, "storeys", item, self.who, index=0)
+        except Refused as err:
+            self.notify(f"storey not added: {err}")
+            return
+        self.survey = self.data.load(self.survey_id)
+        self.after_save(rev)
+        self.storey_index = 0
+        self.fill_storeys()
+        self.go_storey(0)
+
+    def action_remove(self) -> None:
+        """Remove the item being edited, or the storey in the storey tab."""
+        pane = self.current_pane()
+        if isinstance(pane, ItemPane):
+            pane.remove_selected()
+            return
+        if len(self.survey.storeys) == 1:
+            self.notify("a survey keeps at least one storey")
+            return
+        try:
+            self.remove_item(f"storeys[{self.storey_index}]")
+        except Refused as err:
+            self.notify(f"storey not removed: {err}")
+            return
+        self.go_storey(min(self.storey_index, len(self.survey.storeys) - 1))
+        self.notify("storey removed (ctrl+z undoes it)")
+
+    def action_undo(self) -> None:
+        """Undo the survey's last change."""
+        try:
+            change = self.data.undo(self.survey_id, self.who)
+        except Refused as err:
+            self.notify(f"cannot undo: {err}")
+            return
+        if change is None:
+            self.notify("nothing to undo")
+            return
+        self.survey = self.data.load(self.survey_id)
+        self.revision = self.data.revision(self.survey_id)
+        self.storey_index = min(self.storey_index, len(self.survey.storeys) - 1)
+        self.fill_storeys()
+        self.load_all()
+        self.show_title(f"undone: {change.op} {change.path}")
+        self.request_verdict()
+
+    # --- the verdict ---------------------------------------------------------------------
+
+    def request_verdict(self) -> None:
+        """Recompute the verdict off the UI thread."""
+        line = self.query_one(VerdictLine)
+        line.show(self.assessment, pending=True)
+        self.verdict_worker()
+
+    @work(thread=True, exclusive=True, group="verdict", exit_on_error=False)
+    def verdict_worker(self) -> Verdict:
+        """Assess in a thread; hand the result back to the UI thread."""
+        app: Any = self.app
+        v = compute_verdict(app.db_path, self.survey_id)
+        if not get_current_worker().is_cancelled:
+            app.call_from_thread(self.apply_verdict, v)
+        return v
+
+    def apply_verdict(self, v: Verdict) -> None:
+        """Draw a fresh verdict (ignored when a newer one is already shown)."""
+        if v.revision < self.assessed_revision:
+            return
+        self.assessed_revision = v.revision
+        self.survey = v.survey
+        self.assessment = v.assessment
+        self.query_one(VerdictLine).show(v.assessment, pending=v.revision < self.revision)
+        for pane in self.query(ItemPane).results():
+            pane.reload(keep_form=True)
+        self.query_one(StoreyPane).load(refill=False)
+        self._draw_side()
+
+    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
+        """A verdict that failed says so in the verdict line (never a traceback)."""
+        if event.worker.group == "verdict" and event.state == WorkerState.ERROR:
+            line = self.query_one(VerdictLine)
+            line.update(f"verdict not computed: {event.worker.error}\n"
+                        "indicative only: the engineer of record decides")
+
+    # --- other screens -------------------------------------------------------------------
+
+    def action_back(self) -> None:
+        """Back to the survey list."""
+        self.app.pop_screen()
+
+    def action_verdict(self) -> None:
+        """The full verdict."""
+        from triage.ui.screens.verdict import VerdictScreen
+
+        if self.assessment is not None:
+            self.app.push_screen(VerdictScreen(self.survey, self.assessment))
+
+    def action_history(self) -> None:
+        """The change log, with undo."""
+        from triage.ui.screens.history import HistoryScreen
+
+        def back(changed: bool | None) -> None:
+            if changed:
+                self.survey = self.data.load(self.survey_id)
+                self.revision = self.data.revision(self.survey_id)
+                self.storey_index = min(self.storey_index, len(self.survey.storeys) - 1)
+                self.fill_storeys()
+                self.load_all()
+                self.show_title("undone")
+                self.request_verdict()
+
+        self.app.push_screen(HistoryScreen(self.survey_id), back)
+
+    def action_report(self) -> None:
+        """Issue the report."""
+        from triage.ui.screens.report import ReportScreen
+
+        def back(done: bool | None) -> None:
+            self.survey = self.data.load(self.survey_id)
+            self.revision = self.data.revision(self.survey_id)
+            self.show_title()
+            self.load_all(keep_forms=True)
+
+        self.app.push_screen(ReportScreen(self.survey_id), back)

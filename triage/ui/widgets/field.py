@@ -1,0 +1,286 @@
+"""A labelled field that checks its value, asks to save it, and shows saved or the rule.
+
+`Field` (typed text and numbers), `Choice` (a pick from a list) and `Tick` (yes/no) share one
+pattern: when the value is accepted (Enter, leaving the field, or a pick) and differs from what
+was last saved, the widget posts `FieldAccepted`; the screen saves it through the store and
+calls `show_saved()` or `show_refused(rule)`. A refused value stays in the field, shown with the
+rule beside it, and nothing is saved.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+from textual.app import ComposeResult
+from textual.containers import Horizontal
+from textual.widgets import Checkbox, Input, Label, Select, Static
+
+from triage.ui.messages import NOT_SAVED, SAVED, FieldAccepted
+
+def no_blink(widget: Any) -> None:
+    """Stop a text cursor blinking when the app asks for it (tests and snapshots)."""
+    try:
+        if not getattr(widget.app, "blink", True):
+            widget.cursor_blink = False
+    except Exception:  # no app yet: blink stays as it is
+        pass
+
+
+def parse_value(text: str, kind: str, unit: str = "", required: bool = False) -> Any:
+    """The value of a field's text, or ValueError with the rule: empty means none."""
+    text = text.strip()
+    if not text:
+        if required:
+            raise ValueError("required")
+        return None
+    if kind == "text":
+        return text
+    try:
+        v: float = float(text.replace(",", "."))
+    except ValueError:
+        raise ValueError(f"must be a number{' in ' + unit if unit else ''}, "
+                         f"not {text!r}") from None
+    if not math.isfinite(v):
+        raise ValueError("must be a finite number")
+    if kind == "int":
+        if v != int(v):
+            raise ValueError("must be a whole number")
+        return int(v)
+    return v
+
+
+def show_text(value: Any) -> str:
+    """A value as a field shows it."""
+    if value is None:
+        return ""
+    if isinstance(value, float):
+        return f"{value:g}"
+    return str(value)
+
+
+class _Saving:
+    """The saved / refused status shared by the field widgets."""
+
+    status: Static
+
+    def show_saved(self, note: str = "") -> None:
+        """Mark the value as saved."""
+        self.status.update(SAVED + (f"  {note}" if note else ""))
+        self.status.set_class(False, "refused")
+        self.status.set_class(True, "saved")
+
+    def show_refused(self, rule: str) -> None:
+        """Show the rule the value broke; the value stays, unsaved."""
+        self.status.update(NOT_SAVED + rule)
+        self.status.set_class(True, "refused")
+        self.status.set_class(False, "saved")
+
+    def show_note(self, note: str) -> None:
+        """A neutral line beside the field (e.g. a computed drift)."""
+        self.status.update(note)
+        self.status.set_class(False, "refused")
+        self.status.set_class(False, "saved")
+
+    @property
+    def status_text(self) -> str:
+        """What the status beside the field says (for tests and the help screen)."""
+        return str(self.status.render())
+
+
+class Field(_Saving, Horizontal):
+    """A labelled text or number input."""
+
+    DEFAULT_CSS = """
+    Field { height: auto; width: 1fr; }
+    Field > Label { width: 15; }
+    Field > Input { width: 14; }
+    Field > .fstatus { width: 1fr; padding-left: 1; color: $text-muted; }
+    Field > .fstatus.refused { color: $accent; text-style: bold; }
+    """
+
+    def __init__(self, label: str, path: str | None, value: Any = None, *, kind: str = "text",
+                 unit: str = "", required: bool = False, width: int | None = None,
+                 placeholder: str = "", password: bool = False, id: str | None = None,
+                 classes: str | None = None) -> None:
+        super().__init__(id=id, classes=classes)
+        self.label_text = label
+        self.path = path
+        self.kind = kind
+        self.unit = unit
+        self.required = required
+        self.saved_text = show_text(value)
+        self._width = width
+        self.input = Input(self.saved_text, placeholder=placeholder or unit, compact=True,
+                           password=password, select_on_focus=False)
+        self.status = Static("", classes="fstatus")
+
+    def compose(self) -> ComposeResult:
+        """Label, input, status."""
+        yield Label(self.label_text)
+        yield self.input
+        yield self.status
+
+    def on_mount(self) -> None:
+        """Apply the width and the blink setting."""
+        if self._width:
+            self.input.styles.width = self._width
+        no_blink(self.input)
+
+    @property
+    def text(self) -> str:
+        """The text typed in the field."""
+        return self.input.value
+
+    def set_value(self, value: Any, saved: bool = True) -> None:
+        """Put a value in the field (as stored)."""
+        t = show_text(value)
+        self.input.value = t
+        if saved:
+            self.saved_text = t
+
+    def value(self) -> Any:
+        """The field's value; ValueError with the rule when it breaks the field's own rule."""
+        return parse_value(self.input.value, self.kind, self.unit, self.required)
+
+    def accept(self, force: bool = False) -> None:
+        """Check the typed value and, if it changed, ask to save it."""
+        if not force and self.input.value.strip() == self.saved_text.strip():
+            return
+        try:
+            v = self.value()
+        except ValueError as err:
+            self.show_refused(str(err))
+            return
+        self.post_message(FieldAccepted(self, self.path or "", v))
+
+    def mark_saved(self, note: str = "") -> None:
+        """The store took the value."""
+        self.saved_text = self.input.value
+        self.show_saved(note)
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        """Enter accepts the value."""
+        event.stop()
+        self.accept(force=self.path is None)
+
+    def on_input_blurred(self, event: Input.Blurred) -> None:
+        """Leaving the field accepts the value."""
+        event.stop()
+        if self.path is not None:
+            self.accept()
+
+    def focus_input(self) -> None:
+        """Put the cursor in the field."""
+        self.input.focus()
+
+
+class Choice(_Saving, Horizontal):
+    """A labelled pick from a list of (text, value)."""
+
+    DEFAULT_CSS = """
+    Choice { height: auto; width: 1fr; }
+    Choice > Label { width: 15; }
+    Choice > Select { width: 24; }
+    Choice > .fstatus { width: 1fr; padding-left: 1; color: $text-muted; }
+    Choice > .fstatus.refused { color: $accent; text-style: bold; }
+    """
+
+    def __init__(self, label: str, path: str | None, options: list[tuple[str, Any]],
+                 value: Any = None, *, allow_blank: bool = False, width: int | None = None,
+                 id: str | None = None, classes: str | None = None) -> None:
+        super().__init__(id=id, classes=classes)
+        self.label_text = label
+        self.path = path
+        self.saved_value = value
+        self._width = width
+        self.select: Select[Any] = Select(
+            options, value=value if value is not None else Select.NULL,
+            allow_blank=allow_blank or value is None, compact=True, prompt="—")
+        self.status = Static("", classes="fstatus")
+
+    def compose(self) -> ComposeResult:
+        """Label, pick, status."""
+        yield Label(self.label_text)
+        yield self.select
+        yield self.status
+
+    def on_mount(self) -> None:
+        """Apply the width."""
+        if self._width:
+            self.select.styles.width = self._width
+
+    def value(self) -> Any:
+        """The picked value, None when blank."""
+        v = self.select.value
+        return None if v is Select.NULL or isinstance(v, type(Select.NULL)) else v
+
+    def set_value(self, value: Any) -> None:
+        """Show a stored value without asking to save it."""
+        self.saved_value = value
+        self.select.value = value if value is not None else Select.NULL
+
+    def set_options(self, options: list[tuple[str, Any]], value: Any = None) -> None:
+        """Replace the choices."""
+        self.saved_value = value
+        self.select.set_options(options)
+        if value is not None:
+            self.select.value = value
+
+    def mark_saved(self, note: str = "") -> None:
+        """The store took the value."""
+        self.saved_value = self.value()
+        self.show_saved(note)
+
+    def on_select_changed(self, event: Select.Changed) -> None:
+        """A pick asks to be saved when it differs from the stored value."""
+        event.stop()
+        v = self.value()
+        if v == self.saved_value:
+            return
+        self.post_message(FieldAccepted(self, self.path or "", v))
+
+
+class Tick(_Saving, Horizontal):
+    """A labelled yes/no."""
+
+    DEFAULT_CSS = """
+    Tick { height: auto; width: 1fr; }
+    Tick > Checkbox { width: auto; }
+    Tick > .fstatus { width: 1fr; padding-left: 1; color: $text-muted; }
+    Tick > .fstatus.refused { color: $accent; text-style: bold; }
+    """
+
+    def __init__(self, label: str, path: str | None, value: bool = False, *,
+                 id: str | None = None, classes: str | None = None) -> None:
+        super().__init__(id=id, classes=classes)
+        self.path = path
+        self.saved_value = value
+        self.box = Checkbox(label, value, compact=True)
+        self.status = Static("", classes="fstatus")
+
+    def compose(self) -> ComposeResult:
+        """Box, status."""
+        yield self.box
+        yield self.status
+
+    def value(self) -> bool:
+        """Ticked or not."""
+        return bool(self.box.value)
+
+    def set_value(self, value: bool) -> None:
+        """Show a stored value without asking to save it."""
+        self.saved_value = value
+        self.box.value = value
+
+    def mark_saved(self, note: str = "") -> None:
+        """The store took the value."""
+        self.saved_value = self.value()
+        self.show_saved(note)
+
+    def on_checkbox_changed(self, event: Checkbox.Changed) -> None:
+        """A change asks to be saved."""
+        event.stop()
+        if self.value() == self.saved_value:
+            return
+        self.post_message(FieldAccepted(self, self.path or "", self.value()))

@@ -1,0 +1,90 @@
+"""Hazards of the building, from the forms' check list, with height for the keep-out zone."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from textual.app import ComposeResult
+
+from triage.assess import tier_words
+from triage.ui.data import hazard_choices
+from triage.ui.widgets.field import Choice, Field
+from triage.ui.widgets.pane import ItemPane, values_of
+
+KEYS = ["kind", "where", "storey", "height_above_ground_m", "note"]
+
+
+class HazardsPane(ItemPane):
+    """The hazards of the survey (any time, whatever storey is in view)."""
+
+    noun = "hazard"
+    columns = (("#", 3), ("kind", 18), ("where", 14), ("storey", 6), ("height", 6),
+               ("keep-out", 8), ("at least", 11))
+
+    def list_path(self) -> str:
+        """Hazards belong to the survey."""
+        return "hazards"
+
+    def items(self) -> list[Any]:
+        """The survey's hazards."""
+        return list(self.survey_screen.survey.hazards)
+
+    def heading(self) -> str:
+        """What the list is."""
+        return "Hazards (check list from the forms of the building's systems)"
+
+    def row(self, index: int, item: Any) -> tuple[str, ...]:
+        """One hazard with its keep-out distance as assessed."""
+        a = self.survey_screen.assessment
+        res = None
+        if a is not None:
+            res = next((h for h in a.hazards if h.index == index), None)
+        keep = "" if res is None or res.keep_out_m is None else f"{res.keep_out_m:g} m"
+        return (str(index + 1), item.kind, item.where or "", item.storey or "",
+                "" if item.height_above_ground_m is None else f"{item.height_above_ground_m:g}",
+                keep, "" if res is None else tier_words(res.tier))
+
+    def _options(self) -> list[tuple[str, str]]:
+        s = self.survey_screen.survey
+        return [(f"{group}: {key} — {hint}", key)
+                for group, key, hint in hazard_choices((s.building.system.x,
+                                                        s.building.system.y))]
+
+    def _storeys(self) -> list[tuple[str, str]]:
+        return [(st.label, st.label) for st in self.survey_screen.survey.storeys]
+
+    def form_widgets(self) -> ComposeResult:
+        """Kind, where, storey, height, note."""
+        opts = self._options()
+        w: list[Any] = [
+            Choice("kind", None, opts, opts[0][1] if opts else None, id="h-kind", width=54),
+            Field("where", None, id="h-where", width=30, placeholder="e.g. north parapet"),
+            Choice("storey", None, self._storeys(), None, allow_blank=True, id="h-storey"),
+            Field("height", None, kind="float", unit="m", id="h-height",
+                  placeholder="above ground"),
+            Field("note", None, id="h-note", width=40),
+        ]
+        for widget, k in zip(w, KEYS, strict=True):
+            widget.key = k
+        yield from w
+
+    def fill(self, item: Any | None) -> None:
+        """A hazard's values, or a new one."""
+        self.form["storey"].set_options(self._storeys(),
+                                        None if item is None else item.storey)
+        if item is None:
+            for k in ("where", "height_above_ground_m", "note"):
+                self.form[k].set_value(None)
+            self.form["storey"].set_value(None)
+        else:
+            for k in KEYS:
+                self.form[k].set_value(getattr(item, k))
+        self.note.update("keep-out: a falling hazard's zone is at least as wide as it is "
+                         "high; give its height above ground")
+
+    def build_item(self) -> dict[str, Any]:
+        """The hazard from the form."""
+        data = values_of(self.form, KEYS)
+        if "kind" not in data:
+            raise ValueError("kind: pick what the hazard is")
+        return data

@@ -1,0 +1,234 @@
+"""Member groups of a storey: kind, count, what was seen; class and eta shown at once."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from textual.app import ComposeResult
+from textual.containers import Horizontal
+from textual.widgets import Label, SelectionList, Static
+
+from triage.standards import CLASSES
+from triage.ui.data import class_texts, member_kinds, sign_choices
+from triage.ui.messages import FieldAccepted
+from triage.ui.widgets.field import Choice, Field, _Saving
+from triage.ui.widgets.pane import ItemPane, values_of
+
+KEYS = ["kind", "count", "ductility", "crack_mm", "crack_sd_mm", "ref", "dir",
+        "override_reason", "damage_class"]
+
+
+class SignChecks(_Saving, Horizontal):
+    """The signs check list for a member kind (from the forms of the storey's systems)."""
+
+    DEFAULT_CSS = """
+    SignChecks { height: auto; width: 1fr; }
+    SignChecks > Label { width: 15; }
+    SignChecks > SelectionList { width: 1fr; height: auto; max-height: 8; }
+    SignChecks > .fstatus { width: 16; padding-left: 1; color: $text-muted; }
+    SignChecks > .fstatus.refused { color: $accent; text-style: bold; width: 30; }
+    """
+
+    def __init__(self, id: str | None = None) -> None:
+        super().__init__(id=id)
+        self.path: str | None = None
+        self.saved_value: list[str] = []
+        self.checks: SelectionList[str] = SelectionList(compact=True)
+        self.status = Static("", classes="fstatus")
+        self._quiet = 0
+
+    def compose(self) -> ComposeResult:
+        """Label, list, status."""
+        yield Label("signs seen")
+        yield self.checks
+        yield self.status
+
+    def set_choices(self, choices: list[tuple[str, str]], selected: list[str]) -> None:
+        """Offer these signs, ticking the ones given."""
+        self.saved_value = list(selected)
+        self._quiet += 1
+        self.checks.clear_options()
+        keys = [k for k, _ in choices]
+        extra = [(s, "not on this kind's form") for s in selected if s not in keys]
+        for key, hint in choices + extra:
+            self.checks.add_option((f"{key}: {hint}", key, key in selected))
+        self.call_after_refresh(self._unquiet)
+
+    def _unquiet(self) -> None:
+        self._quiet = max(0, self._quiet - 1)
+
+    def value(self) -> list[str]:
+        """The ticked signs, in list order."""
+        return [str(v) for v in self.checks.selected]
+
+    def set_value(self, value: Any) -> None:
+        """Tick the given signs (kept choices)."""
+        self.saved_value = list(value or [])
+
+    def mark_saved(self, note: str = "") -> None:
+        """The store took the signs."""
+        self.saved_value = self.value()
+        self.show_saved(note)
+
+    def on_selection_list_selected_changed(self, event: SelectionList.SelectedChanged) -> None:
+        """Ticking a sign asks to save the list."""
+        event.stop()
+        if self._quiet:
+            return
+        v = self.value()
+        if sorted(v) == sorted(self.saved_value):
+            return
+        self.post_message(FieldAccepted(self, self.path or "", v))
+
+
+class MembersPane(ItemPane):
+    """The member groups of the storey in view."""
+
+    noun = "member group"
+    columns = (("#", 3), ("ref", 5), ("kind", 10), ("count", 5), ("crack", 6), ("signs", 5),
+               ("class", 5), ("eta", 5), ("from", 8))
+
+    def list_path(self) -> str:
+        """E.g. storeys[1].members."""
+        return f"storeys[{self.survey_screen.storey_index}].members"
+
+    def items(self) -> list[Any]:
+        """The storey's member groups."""
+        st = self.survey_screen.storey
+        return list(st.members) if st is not None else []
+
+    def systems(self) -> tuple[str, ...]:
+        """The building's systems (both directions)."""
+        s = self.survey_screen.survey
+        return (s.building.system.x, s.building.system.y)
+
+    def result(self, index: int) -> Any | None:
+        """The assessed class and eta of a group."""
+        scr = self.survey_screen
+        a, st = scr.assessment, scr.storey
+        if a is None or st is None:
+            return None
+        try:
+            rows = a.storey(st.label).members
+        except KeyError:
+            return None
+        return next((m for m in rows if m.index == index), None)
+
+    def heading(self) -> str:
+        """What to count, from the form."""
+        st = self.survey_screen.storey
+        if st is None:
+            return ""
+        total = sum(m.count for m in st.members)
+        return (f"Member groups, storey {st.label} · {total} members in {len(st.members)} "
+                "groups (the storey's sound members are one group)")
+
+    def row(self, index: int, item: Any) -> tuple[str, ...]:
+        """One group, with its assessed class and eta."""
+        res = self.result(index)
+        cls = "—" if res is None else (res.damage_class or "none")
+        eta = "—" if res is None or res.eta is None else f"{res.eta:g}"
+        frm = "" if res is None or res.class_from is None else res.class_from
+        return (str(index + 1), item.ref or "", item.kind, str(item.count),
+                "" if not item.crack_mm else f"{item.crack_mm:g}", str(len(item.signs)) or "",
+                cls, eta, frm)
+
+    def form_widgets(self) -> ComposeResult:
+        """Kind, count, ductility, crack, ref, direction, signs, class set by hand."""
+        kinds = [(k, k) for k in member_kinds(self.systems())]
+        w: list[Any] = [
+            Choice("kind", None, kinds, "column", id="m-kind"),
+            Field("count", None, 1, kind="int", id="m-count"),
+            Choice("ductility", None, [("ductile", "ductile"),
+                                       ("brittle (short, shear)", "brittle")], "ductile",
+                   id="m-ductility"),
+            Field("widest crack", None, kind="float", unit="mm", id="m-crack",
+                  placeholder="none"),
+            Field("crack uncert.", None, kind="float", unit="mm", id="m-crack-sd",
+                  placeholder="default"),
+            Field("ref", None, id="m-ref", placeholder="e.g. C3"),
+            Choice("acts in", None, [("x", "x"), ("y", "y")], None, allow_blank=True,
+                   id="m-dir"),
+        ]
+        for widget, k in zip(w, KEYS[:7], strict=True):
+            widget.key = k
+        yield from w
+        self.signs = SignChecks(id="m-signs")
+        self.signs.key = "signs"  # type: ignore[attr-defined]
+        yield self.signs
+        reason = Field("override why", None, id="m-reason", width=34,
+                       placeholder="reason, before the class")
+        reason.key = "override_reason"  # type: ignore[attr-defined]
+        yield reason
+        cls = Choice("class by hand", None, [(c, c) for c in CLASSES], None, allow_blank=True,
+                     id="m-class")
+        cls.key = "damage_class"  # type: ignore[attr-defined]
+        yield cls
+        self.class_line = Static("", classes="pane-note")
+        yield self.class_line
+
+    def fill(self, item: Any | None) -> None:
+        """A group's values, or a new group."""
+        if item is None:
+            for k in ("crack_mm", "crack_sd_mm", "ref", "override_reason"):
+                self.form[k].set_value(None)
+            self.form["count"].set_value(1)
+            self.form["dir"].set_value(None)
+            self.form["damage_class"].set_value(None)
+            self.form["ductility"].set_value("ductile")
+            kind = self.form["kind"].value() or "column"
+            self.form["kind"].set_value(kind)
+            selected: list[str] = []
+        else:
+            for k in KEYS:
+                self.form[k].set_value(getattr(item, k))
+            kind, selected = item.kind, list(item.signs)
+        self.signs.set_choices(sign_choices(self.systems(), kind), selected)
+        self.show_class()
+
+    def show_class(self) -> None:
+        """The assessed class and eta of the group in the form, and what it looks like."""
+        if self.editing is None:
+            self.class_line.update("class and eta are shown once the group is added")
+            return
+        res = self.result(self.editing)
+        if res is None:
+            self.class_line.update("class: working it out …")
+            return
+        cls = res.damage_class or "none (undamaged)"
+        eta = "—" if res.eta is None else f"{res.eta:g}"
+        look = class_texts(self.systems()).get(res.damage_class or "", "")
+        self.class_line.update(f"class {cls}" + (f" from {res.class_from}" if res.class_from
+                                                 else "") + f" · eta {eta}"
+                               + (f" · {look}" if look else ""))
+
+    def reload(self, keep_form: bool = False) -> None:
+        """Table and class line."""
+        super().reload(keep_form)
+        self.show_class()
+
+    def form_changed(self, widget: Any) -> None:
+        """A new kind offers its own signs."""
+        if widget is self.form["kind"]:
+            self.signs.set_choices(sign_choices(self.systems(), widget.value() or "column"),
+                                   [s for s in self.signs.value()])
+
+    def on_field_accepted(self, event: FieldAccepted) -> None:
+        """Kind changed in edit mode: offer its signs too (the save goes on up)."""
+        if self.editing is not None and event.field is self.form["kind"]:
+            self.signs.set_choices(sign_choices(self.systems(), event.value or "column"),
+                                   self.signs.value())
+        if self.editing is None and event.field is self.signs:
+            event.stop()
+            return
+        super().on_field_accepted(event)
+
+    def build_item(self) -> dict[str, Any]:
+        """The group from the form."""
+        data = values_of(self.form, KEYS)
+        if "count" not in data:
+            raise ValueError("count: how many members the group holds is needed")
+        signs = self.signs.value()
+        if signs:
+            data["signs"] = signs
+        return data

@@ -1,0 +1,232 @@
+"""A list of items (readings, member groups, hazards, photos) with a form beside it.
+
+The form works in two modes. *New*: the fields gather a new item; Enter in any field adds it
+when what it needs is there (one durable add through the store). *Edit* (a row picked with
+Enter or a click): each field is saved on its own the moment it is accepted, through the
+screen's `FieldAccepted` handler. Either way a refused value is shown with its rule beside the
+field and nothing is written.
+"""
+
+from __future__ import annotations
+
+import re
+from typing import Any
+
+from textual.app import ComposeResult
+from textual.containers import VerticalScroll
+from textual.widgets import DataTable, Static
+
+from triage.ui.data import Refused, rule_of
+from triage.ui.messages import FieldAccepted
+from triage.ui.widgets.field import Choice, Field, Tick
+
+FIELD_KEY = re.compile(r"\.(\w+)(?:\[\d+\])?:")
+
+
+class ItemPane(VerticalScroll):
+    """Base of the panes holding a table of items and the form of one."""
+
+    DEFAULT_CSS = """
+    ItemPane { height: 1fr; padding: 0 1; }
+    ItemPane > DataTable { height: auto; max-height: 8; margin-bottom: 0; }
+    ItemPane > .form-title { height: 1; text-style: bold; color: $accent; margin-top: 1; }
+    ItemPane > .pane-note { height: auto; color: $text-muted; }
+    ItemPane > .pane-head { height: auto; }
+    """
+
+    noun = "item"
+    columns: tuple[tuple[str, int], ...] = ()
+
+    def __init__(self, id: str | None = None) -> None:
+        super().__init__(id=id)
+        self.editing: int | None = None
+        self.form: dict[str, Any] = {}
+        self.table: DataTable[str] = DataTable(cursor_type="row", zebra_stripes=True)
+        self.head = Static("", classes="pane-head")
+        self.form_title = Static("", classes="form-title")
+        self.note = Static("", classes="pane-note")
+
+    # --- what a subclass provides ------------------------------------------------------------
+
+    def list_path(self) -> str:
+        """The survey path of the list this pane edits, e.g. 'storeys[1].readings'."""
+        raise NotImplementedError
+
+    def items(self) -> list[Any]:
+        """The items of the list in the survey as loaded."""
+        raise NotImplementedError
+
+    def row(self, index: int, item: Any) -> tuple[str, ...]:
+        """A table row for an item."""
+        raise NotImplementedError
+
+    def form_widgets(self) -> ComposeResult:
+        """The form's fields; each gets a `key` attribute, its JSON key."""
+        raise NotImplementedError
+
+    def fill(self, item: Any | None) -> None:
+        """Put an item's values (or the defaults of a new one) in the form."""
+        raise NotImplementedError
+
+    def build_item(self) -> dict[str, Any]:
+        """The new item from the form; ValueError('key: rule') when a field breaks a rule."""
+        raise NotImplementedError
+
+    def after_add(self) -> None:
+        """Clear what is particular to one item, keep what the next one shares."""
+        self.fill(None)
+
+    def heading(self) -> str:
+        """The line above the table."""
+        return ""
+
+    def form_changed(self, widget: Any) -> None:
+        """A pick in the form changed (new mode)."""
+
+    # --- the mechanics -------------------------------------------------------------------
+
+    @property
+    def survey_screen(self) -> Any:
+        """The survey screen this pane lives on."""
+        return self.screen
+
+    def compose(self) -> ComposeResult:
+        """Heading, table, form."""
+        yield self.head
+        yield self.table
+        yield self.form_title
+        for w in self.form_widgets():
+            key = getattr(w, "key", None)
+            if key:
+                self.form[key] = w
+            yield w
+        yield self.note
+
+    def on_mount(self) -> None:
+        """Columns of the table."""
+        for name, width in self.columns:
+            self.table.add_column(name, width=width)
+
+    def reload(self, keep_form: bool = False) -> None:
+        """Redraw the table from the survey; refill the form unless the user is in it."""
+        self.head.update(self.heading())
+        self.table.clear()
+        items = self.items()
+        for i, it in enumerate(items):
+            self.table.add_row(*self.row(i, it), key=str(i))
+        if self.editing is not None and self.editing >= len(items):
+            self.editing = None
+        if self.editing is not None:
+            self.table.move_cursor(row=self.editing)
+        if not keep_form:
+            self.show_form()
+
+    def show_form(self) -> None:
+        """Fill the form for the item being edited, or a new one."""
+        items = self.items()
+        item = items[self.editing] if self.editing is not None else None
+        self.fill(item)
+        self._set_paths()
+        for w in self.form.values():
+            if hasattr(w, "show_note"):
+                w.show_note("")
+        if self.editing is None:
+            self.form_title.update(f"new {self.noun}: Enter adds it")
+        else:
+            self.form_title.update(f"{self.noun} {self.editing + 1}: each field saves as "
+                                   f"accepted · ctrl+n new {self.noun} · ctrl+r removes it")
+
+    def _set_paths(self) -> None:
+        base = f"{self.list_path()}[{self.editing}]" if self.editing is not None else None
+        for key, w in self.form.items():
+            w.path = f"{base}.{key}" if base is not None else None
+
+    def edit(self, index: int | None) -> None:
+        """Switch the form to an existing item, or to a new one."""
+        self.editing = index
+        self.show_form()
+        first = next(iter(self.form.values()), None)
+        if isinstance(first, Field):
+            first.focus_input()
+        elif first is not None:
+            first.children[1].focus() if len(first.children) > 1 else None
+
+    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
+        """Enter or a click on a row edits that item."""
+        event.stop()
+        if event.row_key.value is not None:
+            self.edit(int(event.row_key.value))
+
+    def on_field_accepted(self, event: FieldAccepted) -> None:
+        """In new mode, gather; Enter in a text field adds the item. In edit mode, the
+        screen saves the field (the message goes on up)."""
+        if self.editing is not None:
+            return
+        event.stop()
+        if isinstance(event.field, (Choice, Tick)):
+            self.form_changed(event.field)
+            return
+        self.add_item()
+
+    def show_error(self, message: str) -> None:
+        """Put a refusal beside the field it names, or under the form."""
+        m = FIELD_KEY.search(message + ":") if ":" in message else None
+        key = m.group(1) if m else None
+        if key is None:
+            head = message.partition(":")[0]
+            key = head.rsplit(".", 1)[-1] if "." in head or head in self.form else None
+        w = self.form.get(key or "")
+        if w is not None:
+            w.show_refused(rule_of(message))
+            self.note.update("")
+        else:
+            self.note.update(f"not saved: {message}")
+
+    def add_item(self) -> None:
+        """Add the new item through the store."""
+        scr = self.survey_screen
+        try:
+            item = self.build_item()
+        except ValueError as err:
+            self.show_error(str(err))
+            return
+        try:
+            scr.add_item(self.list_path(), item)
+        except Refused as err:
+            self.show_error(str(err))
+            return
+        n = len(self.items())
+        self.note.update(f"✓ saved: {self.noun} {n} added")
+        self.after_add()
+        for w in self.form.values():
+            if hasattr(w, "show_note") and w.status_text.startswith("✗"):
+                w.show_note("")
+
+    def remove_selected(self) -> None:
+        """Remove the item being edited (kept in the change log; ctrl+z brings it back)."""
+        if self.editing is None:
+            self.note.update(f"pick a {self.noun} in the table first (Enter or a click)")
+            return
+        idx = self.editing
+        try:
+            self.survey_screen.remove_item(f"{self.list_path()}[{idx}]")
+        except Refused as err:
+            self.note.update(f"not removed: {err}")
+            return
+        self.editing = None
+        self.reload()
+        self.note.update(f"✓ saved: {self.noun} {idx + 1} removed (ctrl+z undoes it)")
+
+
+def values_of(form: dict[str, Any], keys: list[str]) -> dict[str, Any]:
+    """The non-empty values of some form fields; ValueError('key: rule') on a broken one."""
+    out: dict[str, Any] = {}
+    for k in keys:
+        w = form[k]
+        try:
+            v = w.value()
+        except ValueError as err:
+            raise ValueError(f"{k}: {err}") from None
+        if v is not None and v != "":
+            out[k] = v
+    return out

@@ -1,0 +1,168 @@
+"""Readings of a storey: offset over a gauge or a tilt, each one's drift ratio shown at once."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from pydantic import ValidationError
+from textual.app import ComposeResult
+from textual.widgets import Input
+
+from triage.assess.drift import pct
+from triage.model import Reading, error_lines
+from triage.ui.widgets.field import Choice, Field, show_text
+from triage.ui.widgets.pane import ItemPane, values_of
+from triage.ui.widgets.verdict import storey_drift_text
+
+OFFSET_KEYS = ["dir", "offset_mm", "gauge_mm", "sd_mm", "where"]
+TILT_KEYS = ["dir", "tilt_deg", "sd_deg", "where"]
+
+
+def reading_text(r: Reading) -> str:
+    """How a reading was taken, in a few characters."""
+    if r.tilt_deg is not None:
+        return f"tilt {r.tilt_deg:g}°"
+    return f"{show_text(r.offset_mm)} / {show_text(r.gauge_mm)} mm"
+
+
+class ReadingsPane(ItemPane):
+    """The readings of the storey in view."""
+
+    noun = "reading"
+    columns = (("#", 3), ("dir", 3), ("offset / gauge", 16), ("sd", 6), ("where", 16),
+               ("drift", 7))
+
+    def list_path(self) -> str:
+        """E.g. storeys[1].readings."""
+        return f"storeys[{self.survey_screen.storey_index}].readings"
+
+    def items(self) -> list[Any]:
+        """The storey's readings."""
+        st = self.survey_screen.storey
+        return list(st.readings) if st is not None else []
+
+    def heading(self) -> str:
+        """The storey's drift as assessed."""
+        scr = self.survey_screen
+        a = scr.assessment
+        st = scr.storey
+        if st is None:
+            return ""
+        drift = storey_drift_text(a, st.label) if a is not None else "drift: working it out"
+        return f"Readings, storey {st.label} · {drift}"
+
+    def row(self, index: int, item: Any) -> tuple[str, ...]:
+        """#, dir, value, sd, where, drift."""
+        sd = item.sd_deg if item.tilt_deg is not None else item.sd_mm
+        unit = "°" if item.tilt_deg is not None else ""
+        return (str(index + 1), item.dir, reading_text(item),
+                "default" if sd is None else f"{sd:g}{unit}", item.where or "",
+                pct(item.drift_ratio()))
+
+    def form_widgets(self) -> ComposeResult:
+        """Direction, how taken, the values, where."""
+        d = Choice("direction", None, [("x", "x"), ("y", "y")], "x", id="r-dir")
+        by = Choice("taken as", None, [("offset over a gauge", "offset"),
+                                       ("tilt angle", "tilt")], "offset", id="r-by")
+        off = Field("offset", None, kind="float", unit="mm", id="r-offset")
+        gauge = Field("gauge length", None, kind="float", unit="mm", id="r-gauge")
+        sd = Field("uncertainty", None, kind="float", unit="mm", id="r-sd",
+                   placeholder="default")
+        tilt = Field("tilt", None, kind="float", unit="deg", id="r-tilt")
+        sd_deg = Field("uncertainty", None, kind="float", unit="deg", id="r-sd-deg",
+                       placeholder="default")
+        where = Field("where", None, id="r-where", width=30, placeholder="e.g. grid B2")
+        for w, k in ((d, "dir"), (off, "offset_mm"), (gauge, "gauge_mm"), (sd, "sd_mm"),
+                     (tilt, "tilt_deg"), (sd_deg, "sd_deg"), (where, "where")):
+            w.key = k  # type: ignore[attr-defined]
+        by.key = ""  # type: ignore[attr-defined]
+        self.by = by
+        yield d
+        yield by
+        yield off
+        yield gauge
+        yield sd
+        yield tilt
+        yield sd_deg
+        yield where
+
+    def _tilt(self) -> bool:
+        return bool(self.by.value() == "tilt")
+
+    def _show_kind(self) -> None:
+        tilt = self._tilt()
+        for k in ("offset_mm", "gauge_mm", "sd_mm"):
+            self.form[k].display = not tilt
+        for k in ("tilt_deg", "sd_deg"):
+            self.form[k].display = tilt
+        self.by.select.disabled = self.editing is not None
+
+    def fill(self, item: Any | None) -> None:
+        """A reading's values, or a new one with the last gauge remembered."""
+        app: Any = self.app
+        if item is None:
+            keep_dir = self.form["dir"].value() or "x"
+            self.form["dir"].set_value(keep_dir)
+            for k in ("offset_mm", "tilt_deg", "where"):
+                self.form[k].set_value(None)
+            gauge = app.data.setting("last_gauge_mm")
+            self.form["gauge_mm"].set_value(float(gauge) if gauge else None)
+            self.form["sd_mm"].set_value(app.data.setting("last_sd_mm"))
+            self.form["sd_deg"].set_value(app.data.setting("last_sd_deg"))
+        else:
+            self.by.set_value("tilt" if item.tilt_deg is not None else "offset")
+            for k in ("dir", "offset_mm", "gauge_mm", "sd_mm", "tilt_deg", "sd_deg", "where"):
+                self.form[k].set_value(getattr(item, k))
+        self._show_kind()
+        self.preview()
+
+    def form_changed(self, widget: Any) -> None:
+        """Offset or tilt picked."""
+        self._show_kind()
+        self.preview()
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        """The drift ratio as the numbers are typed."""
+        self.preview()
+
+    def preview(self) -> None:
+        """Show the drift ratio of what is in the form."""
+        try:
+            data = values_of(self.form, TILT_KEYS if self._tilt() else OFFSET_KEYS)
+        except ValueError:
+            self.note.update("drift: —")
+            return
+        try:
+            r = Reading.model_validate(data)
+        except ValidationError as err:
+            need = "tilt" if self._tilt() else "offset and gauge length"
+            lines = error_lines(err)
+            self.note.update(f"drift: — ({lines[0] if 'needs' not in lines[0] else 'needs '+need})")
+            return
+        self.note.update(f"drift ratio {pct(r.drift_ratio())} ({r.dir})")
+
+    def build_item(self) -> dict[str, Any]:
+        """The reading from the form."""
+        data = values_of(self.form, TILT_KEYS if self._tilt() else OFFSET_KEYS)
+        if self._tilt():
+            if "tilt_deg" not in data:
+                raise ValueError("tilt_deg: needed for a tilt reading")
+        else:
+            for k, name in (("offset_mm", "offset"), ("gauge_mm", "gauge length")):
+                if k not in data:
+                    raise ValueError(f"{k}: the {name} is needed for an offset reading")
+        return data
+
+    def after_add(self) -> None:
+        """Keep direction, gauge and uncertainty for the next reading; remember them."""
+        app: Any = self.app
+        for k, setting in (("gauge_mm", "last_gauge_mm"), ("sd_mm", "last_sd_mm"),
+                           ("sd_deg", "last_sd_deg")):
+            try:
+                v = self.form[k].value()
+            except ValueError:
+                v = None
+            if v is not None:
+                app.data.remember(setting, v)
+        self.fill(None)
+        (self.form["tilt_deg"] if self._tilt() else self.form["offset_mm"]).focus_input()

@@ -16,7 +16,8 @@ from collections.abc import Sequence
 from .errors import UserError
 
 # Command modules, in the order `triage --help` lists them.
-MODULES = ("assess_cmd", "store_cmd", "report_cmd", "area_cmd", "form_cmd", "ui_cmd")
+MODULES = ("assess_cmd", "store_cmd", "report_cmd", "area_cmd", "gather_cmd", "form_cmd",
+           "ui_cmd")
 
 
 class _Parser(argparse.ArgumentParser):

@@ -12,12 +12,6 @@ def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-ar
     p = sub.add_parser("compare", help="what changed between two surveys of one building")
     p.add_argument("rest", nargs=argparse.REMAINDER)
     p.set_defaults(func=run)
-    p = sub.add_parser("merge", help="gather several inspectors' databases into one")
-    p.add_argument("rest", nargs=argparse.REMAINDER)
-    p.set_defaults(func=run)
-    p = sub.add_parser("summary", help="one row per building: latest tier, level, where")
-    p.add_argument("rest", nargs=argparse.REMAINDER)
-    p.set_defaults(func=run)
 
 
 def run(args: argparse.Namespace) -> int:

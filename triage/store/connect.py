@@ -26,10 +26,15 @@ class SurveyConflict(StoreError):
     """A different survey under an id already stored; the stored one is untouched."""
 
 
-def uri(path: Path, mode: str | None = None) -> str:
-    """The `file:` URI of a path (percent-encoded), optionally with `?mode=`."""
+def uri(path: Path, mode: str | None = None, *, immutable: bool = False) -> str:
+    """The `file:` URI of a path (percent-encoded), optionally with `?mode=`.
+
+    `immutable` tells SQLite the file cannot change, so it opens no -shm or -wal beside it
+    (only right for a file no one is writing and with no -wal of its own).
+    """
     u = path.resolve().as_uri()
-    return u + (f"?mode={mode}" if mode else "")
+    params = ([f"mode={mode}"] if mode else []) + (["immutable=1"] if immutable else [])
+    return u + ("?" + "&".join(params) if params else "")
 
 
 def set_pragmas(conn: sqlite3.Connection) -> None:
@@ -39,9 +44,11 @@ def set_pragmas(conn: sqlite3.Connection) -> None:
     conn.execute("PRAGMA synchronous = FULL")
 
 
-def connect(path: Path, *, read_only: bool = False) -> sqlite3.Connection:
+def connect(path: Path, *, read_only: bool = False,
+            immutable: bool = False) -> sqlite3.Connection:
     """A connection in autocommit mode (writes begin explicitly), pragmas set."""
-    conn = sqlite3.connect(uri(path, "ro" if read_only else "rwc"), uri=True,
+    conn = sqlite3.connect(uri(path, "ro" if read_only else "rwc", immutable=immutable),
+                           uri=True,
                            isolation_level=None, timeout=BUSY_TIMEOUT_MS / 1000)
     set_pragmas(conn)
     return conn
@@ -91,7 +98,7 @@ def explain(err: sqlite3.Error, path: Path) -> StoreError:
     return StoreError(f"{path}: database error: {err}")
 
 
-def check_file(path: Path) -> int:
+def check_file(path: Path, *, immutable: bool = False) -> int:
     """Check an existing database file without writing to it; return its schema version.
 
     0 for a file that does not exist or is empty (a new database). Raise `StoreError` naming
@@ -125,7 +132,7 @@ def check_file(path: Path) -> int:
         raise StoreError(f"{path}: truncated database ({size} of {pages * page_size} bytes); "
                          "it was left as it is; restore it from a backup (triage backup)")
     try:
-        conn = connect(path, read_only=True)
+        conn = connect(path, read_only=True, immutable=immutable)
     except sqlite3.Error as err:
         raise explain(err, path) from None
     try:

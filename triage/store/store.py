@@ -131,8 +131,9 @@ _ROW_SQL = """
 SELECT s.id, s.building_id, s.building, s.address, s.lat, s.lon, s.inspector, s.at,
        s.tier, s.level, s.gov_storey, s.gov_dir, s.gov_basis, s.provisional, s.revision,
        s.assessed_revision, s.hidden, s.source, s.conflict_of,
-       (s.conflict_of IS NOT NULL
-        OR EXISTS (SELECT 1 FROM surveys c WHERE c.conflict_of = s.id)) AS conflict,
+       (EXISTS (SELECT 1 FROM surveys o WHERE o.id = s.conflict_of AND o.hidden = 0)
+        OR EXISTS (SELECT 1 FROM surveys c WHERE c.conflict_of = s.id AND c.hidden = 0))
+         AS conflict,
        (SELECT max(r.revision) FROM reports r WHERE r.survey_id = s.id) AS reported
 FROM surveys s
 """
@@ -213,6 +214,10 @@ class Store:
         """The id this database was given when it was created."""
         row = self.conn.execute("SELECT value FROM meta WHERE key = 'db_id'").fetchone()
         return str(row[0])
+
+    def forget_cache(self) -> None:
+        """Drop the survey JSON kept between edits (after writes not made through `_edit`)."""
+        self._docs.clear()
 
     def _write(self) -> Any:
         return immediate(self.conn, self.path)

@@ -1,0 +1,163 @@
+"""Commands: merge (gather inspectors' databases into one) and summary (the area picture)."""
+
+from __future__ import annotations
+
+import argparse
+import csv
+import io
+import json
+import sys
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+from .errors import UserError
+
+if TYPE_CHECKING:
+    from triage.store.area import BuildingRow
+
+
+def add_parser(sub: argparse._SubParsersAction) -> None:
+    """Register `merge` and `summary`."""
+    p = sub.add_parser("merge", help="gather several inspectors' databases into one")
+    p.add_argument("sources", nargs="+", metavar="DB", help="databases to read (never changed)")
+    p.add_argument("--into", required=True, metavar="DB", help="the database to gather into")
+    p.set_defaults(func=run_merge)
+    p = sub.add_parser("summary", help="one row per building: latest tier, level, where")
+    p.add_argument("--format", choices=("text", "csv", "geojson"), default="text")
+    p.set_defaults(func=run_summary)
+
+
+def run_merge(args: argparse.Namespace) -> int:
+    """Merge each source into the target; a refused source is named and skipped."""
+    from triage.store import Store, StoreError
+    from triage.store.merge import merge_into
+
+    try:
+        st = Store.open(args.into, create=True)
+    except StoreError as err:
+        raise UserError(str(err)) from None
+    try:
+        try:
+            results = merge_into(st, [Path(s) for s in args.sources])
+        except StoreError as err:
+            raise UserError(str(err)) from None
+    finally:
+        st.close()
+    failed = 0
+    for r in results:
+        if r.skipped:
+            failed += 1
+            sys.stderr.write(f"triage merge: {r.source}: {r.skipped}; skipped\n")
+            continue
+        kept = (f", {r.conflicts} edited differently here and there (both versions kept, "
+                "flagged as conflict)") if r.conflicts else ""
+        sys.stdout.write(f"merged {r.source}: {r.added} added, {r.updated} brought up to "
+                         f"date, {r.unchanged} unchanged{kept}\n")
+    return 1 if failed else 0
+
+
+def _words(tier: str | None) -> str:
+    from triage.assess import tier_words
+
+    return tier_words(tier) if tier else "not assessed"
+
+
+def _yes(v: bool | None) -> str:
+    return "—" if v is None else ("yes" if v else "no")
+
+
+def _cut(text: str, n: int) -> str:
+    return text if len(text) <= n else text[: n - 1] + "…"
+
+
+def summary_text(rows: list[BuildingRow]) -> str:
+    """The text form: caution, one row per building, counts per tier at the end."""
+    from triage.assess import CAUTION, TIERS
+
+    lines = [f"CAUTION: {CAUTION}", "",
+             f"{'building':<24}  {'address':<28}  {'location':<19}  {'inspected':<25}  "
+             f"{'inspector':<16}  {'tier':<12}  {'level':<9}  {'governing':<9}  "
+             f"{'provisional':<11}  conflict"]
+    for r in rows:
+        loc = f"{r.lat:.5f},{r.lon:.5f}" if r.located else "—"
+        lines.append(
+            f"{_cut(r.building, 24):<24}  {_cut(r.address, 28):<28}  {loc:<19}  {r.at:<25}  "
+            f"{_cut(r.inspector, 16):<16}  {_words(r.tier):<12}  {r.level or '—':<9}  "
+            f"{r.governing_storey or '—':<9}  {_yes(r.provisional):<11}  "
+            f"{'CONFLICT' if r.conflict else '—'}")
+    counts = {t: sum(1 for r in rows if r.tier == t) for t in TIERS}
+    unassessed = sum(1 for r in rows if r.tier is None)
+    conflicts = sum(1 for r in rows if r.conflict)
+    lines += ["", f"{len(rows)} building{'s' if len(rows) != 1 else ''}: "
+              + ", ".join(f"{_words(t)} {n}" for t, n in counts.items())
+              + f", not assessed {unassessed}; {conflicts} with a conflict to resolve",
+              f"The tiers are indicative. {CAUTION}"]
+    return "\n".join(lines) + "\n"
+
+
+def _props(r: BuildingRow) -> dict[str, Any]:
+    from triage.assess import CAUTION
+
+    return {"building_id": r.building_id, "building": r.building, "address": r.address,
+            "inspected_at": r.at, "inspector": r.inspector, "tier": r.tier,
+            "tier_words": _words(r.tier), "performance_level": r.level,
+            "governing_storey": r.governing_storey, "provisional": r.provisional,
+            "conflict": r.conflict, "survey_id": r.survey_id, "caution": CAUTION}
+
+
+CSV_FIELDS = ("building_id", "building", "address", "lat", "lon", "inspected_at", "inspector",
+              "tier", "performance_level", "governing_storey", "provisional", "conflict",
+              "survey_id", "caution")
+
+
+def summary_csv(rows: list[BuildingRow]) -> str:
+    """CSV, one row per building; every row carries the caution in its last column."""
+    buf = io.StringIO()
+    w = csv.DictWriter(buf, fieldnames=CSV_FIELDS, lineterminator="\n")
+    w.writeheader()
+    for r in rows:
+        p = _props(r)
+        p.pop("tier_words")
+        p["lat"], p["lon"] = r.lat, r.lon
+        p["provisional"] = "" if r.provisional is None else str(r.provisional).lower()
+        p["conflict"] = str(r.conflict).lower()
+        w.writerow(p)
+    return buf.getvalue()
+
+
+def summary_geojson(rows: list[BuildingRow]) -> dict[str, Any]:
+    """An RFC 7946 FeatureCollection of Point features (longitude first) of located buildings."""
+    from triage.assess import CAUTION
+
+    features = [{"type": "Feature", "id": r.building_id,
+                 "geometry": {"type": "Point", "coordinates": [r.lon, r.lat]},
+                 "properties": _props(r)} for r in rows if r.located]
+    return {"type": "FeatureCollection", "caution": CAUTION, "features": features}
+
+
+def run_summary(args: argparse.Namespace) -> int:
+    """One row per building id, its latest survey, from the stored assessments."""
+    from triage.store import Store, StoreError
+    from triage.store.area import building_rows
+
+    try:
+        st = Store.open(args.db, create=False)
+    except StoreError as err:
+        raise UserError(str(err)) from None
+    try:
+        rows = building_rows(st)
+    finally:
+        st.close()
+    if args.format == "csv":
+        sys.stdout.write(summary_csv(rows))
+    elif args.format == "geojson":
+        sys.stdout.write(json.dumps(summary_geojson(rows), ensure_ascii=False) + "\n")
+        missing = [r for r in rows if not r.located]
+        if missing:
+            names = "; ".join(f"{r.building} ({r.building_id})" for r in missing)
+            sys.stderr.write(f"triage summary: {len(missing)} building"
+                             f"{'s' if len(missing) != 1 else ''} without a location, not "
+                             f"in the GeoJSON: {names}\n")
+    else:
+        sys.stdout.write(summary_text(rows))
+    return 0

@@ -14,7 +14,7 @@ when the form is typed in. Every page carries the caution band (triage.assess.CA
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -39,7 +39,8 @@ PAGE_W, PAGE_H = 841.89, 595.28  # A4 landscape, points
 MARGIN = 28.0
 CAUTION_H = 30.0
 HEADER_H = 30.0
-ROW_H = 14.0
+ROW_H = 13.0
+READING_ROWS = 6
 MAX_STOREYS = 20
 
 TICK = "□"  # a cell holding only this is drawn as an empty tick box
@@ -182,11 +183,13 @@ class _Doc:
         self.c.setLineWidth(0.5)
         self.c.line(x + lw, y, x + width - 6, y)
 
-    def table(self, x: float, widths: list[float], heads: list[str], rows: list[list[str]],
-              section: str, head_size: float = 6.5, first_bold: bool = False) -> None:
+    def table(self, x: float, widths: list[float], heads: list[str],
+              rows: Sequence[list[str] | str], section: str, head_size: float = 6.5,
+              first_bold: bool = False) -> None:
         """A ruled grid: wrapped headings, then rows (pre-filled text or blank to write in).
 
-        A cell holding only the tick mark is drawn as an empty tick box.
+        A cell holding only the tick mark is drawn as an empty tick box; a row given as one
+        string is a label spanning the whole width (a group heading).
         """
         heads = [self.t(h) for h in heads]
         head_lines = [self.wrap(h, w - 4, head_size) for h, w in zip(heads, widths, strict=True)]
@@ -203,7 +206,12 @@ class _Doc:
                 top = self.y
                 self._heads(x, widths, head_lines, head_size, top, head_h)
                 y = top - head_h
-            self._row(x, widths, y, r, first_bold)
+            if isinstance(r, str):
+                self.c.setFillColor(self.tint)
+                self.c.rect(x, y - ROW_H, sum(widths), ROW_H, stroke=1, fill=1)
+                self.text(x + 3, y - ROW_H + 4, r, 7.5, bold=True)
+            else:
+                self._row(x, widths, y, r, first_bold)
             y -= ROW_H
         self.y = y - 6
 
@@ -321,7 +329,7 @@ def _building_block(d: _Doc) -> None:
 
 def _dir_column(kind: str) -> str | None:
     if kind == "column":
-        return "brittle (short or shear column)"
+        return "brittle (short column)"
     if kind in ("wall", "brace", "infill"):
         return "dir (x / y / both)"
     return None
@@ -333,8 +341,8 @@ def _storey_band(d: _Doc, n: int, count: int) -> None:
 
     def continued() -> None:
         d.y -= 12
-        d.text(MARGIN, d.y, f"storey band {n}, continued · storey label", 8, bold=True)
-        d.c.line(MARGIN + 150, d.y - 1, MARGIN + 220, d.y - 1)
+        d.text(MARGIN, d.y, f"storey band {n}, continued", 8, bold=True)
+        d.field(MARGIN + 130, d.y, "storey label", 110)
         d.y -= 6
 
     d.continued = None
@@ -343,7 +351,7 @@ def _storey_band(d: _Doc, n: int, count: int) -> None:
     # storey line: label, height, below grade, access
     d.y -= 16
     d.text(MARGIN, d.y, f"Storey band {n}", 10, bold=True)
-    x = MARGIN + 80
+    x = MARGIN + 92
     d.field(x, d.y, "storey label", 100)
     d.field(x + 100, d.y, "height m", 80)
     d.text(x + 190, d.y + 2, "below grade", 7, muted=True)
@@ -353,17 +361,26 @@ def _storey_band(d: _Doc, n: int, count: int) -> None:
         d.box(x + 292 + i * 50, d.y)
         d.text(x + 303 + i * 50, d.y + 1, a, 7)
     d.y -= 8
-    # readings
+    # readings, with the notes beside them
     d.heading("Readings (residual drift)", sec, 9)
     heads = ["#", "dir x / y", "offset mm (+/−)", "gauge mm", "sd mm", "or tilt ° (+/−)",
-             "sd °", "as-built offset or tilt here", "where on the plan (grid, face)"]
-    widths = [18, 40, 62, 52, 40, 62, 40, 90, width - 404]
-    rows = [[str(i + 1)] + [""] * 8 for i in range(8)]
+             "sd °", "as-built here", "where on the plan (grid, face)"]
+    widths = [16.0, 34.0, 58.0, 44.0, 34.0, 56.0, 30.0, 50.0, 178.0]
+    top = d.y
+    rows = [[str(i + 1)] + [""] * 8 for i in range(READING_ROWS)]
     d.table(MARGIN, widths, heads, rows, sec)
+    nx = MARGIN + sum(widths) + 10
+    d.text(nx, top - 8, "notes and photos (numbers, what they show)", 6.5, muted=True)
+    d.c.setLineWidth(0.4)
+    ly = top - 8 - ROW_H
+    while ly > d.y + 6:
+        d.c.line(nx, ly, PAGE_W - MARGIN, ly)
+        ly -= ROW_H
     # members
     d.heading("Members: sound ones as one line, each damaged one (or group alike) on its own",
               sec, 9)
     rc = standards.load().systems[d.form.system].residual_capacity
+    vertical = standards.load().assumptions.vertical_kinds
     for ki, kind in enumerate(d.form.member_kinds):
         signs = [s for s, _ in d.form.signs_for(kind)]
         heads = ["ref (grid mark) / where", "count"]
@@ -373,7 +390,7 @@ def _storey_band(d: _Doc, n: int, count: int) -> None:
             heads.append(extra)
             widths.append(52.0)
         if kind == "wall" and rc:
-            heads.append("weight (columns it is worth)")
+            heads.append("weight (in columns)")
             widths.append(46.0)
         heads += ["widest crack mm", "crack sd mm"]
         widths += [44.0, 40.0]
@@ -383,15 +400,16 @@ def _storey_band(d: _Doc, n: int, count: int) -> None:
         widths.append(max(width - sum(widths), 90.0))
         scale = min(1.0, width / sum(widths))
         widths = [w * scale for w in widths]
-        d.need(12 + 30 + ROW_H * 3, sec)
+        damaged = (3 if ki == 0 else 2) if kind in vertical else 1
+        d.need(10 + 3 + 20 + ROW_H * (1 + damaged), sec)
         d.y -= 10
         d.text(MARGIN, d.y, d.form.label_of(kind), 8.5, bold=True)
-        hint = d.wrap(d.form.count_hint(kind), width - 120, 6.5)[0]
-        more = "…" if len(d.wrap(d.form.count_hint(kind), width - 120, 6.5)) > 1 else ""
-        d.text(MARGIN + 110, d.y, f"({kind}) {hint}{more}", 6.5, muted=True)
+        hint_lines = d.wrap(d.form.count_hint(kind), width - 200, 6.5)
+        hint, more = hint_lines[0], ("…" if len(hint_lines) > 1 else "")
+        lw = d.c.stringWidth(d.form.label_of(kind), d.bold, 8.5)
+        d.text(MARGIN + max(110.0, lw + 10), d.y, f"({kind}) {hint}{more}", 6.5, muted=True)
         d.y -= 3
         sound = ["sound: no crack, no sign", ""] + [""] * (len(heads) - 2)
-        damaged = 3 if ki == 0 else 2
         rows = [sound] + [[""] * len(heads) for _ in range(damaged)]
         if extra and kind == "column":
             for r in rows[1:]:
@@ -400,14 +418,6 @@ def _storey_band(d: _Doc, n: int, count: int) -> None:
             for si in range(len(signs)):
                 r[len(heads) - 1 - len(signs) + si] = TICK
         d.table(MARGIN, widths, heads, rows, sec)
-    # notes
-    d.need(40, sec)
-    d.y -= 12
-    d.text(MARGIN, d.y, "notes and photos (numbers, what they show)", 7, muted=True)
-    while d.y - 14 > d.bottom:
-        d.y -= 14
-        d.c.setLineWidth(0.4)
-        d.c.line(MARGIN, d.y, PAGE_W - MARGIN, d.y)
     d.continued = None
 
 
@@ -418,18 +428,16 @@ def _hazards(d: _Doc) -> None:
     table = standards.load().hazards
     d.heading("Hazards: tick what you saw, from outside all round and inside", sec)
     heads = ["seen", "hazard, and where to look", "where", "storey label",
-             "height above ground m (for the keep-out zone)", "note, photo numbers"]
-    widths = [26.0, 330.0, 140.0, 50.0, 70.0, width - 616.0]
+             "height above ground m", "note, photo numbers"]
+    widths = [26.0, 400.0, 140.0, 46.0, 58.0, width - 670.0]
+    rows: list[list[str] | str] = []
     for group, items in d.form.hazard_groups:
-        d.need(14 + 20 + ROW_H * len(items) * 2, sec)
-        d.y -= 12
-        d.text(MARGIN, d.y, group, 8.5, bold=True)
-        d.y -= 3
-        rows: list[list[str]] = []
+        rows.append(group)
         for key, hint in items:
-            rows.append([TICK, f"{words(key)}: {table[key].description}", "", "", "", ""])
-            rows.append(["", d.wrap(hint, widths[1] - 6, 6.5)[0], "", "", "", ""])
-        d.table(MARGIN, widths, heads, rows, sec, first_bold=False)
+            text = f"{words(key)}: {table[key].description}. Look: {hint}"
+            for i, line in enumerate(d.wrap(text, widths[1] - 8, 6.5)):
+                rows.append([TICK if i == 0 else "", line, "", "", "", ""])
+    d.table(MARGIN, widths, heads, rows, sec)
     # signature
     d.need(70, sec)
     d.heading("Signature", sec)

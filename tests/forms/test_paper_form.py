@@ -1,0 +1,134 @@
+"""The paper fallback: `triage form SYSTEM -o FILE.pdf`, a blank storey-grid form per system."""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+import pytest
+from pypdf import PdfReader
+
+from triage import standards
+from triage.assess import CAUTION
+from triage.cli import main
+from triage.forms import load_form, load_forms
+from triage.report import paper_form
+from triage.report.paper_form import write_paper_form
+
+
+def _pages(path: Path) -> list[str]:
+    return [re.sub(r"\s+", " ", p.extract_text() or "") for p in PdfReader(path).pages]
+
+
+@pytest.fixture(scope="module")
+def printed(tmp_path_factory: pytest.TempPathFactory) -> dict[str, tuple[int, list[str]]]:
+    folder = tmp_path_factory.mktemp("paper")
+    out = {}
+    for key, form in load_forms().items():
+        path = folder / f"{key}.pdf"
+        n = write_paper_form(form, path, storeys=2)
+        out[key] = (n, _pages(path))
+    return out
+
+
+def test_every_page_carries_the_caution_band(printed: dict[str, tuple[int, list[str]]]) -> None:
+    for key, (n, pages) in printed.items():
+        assert len(pages) == n, key
+        for i, text in enumerate(pages, start=1):
+            assert CAUTION in text, (key, i)
+            assert f"page {i} of {n}" in text, (key, i)
+
+
+def test_form_holds_building_storey_bands_hazards_and_signature(
+        printed: dict[str, tuple[int, list[str]]]) -> None:
+    hazards = standards.load().hazards
+    for key, (_, pages) in printed.items():
+        form = load_form(key)
+        whole = " ".join(pages)
+        assert "Building" in pages[0] and "Inspection" in pages[0]
+        assert "Storey band 1" in whole and "Storey band 2" in whole
+        assert "Storey band 3" not in whole
+        for label in ("offset mm", "gauge mm", "sd mm", "tilt", "where on the plan", "full",
+                      "partial", "none", "height m"):
+            assert label in whole, (key, label)
+        for kind in form.member_kinds:
+            assert form.label_of(kind) in whole, (key, kind)
+            for sign, _ in form.signs_for(kind):
+                assert paper_form.words(sign).split()[0] in whole, (key, sign)
+        for hk in hazards:
+            assert paper_form.words(hk) in whole, (key, hk)
+        assert "inspector's signature" in whole
+        for c, text in form.class_text.items():
+            assert f"{c}: {text[:30]}" in whole, (key, c)
+
+
+def test_there_is_no_result_box(printed: dict[str, tuple[int, list[str]]]) -> None:
+    banned = ("occupy", "evacuate", "○", "◐", "●", "placard", "restricted use",
+              "limited entry", "tag", "result")
+    for key, (_, pages) in printed.items():
+        whole = " ".join(pages).lower()
+        found = [w for w in banned if w in whole]
+        assert not found, (key, found)
+        assert "no tier is worked out on paper" in whole
+
+
+def test_one_page_per_storey_band_and_reproducible_bytes(tmp_path: Path) -> None:
+    form = load_form("rc_frame")
+    a, b, c = tmp_path / "a.pdf", tmp_path / "b.pdf", tmp_path / "c.pdf"
+    n1 = write_paper_form(form, a, storeys=1)
+    n5 = write_paper_form(form, b, storeys=5)
+    assert n5 - n1 == 4
+    write_paper_form(form, c, storeys=1)
+    assert a.read_bytes() == c.read_bytes()
+    with pytest.raises(ValueError, match=r"storeys: 0 is outside 1\.\.20"):
+        write_paper_form(form, a, storeys=0)
+
+
+def test_falls_back_to_helvetica_without_the_shipped_font(
+        tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setattr(paper_form, "REGULAR_TTF", tmp_path / "missing.ttf")
+    assert paper_form.fonts() == ("Helvetica", "Helvetica-Bold")
+    out = tmp_path / "f.pdf"
+    write_paper_form(load_form("wood_stud_wall"), out, storeys=1)
+    raw = out.read_bytes()
+    assert b"Helvetica" in raw and b"DejaVu" not in raw
+    pages = _pages(out)
+    assert all(CAUTION in p for p in pages)
+    assert "+/-" in " ".join(pages)
+
+
+def test_uses_the_shipped_font_when_present(tmp_path: Path) -> None:
+    if not paper_form.REGULAR_TTF.is_file():
+        pytest.fail("triage/report/fonts/DejaVuSans.ttf is shipped with the package")
+    out = tmp_path / "f.pdf"
+    write_paper_form(load_form("urm_wall"), out, storeys=1)
+    assert b"DejaVuSans" in out.read_bytes()
+
+
+def test_cli_writes_the_form(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    out = tmp_path / "rc.pdf"
+    assert main(["form", "steel_braced_frame", "-o", str(out), "--storeys", "4"]) == 0
+    assert out.read_bytes().startswith(b"%PDF")
+    assert "Storey band 4" in " ".join(_pages(out))
+    assert "steel_braced_frame" in capsys.readouterr().out
+
+
+def test_cli_refuses_an_unknown_system_with_the_known_ones(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    out = tmp_path / "x.pdf"
+    assert main(["form", "adobe", "-o", str(out)]) == 1
+    err = capsys.readouterr().err.strip()
+    assert "\n" not in err
+    assert err.startswith("triage form: 'adobe' is not a structural system (known: rc_frame,")
+    assert all(k in err for k in standards.system_keys())
+    assert not out.exists()
+
+
+def test_cli_refusals_are_one_line(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["form", "rc_frame", "-o", str(tmp_path / "no" / "x.pdf")]) == 1
+    assert "does not exist" in capsys.readouterr().err
+    assert main(["form", "rc_frame", "-o", str(tmp_path), "--storeys", "2"]) == 1
+    assert "is a folder" in capsys.readouterr().err
+    assert main(["form", "rc_frame", "-o", str(tmp_path / "x.pdf"), "--storeys", "0"]) == 1
+    assert "--storeys: 0 is outside 1..20" in capsys.readouterr().err
+    assert main(["form", "rc_frame"]) == 2

@@ -123,3 +123,19 @@ def test_samples_are_found_by_the_resources_lookup() -> None:
     assert samples_dir().is_dir()
     assert isinstance(samples_dir(), Path)
     assert len(list(samples_dir().glob("*.json"))) >= 6
+
+
+def test_photos_named_by_samples_exist_and_are_small() -> None:
+    named = 0
+    for n in EXPECTED:
+        s = _load(n)
+        groups = [st.photos for st in s.storeys]
+        groups += [m.photos for st in s.storeys for m in st.members]
+        groups += [h.photos for h in s.hazards]
+        for photos in groups:
+            for ph in photos:
+                f = samples_dir() / ph.path
+                assert f.is_file(), (n, ph.path)
+                assert f.stat().st_size < 20_000, (n, ph.path)
+                named += 1
+    assert named >= 2

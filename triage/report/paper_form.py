@@ -307,7 +307,8 @@ def _building_block(d: _Doc) -> None:
             half)
     d.heading("How to fill it in", sec)
     steps = [
-        "1. Walk round the outside first and tick the hazards (last form page) before going in; "
+        "1. Walk round the outside first and tick the hazards (the page after the storey bands) "
+        "before going in; "
         "do not enter where collapse, a lean or a hanging hazard threatens.",
         "2. Storeys from the bottom up, one band each; label them as marked on site (B1, G, 1, "
         "2 ...). Tick the access you had: partial or none makes the survey provisional.",

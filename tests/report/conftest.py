@@ -1,0 +1,51 @@
+"""Fixtures of the report tests: a private TRIAGE_HOME, surveys, keys and signed PDFs."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any
+
+import pytest
+
+from tests.helpers import reading, storey, survey_dict
+from triage.assess import assess
+from triage.model import Survey, parse_survey
+
+
+@pytest.fixture(autouse=True)
+def triage_home(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
+    """Keys and trusted keys of each test live in its own folder; no passphrase from outside."""
+    home = tmp_path / "home"
+    home.mkdir()
+    monkeypatch.setenv("TRIAGE_HOME", str(home))
+    monkeypatch.delenv("TRIAGE_KEY_PASSPHRASE", raising=False)
+    return home
+
+
+def clinic_dict() -> dict[str, Any]:
+    """A two-storey clinic of Kōwhai Bay with Unicode names, markup in notes and a hazard."""
+    return survey_dict([
+        storey("G", [reading("x", 1.0), reading("y", 2.0, where="stair core & lift")],
+               [{"kind": "column", "count": 20},
+                {"kind": "wall", "count": 1, "dir": "x", "weight": 3.0, "damage_class": "III",
+                 "ref": "W1", "override_reason": "diagonal cracking <b>over 1 mm</b> & wide"}],
+               notes="north bay: <b>bold?</b> & </para> stays as typed"),
+        storey("1", [reading("x", 2.0), reading("y", 12.0)],
+               [{"kind": "column", "count": 19},
+                {"kind": "column", "count": 1, "crack_mm": 1.4, "ref": "C3",
+                 "signs": ["cover_spalling"]}]),
+    ], sx="rc_wall", sy="rc_frame", name="Ngāti Whare Clinic, Øster wing ≤ ± θ",
+        hazards=[{"kind": "falling_hazard", "where": "north parapet", "storey": "1",
+                  "height_above_ground_m": 7.5, "note": "loose <i>coping</i> & glass"}])
+
+
+@pytest.fixture
+def clinic() -> Survey:
+    """The clinic survey, validated."""
+    return parse_survey(clinic_dict())
+
+
+@pytest.fixture
+def clinic_pair(clinic: Survey) -> tuple[Survey, Any]:
+    """The clinic and its assessment."""
+    return clinic, assess(clinic)

@@ -240,7 +240,10 @@ class Store:
         result = None
         if assess:
             from triage.assess import assess as run_assess
-            result = run_assess(survey)
+            try:
+                result = run_assess(survey)
+            except Exception:  # the survey is kept all the same; its assessment stays stale
+                result = None
         now = self._stamp()
         with self._write() as c:
             row = c.execute("SELECT doc FROM surveys WHERE id = ?", (sid,)).fetchone()

@@ -1,0 +1,229 @@
+"""Store speeds (issues 3 and 7), each against its baseline, as functions returning numbers.
+
+    python -m bench.store_bench            # prints every figure
+
+- store_write_ratio: one field edit of a 10-storey survey (4 readings per storey and direction,
+  10 member groups per storey) through `Store.set_value` (validation, the survey row and its
+  change-log row in one durable transaction), over bare sqlite3 writing the same two rows in one
+  BEGIN IMMEDIATE transaction with the same pragmas on the same schema. Target: at most 1.5.
+- list_10k_ms: `triage list` (open, read, format) of 10,000 surveys, in process. Under 1000.
+- merge_ratio: 200 source databases of 50 surveys each merged with `merge_into`, over plain
+  ATTACH with INSERT ... SELECT of the same rows (surveys, changes, assessments). At most 3.
+- summary_10k_ms: `triage summary` (open, query, text) of 10,000 buildings. Under 1000.
+
+Files go to a temporary folder on the disk the system gives (`TMPDIR`); put it on a real disk,
+not tmpfs, or fsync costs nothing and the ratios say little.
+"""
+
+from __future__ import annotations
+
+import argparse
+import contextlib
+import io
+import json
+import sqlite3
+import statistics
+import tempfile
+import time
+import uuid
+from pathlib import Path
+from typing import Any
+
+from bench.generate import big_survey_dict
+from triage.model import ID_NAMESPACE, canonical_json, parse_survey
+from triage.store import Store
+from triage.store.connect import set_pragmas
+
+
+def _ten_storey() -> dict[str, Any]:
+    return big_survey_dict(storeys=10, groups=10, readings=4, seed=10)
+
+
+def store_write_ratio(edits: int = 200) -> float:
+    """Median time of a store field edit over the median of the bare sqlite3 baseline."""
+    with tempfile.TemporaryDirectory(prefix="triage-bench-") as tmp:
+        st = Store.open(Path(tmp) / "store.db", who="bench")
+        survey = parse_survey(_ten_storey())
+        sid = str(survey.survey_id)
+        st.add_survey(survey)
+        # The baseline: same schema and pragmas, same row contents, no Python work.
+        base = Store.open(Path(tmp) / "base.db", who="bench")
+        base.add_survey(survey)
+        base.close()
+        conn = sqlite3.connect(str(Path(tmp) / "base.db"), isolation_level=None)
+        set_pragmas(conn)
+        doc = canonical_json(survey.to_json_dict())
+        ours: list[float] = []
+        bare: list[float] = []
+        for i in range(edits):
+            value = round(1.0 + (i % 50) * 0.1, 1)
+            t0 = time.perf_counter()
+            st.set_value(sid, f"storeys[{i % 10}].readings[{i % 8}].offset_mm", value, "bench")
+            ours.append(time.perf_counter() - t0)
+            t0 = time.perf_counter()
+            conn.execute("BEGIN IMMEDIATE")
+            conn.execute("UPDATE surveys SET doc = ?, revision = ?, updated_at = ? WHERE id = ?",
+                         (doc, i + 2, "2026-11-29T00:00:00.000+00:00", sid))
+            conn.execute("INSERT INTO changes (uid, survey_id, revision, op, path, old, new, at, "
+                         "who) VALUES (?, ?, ?, 'set', ?, ?, ?, ?, ?)",
+                         (str(uuid.uuid4()), sid, i + 2,
+                          f"storeys[{i % 10}].readings[{i % 8}].offset_mm", "1.0",
+                          json.dumps(value), "2026-11-29T00:00:00.000+00:00", "bench"))
+            conn.execute("COMMIT")
+            bare.append(time.perf_counter() - t0)
+        conn.close()
+        st.close()
+    return statistics.median(ours) / statistics.median(bare)
+
+
+def _small_survey(i: int, seed: int = 0) -> dict[str, Any]:
+    d: dict[str, Any] = {
+        "format": "triage-survey/1",
+        "id": str(uuid.uuid5(ID_NAMESPACE, f"bench-survey:{seed}:{i}")),
+        "building": {"id": str(uuid.uuid5(ID_NAMESPACE, f"bench-building:{seed}:{i}")),
+                     "name": f"Bench Building {seed}-{i}",
+                     "address": f"{i + 1} Bench Road, Kōwhai Bay",
+                     "location": {"lat": -41.2 + (i % 100) * 0.001,
+                                  "lon": 174.7 + (i // 100 % 100) * 0.001},
+                     "system": {"x": "rc_frame", "y": "rc_wall"}},
+        "inspection": {"inspector": {"name": "Bench Mark"},
+                       "at": f"2026-11-{28 + i % 2}T{8 + i % 10:02d}:00:00+13:00"},
+        "storeys": [{"label": lab, "height_m": 3.2,
+                     "readings": [{"dir": "x", "offset_mm": 1.0 + (i % 7), "gauge_mm": 2000,
+                                   "sd_mm": 1.0},
+                                  {"dir": "y", "offset_mm": 2.0 + (i % 5), "gauge_mm": 2000,
+                                   "sd_mm": 1.0}],
+                     "members": [{"kind": "column", "count": 12}]} for lab in ("G", "1", "2")],
+    }
+    return d
+
+
+def fill(path: Path, n: int, seed: int = 0) -> None:
+    """A store of `n` small surveys with their assessments, written in one transaction.
+
+    One survey goes through `add_survey` (and the engine); the others are its rows with their
+    ids and names changed, so a 10,000-survey file takes seconds to make, not minutes.
+    """
+    st = Store.open(path, who="bench", refresh=False)
+    first = parse_survey(_small_survey(0, seed))
+    st.add_survey(first)
+    a = st.load_assessment(first.survey_id)
+    assert a is not None
+    rows = []
+    for i in range(1, n):
+        d = parse_survey(_small_survey(i, seed)).to_json_dict()
+        rows.append(d)
+    c = st.conn
+    base = c.execute("SELECT * FROM surveys WHERE id = ?", (str(first.survey_id),)).fetchone()
+    names = [r[1] for r in c.execute("PRAGMA table_info(surveys)")]
+    template = dict(zip(names, base, strict=True))
+    change = c.execute("SELECT uid, revision, op, path, old, new, at, who FROM changes "
+                       "WHERE survey_id = ?", (str(first.survey_id),)).fetchone()
+    aj = a.model_dump(mode="json")
+    c.execute("BEGIN IMMEDIATE")
+    for d in rows:
+        text = canonical_json(d)
+        row = dict(template, id=d["id"], building_id=d["building"]["id"],
+                   building=d["building"]["name"], address=d["building"]["address"],
+                   lat=d["building"]["location"]["lat"], lon=d["building"]["location"]["lon"],
+                   at=d["inspection"]["at"], doc=text)
+        c.execute(f"INSERT INTO surveys ({', '.join(names)}) VALUES "
+                  f"({', '.join('?' for _ in names)})", [row[k] for k in names])
+        c.execute("INSERT INTO changes (uid, survey_id, revision, op, path, old, new, at, who) "
+                  "VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
+                  (str(uuid.uuid4()), d["id"], change[1], change[2], change[3], change[4],
+                   text, change[6], change[7]))
+        c.execute("INSERT INTO assessments (survey_id, revision, json) VALUES (?, 1, ?)",
+                  (d["id"], json.dumps(dict(aj, survey=d["id"], building=d["building"]["id"]))))
+    c.execute("COMMIT")
+    st.close()
+
+
+def _run_cli(argv: list[str]) -> float:
+    from triage.cli import main
+
+    out = io.StringIO()
+    t0 = time.perf_counter()
+    with contextlib.redirect_stdout(out):
+        code = main(argv)
+    dt = time.perf_counter() - t0
+    assert code == 0, code
+    return dt
+
+
+def list_10k_ms(n: int = 10_000) -> float:
+    """Milliseconds for `triage list` of `n` surveys (open, query, format), in process."""
+    with tempfile.TemporaryDirectory(prefix="triage-bench-") as tmp:
+        db = Path(tmp) / "list.db"
+        fill(db, n)
+        _run_cli(["--db", str(db), "list"])   # warm-up: imports, page cache
+        return statistics.median(_run_cli(["--db", str(db), "list"]) for _ in range(5)) * 1000
+
+
+def summary_10k_ms(n: int = 10_000) -> float:
+    """Milliseconds for `triage summary` of `n` buildings (open, query, text), in process."""
+    with tempfile.TemporaryDirectory(prefix="triage-bench-") as tmp:
+        db = Path(tmp) / "area.db"
+        fill(db, n)
+        _run_cli(["--db", str(db), "summary"])
+        return statistics.median(_run_cli(["--db", str(db), "summary"]) for _ in range(5)) * 1000
+
+
+def _baseline_merge(target: Path, sources: list[Path]) -> float:
+    Store.open(target, who="bench").close()
+    conn = sqlite3.connect(str(target), isolation_level=None)
+    set_pragmas(conn)
+    t0 = time.perf_counter()
+    for s in sources:
+        conn.execute("ATTACH DATABASE ? AS src", (str(s),))
+        conn.execute("BEGIN IMMEDIATE")
+        conn.execute("INSERT INTO main.surveys SELECT * FROM src.surveys")
+        conn.execute("INSERT INTO main.changes (uid, survey_id, revision, op, path, old, new, "
+                     "at, who, undoes) SELECT uid, survey_id, revision, op, path, old, new, at, "
+                     "who, undoes FROM src.changes")
+        conn.execute("INSERT INTO main.assessments SELECT * FROM src.assessments")
+        conn.execute("COMMIT")
+        conn.execute("DETACH DATABASE src")
+    dt = time.perf_counter() - t0
+    conn.close()
+    return dt
+
+
+def merge_ratio(sources: int = 200, per_source: int = 50) -> float:
+    """Time of `merge_into` over plain ATTACH + INSERT ... SELECT of the same rows."""
+    from triage.store.merge import merge_into
+
+    with tempfile.TemporaryDirectory(prefix="triage-bench-") as tmp:
+        paths = []
+        for k in range(sources):
+            p = Path(tmp) / f"laptop{k:03d}.db"
+            fill(p, per_source, seed=k + 1)
+            paths.append(p)
+        base = _baseline_merge(Path(tmp) / "baseline.db", paths)
+        st = Store.open(Path(tmp) / "merged.db", who="bench")
+        t0 = time.perf_counter()
+        results = merge_into(st, paths)
+        ours = time.perf_counter() - t0
+        assert all(r.skipped is None for r in results)
+        assert st.conn.execute("SELECT count(*) FROM surveys").fetchone()[0] == sources * per_source
+        st.close()
+    return ours / base
+
+
+FIGURES = {"store_write_ratio": store_write_ratio, "list_10k_ms": list_10k_ms,
+           "merge_ratio": merge_ratio, "summary_10k_ms": summary_10k_ms}
+
+
+def main() -> None:
+    """Print each figure."""
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("names", nargs="*", default=list(FIGURES), choices=list(FIGURES))
+    args = ap.parse_args()
+    for name in args.names:
+        t0 = time.perf_counter()
+        value = FIGURES[name]()
+        print(f"{name}: {value:.3f}   ({time.perf_counter() - t0:.1f} s)")
+
+
+if __name__ == "__main__":
+    main()

@@ -14,7 +14,8 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer, ListItem, ListView, Static, TabbedContent, TabPane
+from textual.widgets import Footer, OptionList, Static, TabbedContent, TabPane
+from textual.widgets.option_list import Option
 from textual.worker import Worker, WorkerState, get_current_worker
 
 from triage.ui.data import Refused, Verdict, compute_verdict, next_label, rule_of
@@ -36,21 +37,21 @@ class SurveyScreen(Screen[None]):
 
     CSS_PATH = "survey.tcss"
     BINDINGS: ClassVar[list[BindingType]] = [
-        Binding("escape", "back", "list", priority=True),
-        Binding("f2", "verdict", "verdict", priority=True),
-        Binding("f3", "history", "history", priority=True),
-        Binding("f4", "report", "report", priority=True),
-        Binding("pageup", "storey(1)", "storey up", priority=True, key_display="PgUp"),
-        Binding("pagedown", "storey(-1)", "down", priority=True, key_display="PgDn"),
         Binding("ctrl+n", "new", "new", priority=True),
         Binding("ctrl+r", "remove", "remove", priority=True),
         Binding("ctrl+z", "undo", "undo", priority=True),
+        Binding("f2", "verdict", "verdict", priority=True),
+        Binding("f3", "history", "history", priority=True),
+        Binding("f4", "report", "report", priority=True),
+        Binding("pageup", "storey(1)", "up", priority=True, key_display="PgUp"),
+        Binding("pagedown", "storey(-1)", "down", priority=True, key_display="PgDn"),
+        Binding("escape", "back", "back", priority=True),
         Binding("ctrl+b", "add_below", "storey below", priority=True, show=False),
-        Binding("f5", "tab('storey')", "storey", priority=True, show=False),
-        Binding("f6", "tab('readings')", "readings", priority=True, show=False),
-        Binding("f7", "tab('members')", "members", priority=True, show=False),
-        Binding("f8", "tab('hazards')", "hazards", priority=True, show=False),
-        Binding("f9", "tab('photos')", "photos", priority=True, show=False),
+        Binding("f5", "tab('storey')", "storey tab", priority=True, show=False),
+        Binding("f6", "tab('readings')", "readings tab", priority=True, show=False),
+        Binding("f7", "tab('members')", "members tab", priority=True, show=False),
+        Binding("f8", "tab('hazards')", "hazards tab", priority=True, show=False),
+        Binding("f9", "tab('photos')", "photos tab", priority=True, show=False),
     ]
 
     def __init__(self, survey_id: str) -> None:
@@ -85,7 +86,7 @@ class SurveyScreen(Screen[None]):
         """Title, storeys, tabs, verdict."""
         yield Static("", id="survey-title", classes="title")
         with Horizontal(id="body"):
-            yield ListView(id="storeys")
+            yield OptionList(id="storeys")
             with TabbedContent(id="tabs", initial="readings"):
                 with TabPane("storey", id="storey"):
                     yield StoreyPane(id="storey-pane")
@@ -142,16 +143,18 @@ class SurveyScreen(Screen[None]):
 
     def fill_storeys(self) -> None:
         """The storey list, top storey first (as the building stands)."""
-        lv = self.query_one("#storeys", ListView)
-        lv.clear()
+        ol = self.query_one("#storeys", OptionList)
+        ol.clear_options()
         n = len(self.survey.storeys)
+        opts = []
         for i in range(n - 1, -1, -1):
             st = self.survey.storeys[i]
             dirs = {r.dir for r in st.readings}
             mark = "✓" if dirs == {"x", "y"} and st.members else ("·" if st.readings or
                                                                   st.members else " ")
-            lv.append(ListItem(Static(f"{st.label:<4}{mark}"), id=f"st-{i}"))
-        lv.index = n - 1 - self.storey_index
+            opts.append(Option(f"{st.label:<4}{mark}", id=f"st-{i}"))
+        ol.add_options(opts)
+        ol.highlighted = n - 1 - self.storey_index
 
     def load_all(self, keep_forms: bool = False) -> None:
         """Redraw every pane for the storey in view."""
@@ -161,11 +164,12 @@ class SurveyScreen(Screen[None]):
 
     # --- storeys -------------------------------------------------------------------------
 
-    def on_list_view_highlighted(self, event: ListView.Highlighted) -> None:
+    def on_option_list_option_highlighted(self, event: OptionList.OptionHighlighted) -> None:
         """Another storey picked in the list."""
-        if event.item is None or event.item.id is None:
+        oid = event.option.id
+        if oid is None or not oid.startswith("st-"):
             return
-        i = int(event.item.id[3:])
+        i = int(oid[3:])
         if i != self.storey_index:
             self.go_storey(i)
 
@@ -176,10 +180,10 @@ class SurveyScreen(Screen[None]):
             if not isinstance(pane, HazardsPane):
                 pane.editing = None
         self.load_all()
-        lv = self.query_one("#storeys", ListView)
+        ol = self.query_one("#storeys", OptionList)
         want = len(self.survey.storeys) - 1 - self.storey_index
-        if lv.index != want:
-            lv.index = want
+        if ol.highlighted != want:
+            ol.highlighted = want
 
     def action_storey(self, step: int) -> None:
         """Walk up (1) or down (-1) a storey."""

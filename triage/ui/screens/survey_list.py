@@ -26,10 +26,11 @@ class SurveyListScreen(Screen[None]):
     CSS_PATH = "survey_list.tcss"
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("enter", "open", "open", priority=True),
+        Binding("ctrl+o", "open", "open", show=False, priority=True),
         Binding("ctrl+n", "new", "new survey", priority=True),
         Binding("ctrl+r", "reinspect", "re-inspect", priority=True),
-        Binding("ctrl+x", "hide", "hide", priority=True),
-        Binding("ctrl+a", "show_hidden", "hidden too", priority=True),
+        Binding("ctrl+t", "hide", "hide", priority=True),
+        Binding("ctrl+l", "show_hidden", "hidden too", priority=True),
         Binding("down", "cursor(1)", "down", show=False),
         Binding("up", "cursor(-1)", "up", show=False),
     ]
@@ -53,11 +54,11 @@ class SurveyListScreen(Screen[None]):
     def on_mount(self) -> None:
         """Fill the table."""
         table = self.query_one("#surveys", DataTable)
-        table.add_column("building", width=24, key="building")
-        table.add_column("address", width=20, key="address")
+        table.add_column("building", width=22, key="building")
+        table.add_column("address", width=19, key="address")
         table.add_column("inspected", width=16, key="at")
         table.add_column("tier", width=10, key="tier")
-        table.add_column("", width=6, key="flags")
+        table.add_column("", width=3, key="flags")
         no_blink(self.query_one("#filter", Input))
         self.query_one("#filter", Input).focus()
         self.refresh_rows()
@@ -181,7 +182,7 @@ class SurveyListScreen(Screen[None]):
         app.data.hide(sid, app.who)
         self.refresh_rows()
         self.query_one("#list-status", Static).update(
-            "survey hidden (kept in the database; ctrl+a shows hidden surveys)")
+            "survey hidden (kept in the database; ctrl+l shows hidden surveys)")
 
     def action_show_hidden(self) -> None:
         """Show or leave out hidden surveys."""

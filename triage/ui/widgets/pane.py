@@ -26,6 +26,7 @@ FIELD_KEY = re.compile(r"\.(\w+)(?:\[\d+\])?:")
 class ItemPane(VerticalScroll):
     """Base of the panes holding a table of items and the form of one."""
 
+    can_focus = False
     DEFAULT_CSS = """
     ItemPane { height: 1fr; padding: 0 1; }
     ItemPane > DataTable { height: auto; max-height: 8; margin-bottom: 0; }
@@ -196,8 +197,8 @@ class ItemPane(VerticalScroll):
             self.show_error(str(err))
             return
         n = len(self.items())
-        self.note.update(f"✓ saved: {self.noun} {n} added")
         self.after_add()
+        self.note.update(f"✓ saved: {self.noun} {n} added")
         for w in self.form.values():
             if hasattr(w, "show_note") and w.status_text.startswith("✗"):
                 w.show_note("")

@@ -6,10 +6,11 @@ from typing import Any
 
 from pydantic import ValidationError
 from textual.app import ComposeResult
-from textual.widgets import Input
+from textual.widgets import Input, Static
 
 from triage.assess.drift import pct
 from triage.model import Reading, error_lines
+from triage.ui.data import rule_of
 from triage.ui.widgets.field import Choice, Field, show_text
 from triage.ui.widgets.pane import ItemPane, values_of
 from triage.ui.widgets.verdict import storey_drift_text
@@ -85,6 +86,8 @@ class ReadingsPane(ItemPane):
         yield tilt
         yield sd_deg
         yield where
+        self.drift_line = Static("", classes="pane-note")
+        yield self.drift_line
 
     def _tilt(self) -> bool:
         return bool(self.by.value() == "tilt")
@@ -126,20 +129,24 @@ class ReadingsPane(ItemPane):
         self.preview()
 
     def preview(self) -> None:
-        """Show the drift ratio of what is in the form."""
+        """Show the drift ratio of what is in the form, as it is typed."""
+        out = self.drift_line
         try:
             data = values_of(self.form, TILT_KEYS if self._tilt() else OFFSET_KEYS)
-        except ValueError:
-            self.note.update("drift: —")
+        except ValueError as err:
+            out.update(f"drift: — ({err})")
+            return
+        needed = ["tilt_deg"] if self._tilt() else ["offset_mm", "gauge_mm"]
+        if any(k not in data for k in needed):
+            out.update("drift: — (needs " + ("the tilt" if self._tilt()
+                                            else "offset and gauge length") + ")")
             return
         try:
             r = Reading.model_validate(data)
         except ValidationError as err:
-            need = "tilt" if self._tilt() else "offset and gauge length"
-            lines = error_lines(err)
-            self.note.update(f"drift: — ({lines[0] if 'needs' not in lines[0] else 'needs '+need})")
+            out.update(f"drift: — ({rule_of(error_lines(err)[0])})")
             return
-        self.note.update(f"drift ratio {pct(r.drift_ratio())} ({r.dir})")
+        out.update(f"drift ratio {pct(r.drift_ratio())} ({r.dir})")
 
     def build_item(self) -> dict[str, Any]:
         """The reading from the form."""

@@ -17,6 +17,7 @@ ACCESS = [("full: all of it entered", "full"), ("partial: part of it", "partial"
 class StoreyPane(VerticalScroll):
     """The fields of the storey in view; each saves as accepted."""
 
+    can_focus = False
     DEFAULT_CSS = """
     StoreyPane { height: 1fr; padding: 0 1; }
     StoreyPane > .pane-head { height: auto; text-style: bold; }

@@ -48,7 +48,7 @@ def test_caution_and_page_numbers_on_every_page(clinic_pdf: Path):
 
 
 def test_page_one_has_tier_building_and_the_rest(clinic_pair, clinic_pdf: Path):
-    s, a = clinic_pair
+    _s, a = clinic_pair
     one = pages_text(clinic_pdf)[0]
     assert "◐ hold" in one
     assert "Ngāti Whare Clinic, Øster wing ≤ ± θ" in one

@@ -82,7 +82,8 @@ def _grid(rows: list[list[Any]], widths: list[float], header: bool = True,
 def _cell(text: str, width: float) -> str:
     """Plain (unparsed, so literal) cell text broken into lines that fit `width` points.
 
-    Much quicker than a Paragraph for the long tables of a tall building."""
+    Much quicker than a Paragraph for the long tables of a tall building.
+    """
     from reportlab.lib.utils import simpleSplit
 
     regular, _ = register()

@@ -1,0 +1,135 @@
+"""`triage key`, `triage report` and `triage verify` as a user runs them (in process)."""
+
+from __future__ import annotations
+
+import json
+import stat
+from pathlib import Path
+
+import pytest
+
+from tests.report.conftest import clinic_dict
+from triage.cli import main
+
+
+def run(capsys, *argv: str) -> tuple[int, str, str]:
+    code = main(list(argv))
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+@pytest.fixture
+def survey_file(tmp_path: Path) -> Path:
+    p = tmp_path / "clinic.json"
+    p.write_text(json.dumps(clinic_dict(), ensure_ascii=False), encoding="utf-8")
+    return p
+
+
+@pytest.fixture
+def keyfile(tmp_path: Path, capsys, monkeypatch) -> Path:
+    monkeypatch.setenv("TRIAGE_KEY_PASSPHRASE", "harbour light")
+    k = tmp_path / "aroha.key"
+    code, out, err = run(capsys, "key", "new", "--name", "Aroha Ngāti", "--id", "R-77", "-o",
+                         str(k))
+    assert code == 0, err
+    assert "fingerprint" in out and "trusted on this laptop" in out
+    return k
+
+
+def test_key_new_list_trust(keyfile: Path, capsys, tmp_path: Path, monkeypatch):
+    assert stat.S_IMODE(keyfile.stat().st_mode) == 0o600
+    assert (tmp_path / "aroha.pub").exists()
+    code, out, _ = run(capsys, "key", "list")
+    assert code == 0 and "Aroha Ngāti (id R-77)" in out
+    # another laptop's key, trusted here from its .pub file
+    monkeypatch.setenv("TRIAGE_HOME", str(tmp_path / "elsewhere"))
+    assert run(capsys, "key", "new", "--name", "Øster", "--id", "E-2", "-o",
+               str(tmp_path / "o.key"), "--no-passphrase")[0] == 0
+    monkeypatch.setenv("TRIAGE_HOME", str(tmp_path / "home"))
+    code, out, _ = run(capsys, "key", "trust", str(tmp_path / "o.pub"))
+    assert code == 0 and "Øster" in out
+    assert len(run(capsys, "key", "list")[1].splitlines()) == 2
+
+
+def test_key_new_without_passphrase_source_refused(capsys, tmp_path: Path):
+    code, _, err = run(capsys, "key", "new", "--name", "A", "--id", "1", "-o",
+                       str(tmp_path / "a.key"))
+    assert code == 1 and "TRIAGE_KEY_PASSPHRASE" in err and len(err.splitlines()) == 1
+    assert not (tmp_path / "a.key").exists()
+
+
+def test_report_and_verify_codes(keyfile: Path, survey_file: Path, capsys, tmp_path: Path):
+    out = tmp_path / "r.pdf"
+    code, text, err = run(capsys, "report", str(survey_file), "-o", str(out), "--key",
+                          str(keyfile))
+    assert code == 0, err
+    assert "signed with key" in text and "indicative only" in text
+    code, text, _ = run(capsys, "verify", str(out))
+    assert code == 0 and "Aroha Ngāti" in text and "R-77" in text
+    assert run(capsys, "verify", str(out), "--expect", "0" * 32)[0] == 4
+    data = out.read_bytes()
+    bad = tmp_path / "bad.pdf"
+    bad.write_bytes(data[:1000] + bytes([data[1000] ^ 1]) + data[1001:])
+    code, _, err = run(capsys, "verify", str(bad))
+    assert code == 1 and err.count("\n") == 1 and "Traceback" not in err
+    unsigned = tmp_path / "u.pdf"
+    assert run(capsys, "report", str(survey_file), "-o", str(unsigned))[0] == 0
+    code, _, err = run(capsys, "verify", str(unsigned))
+    assert code == 3 and "no signature" in err
+    assert run(capsys, "verify", str(out), "--expect", "nonsense")[0] == 2
+
+
+def test_wrong_passphrase_is_one_clear_line(keyfile: Path, survey_file: Path, capsys,
+                                            tmp_path: Path, monkeypatch):
+    monkeypatch.setenv("TRIAGE_KEY_PASSPHRASE", "not it")
+    out = tmp_path / "r.pdf"
+    code, _, err = run(capsys, "report", str(survey_file), "-o", str(out), "--key",
+                       str(keyfile))
+    assert code == 1
+    assert err == f"triage report: wrong passphrase for {keyfile}\n"
+    assert not out.exists()
+
+
+def test_report_refusals(capsys, tmp_path: Path, survey_file: Path):
+    bad = tmp_path / "bad.json"
+    bad.write_text('{"format": "triage-survey/1"}')
+    code, _, err = run(capsys, "report", str(bad), "-o", str(tmp_path / "x.pdf"))
+    assert code == 1 and "bad.json" in err and len(err.splitlines()) == 1
+    code, _, err = run(capsys, "report", str(tmp_path / "absent.json"), "-o",
+                       str(tmp_path / "x.pdf"))
+    assert code == 1 and "no such file" in err
+    code, _, err = run(capsys, "report", str(survey_file), "-o", str(survey_file))
+    assert code == 1 and "survey file itself" in err
+    assert json.loads(survey_file.read_text(encoding="utf-8"))["format"] == "triage-survey/1"
+    code, _, err = run(capsys, "report", str(survey_file), "-o",
+                       str(tmp_path / "nofolder" / "x.pdf"))
+    assert code == 1 and "folder does not exist" in err
+    assert not list(tmp_path.glob("*.pdf"))
+
+
+def test_report_from_the_database(capsys, tmp_path: Path, survey_file: Path):
+    store = pytest.importorskip("triage.store")
+    from pypdf import PdfReader
+
+    from triage.model import parse_survey
+
+    db = tmp_path / "t.db"
+    s = parse_survey(clinic_dict())
+    with store.Store.open(db) as st:
+        st.add_survey(s, "Tess Tester")
+        rev = st.revision(str(s.survey_id))
+    out = tmp_path / "db.pdf"
+    code, text, err = run(capsys, "--db", str(db), "report", str(s.survey_id), "-o", str(out))
+    assert code == 0, err
+    assert f"store revision {rev}" in text
+    first = " ".join(PdfReader(out).pages[0].extract_text().split())
+    assert f"store revision {rev}" in first
+    with store.Store.open(db) as st:
+        row = next(r for r in st.list_surveys() if r.id == str(s.survey_id))
+        assert row.edited_since_report is False
+        st.set_value(str(s.survey_id), "building.use", "clinic", "Tess Tester")
+        row = next(r for r in st.list_surveys() if r.id == str(s.survey_id))
+        assert row.edited_since_report is True
+    code, _, err = run(capsys, "--db", str(db), "report", "6f1c0c3e-0000-5d4e-9a61-7d2f0b8e4c11",
+                       "-o", str(tmp_path / "none.pdf"))
+    assert code == 1 and len(err.splitlines()) == 1

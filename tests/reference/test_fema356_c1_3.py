@@ -53,14 +53,14 @@ def test_figures_used_for_levels(system, io_t, io_p, ls_t, ls_p, cp):
     f = figures(system, std, std.assumptions)
     # "negligible" is our 0.2%, never more than the IO transient figure (REFERENCES.md s.1).
     io = min(0.002, io_t / 100) if io_p == "negligible" else io_p / 100
-    assert f.IO == pytest.approx(io, abs=1e-12)
-    assert f.LS == pytest.approx(ls_p / 100, abs=1e-12)
-    assert f.CP == pytest.approx(cp / 100, abs=1e-12)
+    assert pytest.approx(io, abs=1e-12) == f.IO
+    assert pytest.approx(ls_p / 100, abs=1e-12) == f.LS
+    assert pytest.approx(cp / 100, abs=1e-12) == f.CP
 
 
 def test_urm_infill_negligible_is_capped_at_its_io_transient_figure():
     std = load()
-    assert figures("urm_infill", std, std.assumptions).IO == pytest.approx(0.001)
+    assert pytest.approx(0.001) == figures("urm_infill", std, std.assumptions).IO
 
 
 @pytest.mark.parametrize(("system", "io_t", "io_p", "ls_t", "ls_p", "cp"), TABLE_C1_3)

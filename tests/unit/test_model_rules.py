@@ -42,7 +42,8 @@ def test_required_building_name():
 
 
 def test_required_inspector_name():
-    assert "inspection.inspector.name" in refused(lambda d: d["inspection"]["inspector"].pop("name"))
+    msg = refused(lambda d: d["inspection"]["inspector"].pop("name"))
+    assert "inspection.inspector.name" in msg
 
 
 def test_time_needs_offset():

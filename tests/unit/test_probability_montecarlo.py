@@ -107,18 +107,24 @@ def braced_near_ls() -> dict:
     ], sx="steel_braced_frame", sy="steel_braced_frame")
 
 
-def many_columns_in_doubt() -> dict:
-    # 14 column groups each cracked close to the II/III bound: 2^14 combinations, more than the
-    # exact enumeration limit, so the engine samples them (its sampled path).
+def many_columns_in_doubt(weight: float = 1.0) -> dict:
+    # 14 column groups each cracked close to the II/III bound: 2^14 combinations. With weights on
+    # a grid the engine sums them exactly (integer losses); with a weight off every grid, and
+    # more combinations than the enumeration limit, it samples them (its sampled path).
     from tests.helpers import survey_dict
     cols = [{"kind": "column", "count": 1, "crack_mm": 1.0 + 0.01 * (i % 3 - 1),
-             "crack_sd_mm": 0.05, "ductility": "brittle"} for i in range(14)]
+             "crack_sd_mm": 0.05, "ductility": "brittle", "weight": weight} for i in range(14)]
     return survey_dict([storey("1", [reading("x", 1.0), reading("y", 1.0)],
                                [{"kind": "column", "count": 6}, *cols])],
                        sx="rc_frame", sy="rc_frame")
 
 
-@pytest.mark.parametrize("build", [frame_near_thresholds, braced_near_ls, many_columns_in_doubt])
+def many_columns_off_grid() -> dict:
+    return many_columns_in_doubt(weight=4 / 3)
+
+
+@pytest.mark.parametrize("build", [frame_near_thresholds, braced_near_ls, many_columns_in_doubt,
+                                   many_columns_off_grid])
 def test_engine_agrees_with_brute_force(build):
     d = build()
     got = assess(make(d["storeys"], sx=d["building"]["system"]["x"],
@@ -130,8 +136,9 @@ def test_engine_agrees_with_brute_force(build):
     assert max(want.values()) < 0.999
 
 
-def test_the_many_columns_survey_takes_the_sampled_path():
-    d = many_columns_in_doubt()
-    a = assess(make(d["storeys"]))
-    assert any("sampled" in n for n in a.notes)
-    assert 2 ** 14 > unc.ENUMERATE_LIMIT
+def test_paths_taken():
+    exact = assess(make(many_columns_in_doubt()["storeys"]))
+    assert not any("sampled" in n for n in exact.notes)
+    sampled = assess(make(many_columns_off_grid()["storeys"]))
+    assert any("sampled" in n for n in sampled.notes)
+    assert unc.ENUMERATE_LIMIT < 2 ** 14

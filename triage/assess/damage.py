@@ -7,6 +7,7 @@ Nakano et al. (2004) and Maeda et al. (2017); from memory. Crack classes: under 
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -75,39 +76,96 @@ class MemberClass:
         return int(np.count_nonzero(self.probs > EPS)) > 1
 
 
-def member_class(m: MemberGroup, std: Standards, a: Assumptions) -> MemberClass:
-    """The class of a group: the override, else the worse of crack class and sign class."""
-    probs = np.zeros(len(CLASSES) + 1)
-    if m.damage_class is not None:
-        k = class_index(m.damage_class)
-        probs[k] = 1.0
-        return MemberClass(k, "override", probs, None, False)
-    s = sign_class(m, std)
-    if not m.crack_mm:
-        probs[s] = 1.0
-        return MemberClass(s, "signs" if s else None, probs, None, False)
-    c = crack_class(m.crack_mm, std)
-    point = max(c, s)
-    sd = m.crack_sd_mm if m.crack_sd_mm is not None else a.sd_crack_mm
-    # The crack was seen, so its class is at least I whatever the draw: I..IV by the bounds.
+@dataclass(frozen=True)
+class ClassTable:
+    """The classes of a storey's member groups, one row per group."""
+
+    items: list[MemberClass]
+    point: np.ndarray  # (n,) point class index
+    probs: np.ndarray  # (n, 6) class distribution
+
+
+def member_classes(members: Sequence[MemberGroup], std: Standards,
+                   a: Assumptions) -> ClassTable:
+    """The class of each group: the override, else the worse of crack class and sign class.
+
+    The crack's class distribution comes from its normal uncertainty; the crack was seen, so its
+    class is at least I whatever the draw (I..IV by the bounds). Vectorised over the storey.
+    """
+    n = len(members)
     b2, b3, b4 = crack_bounds(std)
-    cdf = norm_cdf((np.array([b2, b3, b4]) - m.crack_mm) / sd)
-    crack_p = np.array([cdf[0], cdf[1] - cdf[0], cdf[2] - cdf[1], 1.0 - cdf[2]])
-    for i, p in enumerate(crack_p, start=1):
-        probs[max(i, s)] += p
-    return MemberClass(point, "crack" if c >= s else "signs", probs, sd, m.crack_sd_mm is None)
+    probs = np.zeros((n, len(CLASSES) + 1))
+    point = np.zeros(n, dtype=int)
+    sign = np.array([sign_class(m, std) for m in members], dtype=int)
+    over = np.array([m.damage_class is not None for m in members], dtype=bool)
+    crack = np.array([0.0 if m.damage_class is not None else (m.crack_mm or 0.0)
+                      for m in members])
+    sd = np.array([m.crack_sd_mm or a.sd_crack_mm for m in members])
+    cracked = crack > 0
+    # Overrides: the inspector's class, certain.
+    oi = np.flatnonzero(over)
+    ok = np.array([class_index(members[int(i)].damage_class) for i in oi], dtype=int)
+    probs[oi, ok] = 1.0
+    point[oi] = ok
+    # No crack: the sign class (or undamaged), certain.
+    si = np.flatnonzero(~over & ~cracked)
+    probs[si, sign[si]] = 1.0
+    point[si] = sign[si]
+    # Cracked: I..IV by the bounds, each raised to the sign class.
+    ci = np.flatnonzero(cracked)
+    if len(ci):
+        c, s = crack[ci], sign[ci]
+        f = norm_cdf((np.array([b2, b3, b4])[None, :] - c[:, None]) / sd[ci][:, None])
+        crack_p = np.column_stack([f[:, 0], f[:, 1] - f[:, 0], f[:, 2] - f[:, 1], 1.0 - f[:, 2]])
+        for k in range(4):
+            np.add.at(probs, (ci, np.maximum(k + 1, s)), crack_p[:, k])
+        cc = np.where(c < b2, 1, np.where(c <= b3, 2, np.where(c <= b4, 3, 4)))
+        point[ci] = np.maximum(cc, s)
+        crack_class_of = dict(zip(ci.tolist(), cc.tolist(), strict=True))
+    else:
+        crack_class_of = {}
+    items = []
+    for i, m in enumerate(members):
+        if over[i]:
+            items.append(MemberClass(int(point[i]), "override", probs[i], None, False))
+        elif cracked[i]:
+            how = "crack" if crack_class_of[i] >= sign[i] else "signs"
+            items.append(MemberClass(int(point[i]), how, probs[i], float(sd[i]),
+                                     m.crack_sd_mm is None))
+        else:
+            items.append(MemberClass(int(point[i]), "signs" if sign[i] else None, probs[i],
+                                     None, False))
+    return ClassTable(items, point, probs)
+
+
+def member_class(m: MemberGroup, std: Standards, a: Assumptions) -> MemberClass:
+    """The class of one group (see `member_classes`)."""
+    return member_classes([m], std, a).items[0]
 
 
 def eta_table(m: MemberGroup, std: Standards) -> np.ndarray | None:
     """Eta for class index 0..5 of a column or wall; None for kinds R does not count."""
-    if m.kind == "column":
-        col = "eta_ductile_column" if m.ductility == "ductile" else "eta_brittle_column"
-    elif m.kind == "wall":
+    key = (id(std), m.kind, m.ductility)
+    if key not in _ETA:
+        _ETA[key] = (std, _eta_table(m.kind, m.ductility, std))
+    return _ETA[key][1]
+
+
+# eta tables per (standards object, kind, ductility); the object is kept so its id stays unique.
+_ETA: dict[tuple[int, str, str], tuple[Standards, np.ndarray | None]] = {}
+
+
+def _eta_table(kind: str, ductility: str, std: Standards) -> np.ndarray | None:
+    if kind == "column":
+        col = "eta_ductile_column" if ductility == "ductile" else "eta_brittle_column"
+    elif kind == "wall":
         col = "eta_wall"
     else:
         return None
     rows = std.capacity.classes
-    return np.array([1.0] + [getattr(rows[c], col) for c in CLASSES])
+    table = np.array([1.0] + [getattr(rows[c], col) for c in CLASSES])
+    table.flags.writeable = False
+    return table
 
 
 def counts_in(m: MemberGroup, d: str) -> bool:
@@ -147,6 +205,24 @@ def capacity_terms(storey: Storey, d: str, std: Standards) -> CapacityTerms | No
     if not idx:
         return None
     return CapacityTerms(tuple(idx), np.array(w), np.array(e))
+
+
+def capacity_terms_all(storey: Storey, etas: Sequence[np.ndarray | None],
+                       dirs: Sequence[str]) -> dict[str, CapacityTerms]:
+    """The groups counted toward R per direction (directions with none are left out).
+
+    `etas[g]` is group g's eta table (None: a kind R does not count).
+    """
+    out = {}
+    for d in dirs:
+        idx = [g for g, m in enumerate(storey.members)
+               if etas[g] is not None and counts_in(m, d)]
+        if idx:
+            members = storey.members
+            out[d] = CapacityTerms(tuple(idx),
+                                   np.array([members[g].count * members[g].weight for g in idx]),
+                                   np.array([etas[g] for g in idx]))
+    return out
 
 
 def grade_of(r: float, std: Standards) -> Grade:

@@ -10,6 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
+from pydantic import TypeAdapter
 
 from triage import __version__
 from triage.model import Survey, survey_warnings
@@ -35,6 +36,7 @@ from .result import (
 from .stats import sig6, sig6_opt
 from .uncertainty import MemberModel, drift_cdfs, member_cdf
 
+_MEMBERS = TypeAdapter(tuple[MemberResult, ...])
 LEVEL_TIER = (0, 1, 2, 2)  # IO occupy, LS hold, CP and beyond-CP evacuate
 HAZARD_TIER = {"beyond-CP": 2, "evacuate": 2, "hold": 1}
 BASIS_ORDER = {"drift-x": 0, "drift-y": 1, "capacity": 2, "damage": 3}
@@ -65,7 +67,7 @@ class _StoreyWork:
     grade: str | None = None
     floor: int | None = None
     level: int | None = None
-    members: list[MemberResult] = field(default_factory=list)
+    members: list[dict[str, object]] = field(default_factory=list)  # MemberResult data
 
 
 def seed_of(survey: Survey) -> int:
@@ -153,29 +155,30 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
                              f"as-built plumbness band ({pct(a.plumbness_band)})")
 
         # --- members: class, eta, R, grade, floor -------------------------------------------
-        classes = [dmg.member_class(m, std, a) for m in st.members]
+        table_of_classes = dmg.member_classes(st.members, std, a)
+        classes = table_of_classes.items
         for gi, (m, c) in enumerate(zip(st.members, classes, strict=True)):
             if c.sd_defaulted:
                 ref = f" {m.ref}" if m.ref else ""
                 defaulted.append(f"storey {st.label}, {m.kind} group {gi + 1}{ref}: crack_sd_mm "
                                  f"{a.sd_crack_mm:g} mm (instrument default, common practice)")
-        terms = {}
+        etas = [dmg.eta_table(m, std) for m in st.members]
+        terms = dmg.capacity_terms_all(st, etas, rc)
         for d in rc:
-            t = dmg.capacity_terms(st, d, std)
             w.r_by_dir[d] = None
-            if t is not None:
-                terms[d] = t
-                point = np.array([classes[g].point for g in t.groups])
+            if d in terms:
+                t = terms[d]
+                point = table_of_classes.point[list(t.groups)]
                 eta = t.etas[np.arange(len(point)), point]
                 w.r_by_dir[d] = float(np.round((eta * t.weights).sum() / t.total, 9))
-        for gi, (m, c) in enumerate(zip(st.members, classes, strict=True)):
-            table = dmg.eta_table(m, std)
-            counted = table is not None and any(dmg.counts_in(m, d) for d in terms)
-            w.members.append(MemberResult(
-                index=gi, ref=m.ref, kind=m.kind, count=m.count,
-                damage_class=dmg.class_name(c.point),
-                eta=sig6(float(table[c.point])) if counted and table is not None else None,
-                class_from=c.class_from))
+        counted_groups = set().union(*(t.groups for t in terms.values())) if terms else set()
+        for gi, (m, c, table) in enumerate(zip(st.members, classes, etas, strict=True)):
+            w.members.append({
+                "index": gi, "ref": m.ref, "kind": m.kind, "count": m.count,
+                "damage_class": dmg.class_name(c.point),
+                "eta": (sig6(float(table[c.point]))
+                        if gi in counted_groups and table is not None else None),
+                "class_from": c.class_from})
         vertical = [m.kind in a.vertical_kinds for m in st.members]
         rs = [r for r in w.r_by_dir.values() if r is not None]
         if rs:
@@ -216,7 +219,10 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
                 f"{dmg.class_name(floor_by[1])} (from {how}), which holds the structure to "
                 f"{LEVELS[floor]} at best (member-damage floor, a rule of ours)"))
         mc, sampled = member_cdf(
-            MemberModel(classes, terms, vertical, floor_of_class, grade_bounds, level_of_grade),
+            MemberModel(probs=table_of_classes.probs, point=table_of_classes.point,
+                        terms=terms, vertical=np.array(vertical, dtype=bool),
+                        floor_of_class=floor_of_class, grade_bounds=grade_bounds,
+                        level_of_grade=level_of_grade),
             rng)
         any_sampled |= sampled
         if st.members:
@@ -254,10 +260,13 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
                                      f"{effect}{keep_txt}"))
 
     # --- the structure's level and the tier ------------------------------------------------
-    for w in work:
+    member_levels: dict[int, list[int]] = {}
+    for cand in candidates:
+        if cand.basis in ("capacity", "damage"):
+            member_levels.setdefault(cand.storey, []).append(cand.level)
+    for si, w in enumerate(work):
         levels = [lv for lv in w.drift_level.values() if lv is not None]
-        levels += [c.level for c in candidates if c.storey == work.index(w)
-                   and c.basis in ("capacity", "damage")]
+        levels += member_levels.get(si, [])
         w.level = max(levels) if levels else None
         if w.grade == "collapse":
             w.level = 3
@@ -345,7 +354,7 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
             damage_grade=w.grade,
             damage_floor=LEVELS[w.floor] if w.floor is not None else None,
             level=LEVELS[w.level] if w.level is not None else None,
-            members=tuple(w.members))
+            members=_MEMBERS.validate_python(w.members))
         for w, st in zip(work, survey.storeys, strict=True))
 
     largest = max((abs(v.ratio) for v in values), default=None)

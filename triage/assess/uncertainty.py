@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .damage import EPS, CapacityTerms, MemberClass
+from .damage import EPS, CapacityTerms
 from .drift import ReadingValue
 from .result import Figures
 from .stats import norm_cdf
@@ -59,9 +59,10 @@ def drift_cdfs(values: Sequence[ReadingValue], groups: Sequence[int], n_groups: 
 class MemberModel:
     """What decides a storey's member component: R per RC direction and the damage floor."""
 
-    classes: Sequence[MemberClass]
+    probs: np.ndarray  # (n_groups, 6): P(class index k) of each group
+    point: np.ndarray  # (n_groups,): the point class of each group
     terms: dict[str, CapacityTerms]  # RC directions that have counted groups
-    vertical: Sequence[bool]  # per group: counts toward the damage floor
+    vertical: np.ndarray  # (n_groups,) bool: counts toward the damage floor
     floor_of_class: np.ndarray  # level index per class index 0..5
     grade_bounds: np.ndarray  # R lower bounds of slight, light, moderate (fractions)
     level_of_grade: np.ndarray  # level index per grade index 0..3 (slight..severe)
@@ -76,32 +77,161 @@ class MemberModel:
             grade = (r < self.grade_bounds[0]).astype(int) + (r < self.grade_bounds[1]) + (
                 r < self.grade_bounds[2])
             lv = np.maximum(lv, self.level_of_grade[grade])
-        vert = [i for i, v in enumerate(self.vertical) if v]
-        if vert:
-            lv = np.maximum(lv, self.floor_of_class[k[:, vert]].max(axis=1))
+        if self.vertical.any():
+            lv = np.maximum(lv, self.floor_of_class[k[:, self.vertical]].max(axis=1))
         return lv
+
+
+def _grid_scale(values: np.ndarray) -> int | None:
+    """The least s in a short list making every value * s an integer, or None."""
+    for s in (1, 2, 4, 5, 10, 20, 100):
+        v = values * s
+        if np.all(np.abs(v - np.round(v)) < 1e-9):
+            return s
+    return None
+
+
+FFT_LIMIT = 1 << 16
+# A class this unlikely is left out of the exact sums (its mass is far below the 0.01 asked).
+TINY = 1e-12
+
+
+def _loss_pmf(loss: np.ndarray, probs: np.ndarray, cap: int) -> np.ndarray:
+    """P(total loss = j), j = 0..cap, for independent groups with integer losses.
+
+    `loss[g, k]` is group g's loss in class k, `probs[g, k]` its probability. The distribution
+    of the sum is the product of the groups' polynomials, taken by FFT (or plain convolution
+    when that would be large); mass beyond `cap` is dropped (losses only grow).
+    """
+    out = np.zeros(cap + 1)
+    if loss.shape[0] == 0:
+        out[0] = 1.0
+        return out
+    live = probs > TINY
+    lo = np.where(live, loss, np.iinfo(np.int64).max).min(axis=1)
+    const = int(lo.sum())
+    if const > cap:
+        return out
+    width = cap - const + 1
+    shift = np.where(live, loss - lo[:, None], 0)
+    keep = live & (shift < width)
+    moving = (shift * keep).max(axis=1) > 0
+    if not moving.any():
+        out[const] = 1.0
+        return out
+    sh, pr, kp = shift[moving], probs[moving], keep[moving]
+    degree = int((sh * kp).max(axis=1).sum())
+    m = 1 << max(degree, 1).bit_length()
+    rows = np.repeat(np.arange(sh.shape[0]), sh.shape[1]).reshape(sh.shape)
+    if m <= FFT_LIMIT:
+        kern = np.zeros((sh.shape[0], m))
+        np.add.at(kern, (rows[kp], sh[kp]), pr[kp])
+        arr = np.fft.irfft(np.prod(np.fft.rfft(kern, axis=1), axis=0), n=m)[:width]
+    else:
+        arr = np.zeros(width)
+        arr[0] = 1.0
+        for g in range(sh.shape[0]):
+            k = np.zeros(int((sh[g] * kp[g]).max()) + 1)
+            np.add.at(k, sh[g][kp[g]], pr[g][kp[g]])
+            arr = np.convolve(arr, k)[:width]
+    out[const:const + len(arr)] = np.clip(arr, 0.0, 1.0)
+    return out
+
+
+def member_cdf_exact(model: MemberModel, lo: int, hi: int) -> np.ndarray | None:
+    """P(level <= L) of a storey's member component, exactly; None if weights fit no grid.
+
+    Only levels lo <= L < hi are computed (under lo the probability is 0, from hi on 1).
+    R >= b in a direction is, in integer units of 1/(20 s) of a weight, "total loss
+    sum((1 - eta) w) <= (1 - b) W": a sum of independent discrete losses. The damage floor is
+    handled by conditioning each vertical group on the classes the level allows. Columns and
+    walls without a direction count in both directions; walls with one count in it alone, and
+    the two directions then share the column part, which is summed over exactly.
+    """
+    terms = model.terms
+    out = np.zeros(4)
+    out[hi:] = 1.0
+    scale = 1
+    if terms:
+        w = np.concatenate([t.weights for t in terms.values()])
+        e20 = np.concatenate([t.etas.ravel() for t in terms.values()]) * 20
+        found = _grid_scale(w)
+        if found is None or _grid_scale(e20) != 1:
+            return None
+        scale = found
+    loss = {d: np.round((20 - 20 * t.etas) * t.weights[:, None] * scale).astype(np.int64)
+            for d, t in terms.items()}
+    rows = {d: {g: j for j, g in enumerate(t.groups)} for d, t in terms.items()}
+    dirs = list(terms)
+    shared = sorted(set.intersection(*(set(rows[d]) for d in dirs))) if dirs else []
+    for lv in range(lo, hi):
+        allowed = model.floor_of_class <= lv
+        probs = model.probs.copy()
+        vert = model.vertical
+        if vert.any():
+            pv = probs[vert] * allowed
+            pa = pv.sum(axis=1)
+            factor = float(np.prod(pa))
+            if factor <= 0.0:
+                out[lv] = 0.0
+                continue
+            probs[vert] = pv / pa[:, None]
+        else:
+            factor = 1.0
+        ok = model.level_of_grade <= lv
+        if not dirs or ok[3]:
+            out[lv] = factor  # severe R still meets this level: R sets no condition
+            continue
+        if not ok.any():
+            out[lv] = 0.0
+            continue
+        b = model.grade_bounds[int(np.flatnonzero(ok).max())]
+        caps = {d: int(np.floor((1.0 - b) * 20 * scale * terms[d].total + 1e-6)) for d in dirs}
+
+        def pmf(groups: list[int], d: str, cap: int, p: np.ndarray = probs) -> np.ndarray:
+            idx = [rows[d][g] for g in groups]
+            return _loss_pmf(loss[d][idx], p[groups], cap)
+
+        if len(dirs) == 1 or all(len(rows[d]) == len(shared) for d in dirs):
+            d0 = min(dirs, key=lambda d: caps[d])
+            out[lv] = factor * float(pmf(sorted(rows[d0]), d0, caps[d0]).sum())
+            continue
+        dx, dy = dirs
+        top = max(caps.values())
+        pc = pmf(shared, dx, top)
+        fx = np.cumsum(pmf(sorted(set(rows[dx]) - set(shared)), dx, caps[dx]))
+        fy = np.cumsum(pmf(sorted(set(rows[dy]) - set(shared)), dy, caps[dy]))
+        c = np.arange(top + 1)
+        gx = np.where(c <= caps[dx], fx[np.clip(caps[dx] - c, 0, caps[dx])], 0.0)
+        gy = np.where(c <= caps[dy], fy[np.clip(caps[dy] - c, 0, caps[dy])], 0.0)
+        out[lv] = factor * float((pc * gx * gy).sum())
+    return np.minimum(np.maximum.accumulate(np.clip(out, 0.0, 1.0)), 1.0)
 
 
 def member_cdf(model: MemberModel, rng: np.random.Generator) -> tuple[np.ndarray, bool]:
     """P(level <= L) of a storey's member component, and whether it was sampled."""
-    n = len(model.classes)
+    n = model.probs.shape[0]
     out = np.zeros(4)
     if n == 0:
         out[:] = 1.0
         return out, False
-    point = np.array([[c.point for c in model.classes]])
-    doubt = [i for i, c in enumerate(model.classes) if c.uncertain]
-    if not doubt:
+    possible = model.probs > EPS
+    doubt = np.flatnonzero(possible.sum(axis=1) > 1)
+    point = model.point[None, :]
+    if len(doubt) == 0:
         out[int(model.level(point)[0]):] = 1.0
         return out, False
-    options = [np.flatnonzero(model.classes[i].probs > EPS) for i in doubt]
     best, worst = point.copy(), point.copy()
-    for i, opts in zip(doubt, options, strict=True):
-        best[0, i], worst[0, i] = opts.min(), opts.max()
+    best[0, doubt] = possible[doubt].argmax(axis=1)
+    worst[0, doubt] = 5 - possible[doubt][:, ::-1].argmax(axis=1)
     lo, hi = int(model.level(best)[0]), int(model.level(worst)[0])
     if lo == hi:
         out[lo:] = 1.0
         return out, False
+    exact = member_cdf_exact(model, lo, hi)
+    if exact is not None:
+        return exact, False
+    options = [np.flatnonzero(possible[i]) for i in doubt]
     combos = 1
     for opts in options:
         combos *= len(opts)
@@ -111,14 +241,14 @@ def member_cdf(model: MemberModel, rng: np.random.Generator) -> tuple[np.ndarray
         k[:, doubt] = grid
         w = np.ones(len(grid))
         for j, i in enumerate(doubt):
-            w *= model.classes[i].probs[grid[:, j]]
+            w *= model.probs[i][grid[:, j]]
         w /= w.sum()
         sampled = False
     else:
         k = np.repeat(point, SAMPLES, axis=0)
         u = rng.random((SAMPLES, len(doubt)))
         for j, i in enumerate(doubt):
-            cum = np.cumsum(model.classes[i].probs)
+            cum = np.cumsum(model.probs[i])
             k[:, i] = np.minimum(np.searchsorted(cum / cum[-1], u[:, j], side="right"),
                                  len(cum) - 1)
         w = np.full(SAMPLES, 1.0 / SAMPLES)

@@ -34,12 +34,13 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
     p.set_defaults(func=run_backup)
 
 
-def open_store(args: argparse.Namespace, *, create: bool = True) -> Store:
+def open_store(args: argparse.Namespace, *, create: bool = True,
+               refresh: bool = True) -> Store:
     """The database of `--db` (default: under the user's data folder), or a one-line refusal."""
     from triage.store import Store, StoreError
 
     try:
-        return Store.open(args.db, create=create)
+        return Store.open(args.db, create=create, refresh=refresh)
     except StoreError as err:
         raise UserError(str(err)) from None
 
@@ -119,7 +120,7 @@ def resolve_id(st: Store, given: str) -> str:
 
 def run_export(args: argparse.Namespace) -> int:
     """Write one survey as triage-survey/1 JSON that imports back to the same survey."""
-    st = open_store(args, create=False)
+    st = open_store(args, create=False, refresh=False)
     try:
         sid = resolve_id(st, args.id)
         data = st.load_survey(sid).to_json_dict()
@@ -181,7 +182,7 @@ def run_backup(args: argparse.Namespace) -> int:
     """A consistent single-file copy of the database, WAL content included."""
     from triage.store import StoreError
 
-    st = open_store(args, create=False)
+    st = open_store(args, create=False, refresh=False)
     try:
         out = st.backup_to(args.output)
     except StoreError as err:

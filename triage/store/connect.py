@@ -95,7 +95,7 @@ def explain(err: sqlite3.Error, path: Path) -> StoreError:
     if "not a database" in text or "malformed" in text or "corrupt" in text:
         return StoreError(f"{path}: damaged database ({err}); it was left as it is; restore it "
                           "from a backup (triage backup) or use another --db")
-    return StoreError(f"{path}: database error: {err}")
+    return StoreError(f"{path}: database error: {' '.join(str(err).split())}")
 
 
 def check_file(path: Path, *, immutable: bool = False) -> int:
@@ -131,16 +131,19 @@ def check_file(path: Path, *, immutable: bool = False) -> int:
     if pages and valid_for == counter and size < pages * page_size and not wal_pending:
         raise StoreError(f"{path}: truncated database ({size} of {pages * page_size} bytes); "
                          "it was left as it is; restore it from a backup (triage backup)")
+    # With no -wal or -journal beside it no one is writing the file now, and reading it
+    # immutable creates nothing beside a file that may turn out to be refused.
+    quiet = immutable or not (wal.exists() or path.with_name(path.name + "-journal").exists())
     try:
-        conn = connect(path, read_only=True, immutable=immutable)
+        conn = connect(path, read_only=True, immutable=quiet)
     except sqlite3.Error as err:
         raise explain(err, path) from None
     try:
         row = conn.execute("PRAGMA quick_check(1)").fetchone()
         if row is None or row[0] != "ok":
-            raise StoreError(f"{path}: damaged database (quick_check: "
-                             f"{row[0] if row else 'no answer'}); it was left as it is; "
-                             "restore it from a backup (triage backup)")
+            said = " ".join(str(row[0] if row else "no answer").replace("*", "").split())
+            raise StoreError(f"{path}: damaged database (quick_check: {said}); it was left "
+                             "as it is; restore it from a backup (triage backup)")
         app = conn.execute("PRAGMA application_id").fetchone()[0]
         version = int(conn.execute("PRAGMA user_version").fetchone()[0])
         if app != APPLICATION_ID:

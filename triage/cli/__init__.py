@@ -56,6 +56,8 @@ def main(argv: Sequence[str] | None = None) -> int:
         from . import ui_cmd
         args.func = ui_cmd.run_default
     try:
+        if args.command in ("ui", "demo", "form"):
+            _check_forms()
         return int(args.func(args) or 0)
     except UserError as err:
         sys.stderr.write(f"triage {args.command}: {err}\n")
@@ -69,6 +71,16 @@ def main(argv: Sequence[str] | None = None) -> int:
         sys.stderr.write(f"triage {args.command}: internal error: {type(err).__name__}: {err} "
                          "(nothing was changed; please report it)\n")
         return 1
+
+
+def _check_forms() -> None:
+    """Refuse to start on a malformed field-form file rather than guess (issue 6)."""
+    from triage.forms import FormError, check_forms
+
+    try:
+        check_forms()
+    except FormError as err:
+        raise UserError(f"{err} (the tool will not start on a bad form file)") from None
 
 
 def entry() -> None:

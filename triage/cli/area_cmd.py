@@ -1,19 +1,82 @@
-"""Commands: compare, merge, summary (being built)."""
+"""`triage compare OLD NEW [--format text|json] [--force]`: what changed between two surveys."""
 
 from __future__ import annotations
 
 import argparse
+import sys
+from pathlib import Path
+from typing import TYPE_CHECKING
 
 from .errors import UserError
 
+if TYPE_CHECKING:
+    from triage.assess import Assessment
+    from triage.model import Survey
+
 
 def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
-    """Register the commands of this module."""
+    """Register `compare`."""
     p = sub.add_parser("compare", help="what changed between two surveys of one building")
-    p.add_argument("rest", nargs=argparse.REMAINDER)
+    p.add_argument("old", metavar="OLD", help="the earlier survey: a file or an id in the database")
+    p.add_argument("new", metavar="NEW", help="the later survey: a file or an id in the database")
+    p.add_argument("--format", choices=("text", "json"), default="text")
+    p.add_argument("--force", action="store_true",
+                   help="compare even when the two surveys are of different buildings")
     p.set_defaults(func=run)
 
 
+def load_either(given: str, args: argparse.Namespace) -> tuple[Survey, Assessment]:
+    """A survey from a file (JSON or report PDF) or from the database, with its assessment.
+
+    A file is assessed by this engine; a stored survey uses its stored assessment when current.
+    """
+    from triage.assess import assess
+
+    if Path(given).exists():
+        from .store_cmd import _read
+
+        survey = _read(given)
+        return survey, assess(survey)
+    from .store_cmd import open_store, resolve_id
+
+    st = open_store(args, create=False)
+    try:
+        sid = resolve_id(st, given)
+        survey = st.load_survey(sid)
+        stored = st.load_assessment(sid)
+        row = st.survey_row(sid)
+        current = stored if stored is not None and row is not None and not row.stale else None
+    finally:
+        st.close()
+    return survey, current or assess(survey)
+
+
 def run(args: argparse.Namespace) -> int:
-    """Not built yet."""
-    raise UserError(f"{args.command}: not available yet")
+    """Compare, refusing two different buildings unless --force."""
+    from triage.assess import CAUTION
+    from triage.assess.compare import compare
+
+    old, old_a = load_either(args.old, args)
+    new, new_a = load_either(args.new, args)
+    if old.building_id != new.building_id and not args.force:
+        raise UserError(f"{args.old} and {args.new} are surveys of different buildings "
+                        f"({old.building.name!r}, building {old.building_id}; "
+                        f"{new.building.name!r}, building {new.building_id}); "
+                        "use --force to compare them anyway")
+    if old.inspection.at > new.inspection.at:
+        sys.stderr.write(f"triage compare: note: {args.old} was inspected after {args.new}; "
+                         "OLD is taken as the earlier survey as given\n")
+    result = compare(old, old_a, new, new_a)
+    if args.format == "json":
+        sys.stdout.write(result.to_json())
+        return 0
+    head = [f"CAUTION: {CAUTION}", "",
+            f"{new.building.name}, {new.building.address}: what changed between the two surveys",
+            f"earlier: {old.survey_id} by {old.inspection.inspector.name}",
+            f"later:   {new.survey_id} by {new.inspection.inspector.name}",
+            *([] if result.same_building else ["NOTE: these are surveys of different buildings"]),
+            ""]
+    sys.stdout.write("\n".join([*head, *result.lines(), "",
+                                "A drift change is significant only where it exceeds twice the "
+                                "combined standard uncertainty of the two values (k = 2).", ""]))
+    return 0

@@ -14,7 +14,7 @@ if TYPE_CHECKING:
     from triage.model import Survey
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+def add_parser(sub: argparse._SubParsersAction) -> None:
     """Register `compare`."""
     p = sub.add_parser("compare", help="what changed between two surveys of one building")
     p.add_argument("old", metavar="OLD", help="the earlier survey: a file or an id in the database")

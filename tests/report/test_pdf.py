@@ -199,3 +199,21 @@ def test_assessment_of_another_survey_refused(clinic_pair, tmp_path: Path):
     with pytest.raises(ValueError, match="the assessment is of survey"):
         write_report(s, assess(other), tmp_path / "x.pdf")
     assert not (tmp_path / "x.pdf").exists()
+
+
+def test_long_lists_continue_and_page_one_keeps_the_signing_block(tmp_path: Path):
+    hazards = [{"kind": "falling_hazard", "height_above_ground_m": 5.0 + i,
+                "where": f"parapet segment {i} along the northern street frontage"}
+               for i in range(25)]
+    s = make([storey("1", [reading("x", 3.0), reading("y", 1.0)])], hazards=hazards)
+    out = tmp_path / "many.pdf"
+    write_report(s, assess(s), out)
+    texts = pages_text(out)
+    one = texts[0]
+    assert "Engineer of record" in one and "UNSIGNED" in one and "◐ hold" in one
+    assert "more on the next page" in one
+    assert "Why (continued)" in texts[1] and "Keep-out distances (continued)" in texts[1]
+    everything = " ".join(texts)
+    for i in range(25):  # every keep-out line is printed somewhere
+        assert f"parapet segment {i} along the northern street frontage: keep {5 + i} m" in (
+            everything)

@@ -20,7 +20,7 @@ def _nice_top(v: float) -> float:
     """A round upper bound for the drift axis, in ratio units."""
     if v <= 0:
         return 0.005
-    steps = [1, 2, 2.5, 5, 10]
+    steps = [1, 1.2, 1.5, 2, 2.5, 3, 4, 5, 6, 8, 10]
     mag = 10 ** math.floor(math.log10(v))
     for s in steps:
         if s * mag >= v:

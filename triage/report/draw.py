@@ -101,23 +101,45 @@ def _bullets(lines: list[str], style: str = "bullet") -> list[Paragraph]:
     return [Paragraph(esc(x), styles()[style], bulletText="–") for x in lines]
 
 
-def _page_one(m: ReportModel) -> list[Any]:
+def _height(flowables: list[Any]) -> float:
+    """The height a list of flowables takes in the body frame (spaces included)."""
+    total = 0.0
+    for f in flowables:
+        _, h = f.wrap(CONTENT_W, PAGE_H)
+        total += h + f.getSpaceBefore() + f.getSpaceAfter()
+    return total
+
+
+def _page_one(m: ReportModel, body_height: float) -> tuple[list[Any], list[Any]]:
+    """Page one's flowables, and what did not fit on it (continued on page two).
+
+    Everything but the reasons and keep-out lines is kept on page one; those fill the room
+    left, so the signature and the engineer of record's block always end page one.
+    """
     st = styles()
-    out: list[Any] = [
+    head: list[Any] = [
         _p("Occupancy recommendation · indicative, for the engineer of record", "kicker"),
         _p(m.building[0][1], "title"),
     ]
-    kv = [[_p(k, "label"), _p(v, "cell")] for k, v in m.building[1:]]
-    out.append(_grid(kv, [28 * mm, CONTENT_W - 28 * mm], header=False, zebra=False))
-    out.append(Spacer(1, 8))
+    pairs = m.building[1:]
+    kv = []
+    for i in range(0, len(pairs), 2):
+        row: list[Any] = []
+        for k, v in pairs[i:i + 2]:
+            row += [_p(k, "label"), _p(v, "cell")]
+        kv.append(row + [""] * (4 - len(row)))
+    lw = 22 * mm
+    vw = CONTENT_W / 2 - lw
+    head.append(_grid(kv, [lw, vw, lw, vw], header=False, zebra=False))
+    head.append(Spacer(1, 6))
 
     # The result as three plain columns under an accent rule: words and mark, not a notice.
     result = Table([
         [_p("indicative tier", "label"), _p("structural performance level", "label"),
          _p("governed by", "label")],
-        [_p(m.tier_words, "tier"), _p(m.level, "tier"), _p(m.governing, "strong")],
+        [_p(m.tier_words, "tier"), _p(m.level, "level"), _p(m.governing, "strong")],
         [_p(m.tier_line, "small"), "", ""],
-    ], colWidths=[58 * mm, 58 * mm, CONTENT_W - 116 * mm])
+    ], colWidths=[66 * mm, 46 * mm, CONTENT_W - 112 * mm])
     result.setStyle(TableStyle([
         ("LINEABOVE", (0, 0), (-1, 0), 1.6, ACCENT),
         ("VALIGN", (0, 0), (-1, -1), "BOTTOM"),
@@ -125,44 +147,57 @@ def _page_one(m: ReportModel) -> list[Any]:
         ("TOPPADDING", (0, 0), (-1, 0), 5),
         ("SPAN", (0, 2), (-1, 2)),
     ]))
-    out.append(result)
-    out.append(Spacer(1, 4))
-    out.append(_p(m.provisional_text, "strong" if m.provisional else "body"))
+    head += [result, Spacer(1, 3), _p(m.provisional_text, "strong" if m.provisional else "body")]
 
-    out.append(_h2("Why"))
-    out += _bullets(m.reasons or ["no reason recorded"])
-
-    out.append(_h2(f"Tier probabilities ({m.probability_label})"))
-    out.append(Paragraph("   ·   ".join(f"{esc(t)}  <b>{esc(p)}</b>" for t, p in m.probabilities),
-                         st["body"]))
-    out.append(_p(m.borderline_text, "strong" if m.borderline else "body"))
-    out.append(_p("measure next: " + m.measure_next))
-
-    out.append(_h2("Keep-out distances"))
-    out += _bullets(m.keep_out) if m.keep_out else [
-        _p("no hazard with a height above ground was logged")]
-
-    out.append(_h2("Digital signature"))
-    out.append(_p(m.signer_text, "strong" if m.signer is None else "body"))
-
+    probs: list[Any] = [_h2(f"Tier probabilities ({m.probability_label})")]
+    probs.append(Paragraph("   ·   ".join(f"{esc(t)}  <b>{esc(p)}</b>"
+                                          for t, p in m.probabilities), st["body"]))
+    probs.append(_p(m.borderline_text, "strong" if m.borderline else "body"))
+    probs.append(_p("measure next: " + m.measure_next))
+    signature: list[Any] = [_h2("Digital signature"),
+                            _p(m.signer_text, "strong" if m.signer is None else "body")]
     block = Table([
-        [_p("For the engineer of record: the binding decision, made under local codes and "
-            "with the local building authority, is yours. Sign by hand below.", "small"), ""],
+        [_p("The binding decision, made under local codes and with the local building "
+            "authority, is the engineer of record's. Sign by hand below.", "small"), ""],
         [_p("name", "label"), ""], [_p("registration", "label"), ""],
         [_p("decision and conditions", "label"), ""], ["", ""],
         [_p("signature", "label"), ""], [_p("date", "label"), ""],
-    ], colWidths=[38 * mm, CONTENT_W - 38 * mm],
-        rowHeights=[None, 18, 18, 18, 18, 24, 18])
+    ], colWidths=[38 * mm, CONTENT_W - 38 * mm], rowHeights=[None, 16, 16, 16, 16, 20, 16])
     block.setStyle(TableStyle([
         ("SPAN", (0, 0), (-1, 0)),
         ("LINEBELOW", (1, 1), (1, -1), 0.5, MUTED),
-        ("LINEABOVE", (0, 0), (-1, 0), 0.8, ACCENT),
         ("VALIGN", (0, 1), (-1, -1), "BOTTOM"),
         ("LEFTPADDING", (0, 0), (-1, -1), 0),
     ]))
-    out.append(Spacer(1, 6))
-    out.append(KeepTogether([_h2("Engineer of record"), block]))
-    return out
+    signature += [_h2("Engineer of record"), block]
+
+    why_lines = m.reasons or ["no reason recorded"]
+    keep_lines = m.keep_out or []
+    keep_none = [] if keep_lines else [_p("no hazard with a height above ground was logged")]
+    fixed = [*head, _h2("Why"), *probs, _h2("Keep-out distances"), *keep_none, *signature]
+    room = body_height - _height(fixed) - 14
+    fitted: dict[str, list[Any]] = {}
+    left: list[Any] = []
+    for title, lines in (("Why", why_lines), ("Keep-out distances", keep_lines)):
+        paras = _bullets(lines)
+        note = _p("(more on the next page)", "small")
+        take: list[Any] = []
+        for i, para in enumerate(paras):
+            h = _height([para]) + (_height([note]) if i < len(paras) - 1 else 0.0)
+            if h > room and (take or title != "Why"):
+                break
+            take.append(para)
+            room -= _height([para])
+        if len(take) < len(paras):
+            rest = lines[len(take):]
+            take.append(_p(f"({len(rest)} more on the next page)", "small"))
+            room -= _height([take[-1]])
+            room = min(room, 0.0)
+            left += [_h2(f"{title} (continued)"), *_bullets(rest)]
+        fitted[title] = take
+    out = [*head, _h2("Why"), *fitted["Why"], *probs, _h2("Keep-out distances"),
+           *(fitted["Keep-out distances"] or keep_none), *signature]
+    return out, left
 
 
 def _thumb(path: Any) -> Image | None:
@@ -184,8 +219,11 @@ def _thumb(path: Any) -> Image | None:
     return Image(buf, width=w * scale, height=h * scale)
 
 
-def _rest(m: ReportModel) -> list[Any]:
-    out: list[Any] = [PageBreak(), _h2("Storeys (top to bottom)")]
+def _rest(m: ReportModel, reasons_left: list[Any]) -> list[Any]:
+    out: list[Any] = [PageBreak()]
+    if reasons_left:
+        out += [_h2("Why (continued)"), *reasons_left]
+    out.append(_h2("Storeys (top to bottom)"))
     rows: list[list[Any]] = [["storey", "height m", "drift x", "drift y", "level x", "level y",
                               "R", "grade", "access"]]
     rows += [[s.label, s.height, s.drift_x, s.drift_y, s.level_x, s.level_y, s.r, s.grade,
@@ -204,8 +242,8 @@ def _rest(m: ReportModel) -> list[Any]:
 
     out.append(_h2("Member groups"))
     if m.members:
-        widths = [16 * mm, 16 * mm, 16 * mm, 12 * mm, 11 * mm, 10 * mm, 44 * mm,
-                  CONTENT_W - 125 * mm]
+        widths = [14 * mm, 28 * mm, 15 * mm, 11 * mm, 10 * mm, 9 * mm, 40 * mm,
+                  CONTENT_W - 127 * mm]
         rows = [["storey", "group", "kind", "count", "class", "eta", "class set", "seen"]]
         rows += [[_cell(r.storey, widths[0]), _cell(r.group, widths[1]), r.kind, r.count,
                   r.damage_class, r.eta, _cell(r.class_from, widths[6]),
@@ -357,5 +395,6 @@ def render(m: ReportModel, files: list[tuple[str, bytes, str]], signed: bool) ->
     frame = Frame(doc.leftMargin, doc.bottomMargin, doc.width, doc.height, id="body",
                   leftPadding=0, rightPadding=0, topPadding=0, bottomPadding=0)
     doc.addPageTemplates([PageTemplate(id="page", frames=[frame])])
-    doc.build(_page_one(m) + _rest(m), canvasmaker=_canvas_class(m, files, signed))
+    first, reasons_left = _page_one(m, doc.height)
+    doc.build(first + _rest(m, reasons_left), canvasmaker=_canvas_class(m, files, signed))
     return buf.getvalue()

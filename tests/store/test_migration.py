@@ -1,0 +1,97 @@
+"""Schema migrations: from version 1 to a test-only version 2, every row kept, a backup left."""
+
+from __future__ import annotations
+
+import sqlite3
+from pathlib import Path
+
+import pytest
+
+from tests.store.conftest import sample
+from triage.store import Store, StoreError, schema
+
+
+def _to_2(conn: sqlite3.Connection) -> None:
+    # Test only: what a real next version might do (a column with a default, a new table).
+    conn.execute("ALTER TABLE surveys ADD COLUMN weather TEXT NOT NULL DEFAULT 'unknown'")
+    conn.execute("CREATE TABLE photos (survey_id TEXT REFERENCES surveys(id), path TEXT)")
+
+
+def _broken_to_2(conn: sqlite3.Connection) -> None:
+    conn.execute("ALTER TABLE surveys ADD COLUMN weather TEXT")
+    raise RuntimeError("power cut halfway")
+
+
+def _tables(path: Path) -> dict[str, list[tuple[object, ...]]]:
+    c = sqlite3.connect(path)
+    out = {t: c.execute(f"SELECT * FROM {t} ORDER BY rowid").fetchall()
+           for t in ("surveys", "changes", "assessments", "reports", "meta", "settings")}
+    c.close()
+    return out
+
+
+def _v1(path: Path) -> None:
+    with Store.open(path) as st:
+        for i in range(3):
+            s = sample(f"Building {i}")
+            st.add_survey(s)
+            st.set_value(s.survey_id, "storeys[0].notes", f"note {i}")
+            st.remove_item(s.survey_id, "storeys[1].readings[0]")
+        st.record_report(s.survey_id, 2, "r.pdf", "ff00")
+        st.settings_set("last_gauge_mm", 1500)
+        st.refresh_stale()   # so that opening later has nothing of its own to write
+
+
+def test_version_1_to_2_keeps_every_row_and_leaves_a_backup(tmp_path, monkeypatch):
+    db = tmp_path / "field.db"
+    _v1(db)
+    before = _tables(db)
+    monkeypatch.setattr(schema, "MIGRATIONS", [*schema.MIGRATIONS, _to_2])
+    with Store.open(db) as st:
+        assert st.conn.execute("PRAGMA user_version").fetchone()[0] == 2
+        backup = st.migration_backup
+        weather = {r[0] for r in st.conn.execute("SELECT weather FROM surveys")}
+        assert weather == {"unknown"}
+        assert len(st.list_surveys()) == 3
+    assert backup == tmp_path / "field.v1-backup.db"
+    after = _tables(db)
+    for table, rows in before.items():
+        if table == "surveys":
+            assert [r[:-1] for r in after[table]] == rows   # the new column is the last one
+        else:
+            assert after[table] == rows, table
+    # The backup is the version-1 file as it was.
+    assert _tables(backup) == before
+    c = sqlite3.connect(backup)
+    assert c.execute("PRAGMA user_version").fetchone()[0] == 1
+    c.close()
+    # Opening again migrates nothing and makes no second backup.
+    with Store.open(db) as st:
+        assert st.migration_backup is None
+    assert sorted(p.name for p in tmp_path.glob("*backup*")) == ["field.v1-backup.db"]
+
+
+def test_a_migration_that_fails_leaves_version_1_whole(tmp_path, monkeypatch):
+    db = tmp_path / "field.db"
+    _v1(db)
+    before = _tables(db)
+    monkeypatch.setattr(schema, "MIGRATIONS", [*schema.MIGRATIONS, _broken_to_2])
+    with pytest.raises(RuntimeError, match="power cut"):
+        Store.open(db)
+    c = sqlite3.connect(db)
+    assert c.execute("PRAGMA user_version").fetchone()[0] == 1
+    cols = [r[1] for r in c.execute("PRAGMA table_info(surveys)")]
+    c.close()
+    assert "weather" not in cols
+    assert _tables(db) == before
+    assert (tmp_path / "field.v1-backup.db").exists()
+
+
+def test_this_version_refuses_a_file_of_the_next(tmp_path, monkeypatch):
+    db = tmp_path / "field.db"
+    _v1(db)
+    monkeypatch.setattr(schema, "MIGRATIONS", [*schema.MIGRATIONS, _to_2])
+    Store.open(db).close()
+    monkeypatch.undo()
+    with pytest.raises(StoreError, match="newer triage \\(schema 2; this one knows 1\\)"):
+        Store.open(db)

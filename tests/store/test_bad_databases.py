@@ -8,7 +8,7 @@ from pathlib import Path
 
 import pytest
 
-from tests.store.conftest import sample, write_json, sample_dict
+from tests.store.conftest import sample, sample_dict, write_json
 from triage.store import Store, StoreError
 from triage.store.connect import explain
 

@@ -10,8 +10,7 @@ from hypothesis import strategies as st
 
 from tests.store.conftest import sample, sample_dict
 from triage.model import canonical_json, parse_survey
-from triage.store import EditRefused, Store, StoreError
-from triage.store import edits
+from triage.store import EditRefused, Store, StoreError, edits
 
 
 def _doc(store: Store, sid: str) -> str:
@@ -136,7 +135,7 @@ def test_refused_removals_of_what_others_rely_on(store):
     s = parse_survey(one)
     store.add_survey(s)
     sid = str(s.survey_id)
-    with pytest.raises(StoreError, match="hazards\\[0\\].storey: 'G' names no storey"):
+    with pytest.raises(StoreError, match=r"hazards\[0\]\.storey: 'G' names no storey"):
         store.set_value(sid, "storeys[0].label", "Ground")
     store.remove_item(sid, "hazards[0]")
     with pytest.raises(StoreError, match="storeys: a survey keeps at least one storey"):

@@ -73,7 +73,7 @@ def test_the_summary_reads_stored_assessments_and_never_re_assesses(tmp_path, cl
         # Mark what is stored, without touching the surveys: the summary must show it.
         st.conn.execute("UPDATE surveys SET level = 'CP', gov_storey = 'Z9' "
                         "WHERE building = 'Saltmarsh School'")
-    code, out, _ = cli("--db", str(db), "summary")
+    _code, out, _ = cli("--db", str(db), "summary")
     school = next(r for r in out.splitlines() if r.startswith("Saltmarsh"))
     assert "CP" in school and "Z9" in school
 

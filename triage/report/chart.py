@@ -15,17 +15,20 @@ from reportlab.platypus import Flowable
 from .model import ChartFigure, ChartPoint, pct
 from .style import ACCENT, ACCENT_WEAK, INK, MUTED
 
+# Round tops of the drift axis (in units of a power of ten) and how many ticks divide each.
+_TOPS = ((1, 5), (1.2, 6), (1.5, 3), (2, 4), (2.5, 5), (3, 6), (4, 4), (5, 5), (6, 6), (8, 4),
+         (10, 5))
 
-def _nice_top(v: float) -> float:
-    """A round upper bound for the drift axis, in ratio units."""
+
+def _nice_top(v: float) -> tuple[float, int]:
+    """A round upper bound for the drift axis (ratio units) and its number of tick steps."""
     if v <= 0:
-        return 0.005
-    steps = [1, 1.2, 1.5, 2, 2.5, 3, 4, 5, 6, 8, 10]
+        return 0.005, 5
     mag = 10 ** math.floor(math.log10(v))
-    for s in steps:
-        if s * mag >= v:
-            return s * mag
-    return 10 * mag
+    for top, steps in _TOPS:
+        if top * mag >= v * (1 - 1e-9):
+            return top * mag, steps
+    return 10 * mag, 5
 
 
 class DriftChart(Flowable):
@@ -59,7 +62,7 @@ class DriftChart(Flowable):
         span = max([*measured, *ls, 0.0])
         if cp and span >= 0.7 * min(cp):
             span = max(span, *cp)
-        xmax = _nice_top(span * 1.08)
+        xmax, steps = _nice_top(span * 1.08)
 
         def X(v: float) -> float:
             return left + w * min(v, xmax) / xmax
@@ -74,8 +77,8 @@ class DriftChart(Flowable):
         c.line(left, bottom, left + w, bottom)
         c.setFont(self.font, 7)
         c.setFillColor(INK)
-        for k in range(6):
-            v = xmax * k / 5
+        for k in range(steps + 1):
+            v = xmax * k / steps
             c.line(X(v), bottom, X(v), bottom - 3)
             c.drawCentredString(X(v), bottom - 11, pct(v))
         c.drawCentredString(left + w / 2, bottom - 22, "residual drift ratio (absolute)")

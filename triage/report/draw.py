@@ -220,9 +220,9 @@ def _thumb(path: Any) -> Image | None:
 
 
 def _rest(m: ReportModel, reasons_left: list[Any]) -> list[Any]:
+    """Every page after the first: what page one could not hold, then the detail."""
     out: list[Any] = [PageBreak()]
-    if reasons_left:
-        out += [_h2("Why (continued)"), *reasons_left]
+    out += reasons_left
     out.append(_h2("Storeys (top to bottom)"))
     rows: list[list[Any]] = [["storey", "height m", "drift x", "drift y", "level x", "level y",
                               "R", "grade", "access"]]

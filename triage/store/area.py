@@ -37,33 +37,34 @@ class BuildingRow:
         return self.lat is not None and self.lon is not None
 
 
-_SQL = """
-WITH visible AS (
-  SELECT * FROM surveys WHERE hidden = 0
-), in_conflict AS (
-  SELECT v.building_id FROM visible v
-  WHERE EXISTS (SELECT 1 FROM visible o WHERE o.id = v.conflict_of)
-), ranked AS (
-  SELECT v.*,
-         row_number() OVER (PARTITION BY building_id
-                            ORDER BY at_utc DESC, (conflict_of IS NULL) DESC, id) AS rn,
-         count(*) OVER (PARTITION BY building_id) AS n
-  FROM visible v
-)
+_LATEST = """
 SELECT building_id, building, address, lat, lon, at, inspector, tier, level, gov_storey,
-       provisional, building_id IN (SELECT building_id FROM in_conflict), id, n
-FROM ranked WHERE rn = 1
+       provisional, id, n
+FROM (SELECT id, building_id, building, address, lat, lon, at, inspector, tier, level,
+             gov_storey, provisional,
+             row_number() OVER (PARTITION BY building_id
+                                ORDER BY at_utc DESC, (conflict_of IS NULL) DESC, id) AS rn,
+             count(*) OVER (PARTITION BY building_id) AS n
+      FROM surveys WHERE hidden = 0)
+WHERE rn = 1
 ORDER BY building COLLATE NOCASE, address, building_id
+"""
+
+# Buildings with two visible versions of one survey (the copy names the first).
+_IN_CONFLICT = """
+SELECT DISTINCT c.building_id FROM surveys c JOIN surveys o ON o.id = c.conflict_of
+WHERE c.conflict_of IS NOT NULL AND c.hidden = 0 AND o.hidden = 0
 """
 
 
 def building_rows(store: Store) -> list[BuildingRow]:
     """One row per building id: its latest visible survey (by inspection time, UTC)."""
+    conflicted = {r[0] for r in store.conn.execute(_IN_CONFLICT)}
     out = []
-    for r in store.conn.execute(_SQL):
+    for r in store.conn.execute(_LATEST):
         out.append(BuildingRow(
             building_id=r[0], building=r[1], address=r[2], lat=r[3], lon=r[4], at=r[5],
             inspector=r[6], tier=r[7], level=r[8], governing_storey=r[9],
-            provisional=None if r[10] is None else bool(r[10]), conflict=bool(r[11]),
-            survey_id=r[12], surveys=r[13]))
+            provisional=None if r[10] is None else bool(r[10]), conflict=r[0] in conflicted,
+            survey_id=r[11], surveys=r[12]))
     return out

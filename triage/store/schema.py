@@ -38,7 +38,6 @@ CREATE TABLE surveys (
   inspector TEXT NOT NULL,
   at TEXT NOT NULL,                   -- inspection time as entered (ISO 8601 with offset)
   at_utc TEXT NOT NULL,               -- the same in UTC, for ordering
-  doc TEXT NOT NULL,                  -- canonical triage-survey/1 JSON: the visible items
   revision INTEGER NOT NULL,          -- 1 when stored, +1 with every change
   hidden INTEGER NOT NULL DEFAULT 0,
   source TEXT,                        -- where it came from: file or merged database
@@ -52,8 +51,9 @@ CREATE TABLE surveys (
   provisional INTEGER,
   assessed_revision INTEGER,          -- the revision it was computed for (stale if not current)
   created_at TEXT NOT NULL,
-  updated_at TEXT NOT NULL
-);
+  updated_at TEXT NOT NULL,
+  doc TEXT NOT NULL                   -- canonical triage-survey/1 JSON: the visible items
+);                                    -- (last: the list columns are read without paging it)
 CREATE INDEX surveys_building ON surveys (building_id, at_utc);
 CREATE INDEX surveys_conflict ON surveys (conflict_of) WHERE conflict_of IS NOT NULL;
 CREATE TABLE assessments (

@@ -42,7 +42,8 @@ def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-ar
     r = sub.add_parser("report", help="the report PDF, signed when a key is given")
     r.add_argument("source", metavar="FILE|ID", help="a survey file, or a survey id in the "
                    "database")
-    r.add_argument("-o", "--output", required=True, metavar="OUT.pdf")
+    r.add_argument("-o", "--output", required=True, metavar="OUT.pdf",
+                   help="the PDF to write (replaced if it exists)")
     r.add_argument("--key", metavar="KEYFILE", help="sign with this key")
     r.set_defaults(func=run_report)
 
@@ -157,7 +158,9 @@ def run_report(args: argparse.Namespace) -> int:
     store: Any = None
     revision = None
     photo_dir = None
-    if src.is_file() or not _is_uuid(args.source):
+    if not src.exists() and not _is_uuid(args.source):
+        raise UserError(f"{args.source}: no such file (nor a survey id, which is a UUID)")
+    if src.exists():
         from .common import read_survey_file
 
         survey = read_survey_file(args.source)

@@ -29,7 +29,7 @@ class TriageApp(App[None]):
     CSS_PATH = "app.tcss"
     ENABLE_COMMAND_PALETTE = False
     BINDINGS: ClassVar[list[BindingType]] = [
-        Binding("ctrl+q", "quit", "quit", priority=True),
+        Binding("ctrl+q", "quit", "quit", priority=True, show=False),
         Binding("f1", "help", "help", priority=True),
     ]
 

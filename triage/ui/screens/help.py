@@ -56,6 +56,10 @@ class HelpScreen(ModalScreen[None]):
             yield Static(f"Keys on this screen\n{keys}\n\n{HOW}\n{CAUTION_FULL}",
                          id="help-text", markup=False)
 
+    def on_mount(self) -> None:
+        """Arrow keys scroll the help."""
+        self.query_one("#help-box").focus()
+
     def action_close(self) -> None:
         """Back."""
         self.app.pop_screen()

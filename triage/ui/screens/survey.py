@@ -12,7 +12,7 @@ from typing import Any, ClassVar
 from textual import work
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
-from textual.containers import Horizontal, VerticalScroll
+from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import Screen
 from textual.widgets import Footer, OptionList, Static, TabbedContent, TabPane
 from textual.widgets.option_list import Option
@@ -43,8 +43,10 @@ class SurveyScreen(Screen[None]):
         Binding("f2", "verdict", "verdict", priority=True),
         Binding("f3", "history", "history", priority=True),
         Binding("f4", "report", "report", priority=True),
-        Binding("pageup", "storey(1)", "up", priority=True, key_display="PgUp"),
-        Binding("pagedown", "storey(-1)", "down", priority=True, key_display="PgDn"),
+        Binding("pageup", "storey(1)", "storey up", priority=True, key_display="PgUp",
+                show=False),
+        Binding("pagedown", "storey(-1)", "storey down", priority=True, key_display="PgDn",
+                show=False),
         Binding("escape", "back", "back", priority=True),
         Binding("ctrl+b", "add_below", "storey below", priority=True, show=False),
         Binding("f5", "tab('storey')", "storey tab", priority=True, show=False),
@@ -86,7 +88,9 @@ class SurveyScreen(Screen[None]):
         """Title, storeys, tabs, verdict."""
         yield Static("", id="survey-title", classes="title")
         with Horizontal(id="body"):
-            yield OptionList(id="storeys")
+            with Vertical(id="storey-column"):
+                yield OptionList(id="storeys")
+                yield Static("PgUp ↑\nPgDn ↓", id="storey-keys")
             with TabbedContent(id="tabs", initial="readings"):
                 with TabPane("storey", id="storey"):
                     yield StoreyPane(id="storey-pane")

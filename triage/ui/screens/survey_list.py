@@ -31,6 +31,7 @@ class SurveyListScreen(Screen[None]):
         Binding("ctrl+r", "reinspect", "re-inspect", priority=True),
         Binding("ctrl+t", "hide", "hide", priority=True),
         Binding("ctrl+l", "show_hidden", "hidden too", priority=True),
+        Binding("ctrl+q", "app.quit", "quit", priority=True),
         Binding("down", "cursor(1)", "down", show=False),
         Binding("up", "cursor(-1)", "up", show=False),
     ]

@@ -36,6 +36,10 @@ class VerdictScreen(Screen[None]):
                          id="verdict-text")
         yield Footer(compact=True)
 
+    def on_mount(self) -> None:
+        """Arrow keys and PgUp/PgDn scroll the verdict."""
+        self.query_one("#verdict-body").focus()
+
     def action_close(self) -> None:
         """Back to logging."""
         self.app.pop_screen()

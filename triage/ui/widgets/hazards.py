@@ -18,8 +18,8 @@ class HazardsPane(ItemPane):
     """The hazards of the survey (any time, whatever storey is in view)."""
 
     noun = "hazard"
-    columns = (("#", 3), ("kind", 18), ("where", 14), ("storey", 6), ("height", 6),
-               ("keep-out", 8), ("at least", 11))
+    columns = (("#", 2), ("kind", 15), ("where", 11), ("st.", 4), ("height", 6),
+               ("keep-out", 7), ("at least", 10))
 
     def list_path(self) -> str:
         """Hazards belong to the survey."""
@@ -46,9 +46,17 @@ class HazardsPane(ItemPane):
 
     def _options(self) -> list[tuple[str, str]]:
         s = self.survey_screen.survey
-        return [(f"{group}: {key} — {hint}", key)
-                for group, key, hint in hazard_choices((s.building.system.x,
-                                                        s.building.system.y))]
+        return [(f"{key} ({group})", key)
+                for group, key, _ in hazard_choices((s.building.system.x,
+                                                     s.building.system.y))]
+
+    def hint(self, key: str | None) -> str:
+        """Where to look for a hazard kind, from the forms."""
+        s = self.survey_screen.survey
+        for _, k, hint in hazard_choices((s.building.system.x, s.building.system.y)):
+            if k == key:
+                return hint
+        return ""
 
     def _storeys(self) -> list[tuple[str, str]]:
         return [(st.label, st.label) for st in self.survey_screen.survey.storeys]
@@ -57,7 +65,7 @@ class HazardsPane(ItemPane):
         """Kind, where, storey, height, note."""
         opts = self._options()
         w: list[Any] = [
-            Choice("kind", None, opts, opts[0][1] if opts else None, id="h-kind", width=54),
+            Choice("kind", None, opts, None, allow_blank=True, id="h-kind", width=40),
             Field("where", None, id="h-where", width=30, placeholder="e.g. north parapet"),
             Choice("storey", None, self._storeys(), None, allow_blank=True, id="h-storey"),
             Field("height", None, kind="float", unit="m", id="h-height",
@@ -76,11 +84,23 @@ class HazardsPane(ItemPane):
             for k in ("where", "height_above_ground_m", "note"):
                 self.form[k].set_value(None)
             self.form["storey"].set_value(None)
+            self.form["kind"].set_value(None)
         else:
             for k in KEYS:
                 self.form[k].set_value(getattr(item, k))
         self.note.update("keep-out: a falling hazard's zone is at least as wide as it is "
                          "high; give its height above ground")
+
+    def form_changed(self, widget: Any) -> None:
+        """Say where to look for the kind picked."""
+        if widget is self.form["kind"]:
+            self.note.update(self.hint(widget.value()))
+
+    def on_field_accepted(self, event: Any) -> None:
+        """Show the hint of a kind picked while editing too."""
+        if self.editing is not None and event.field is self.form["kind"]:
+            self.note.update(self.hint(event.value))
+        super().on_field_accepted(event)
 
     def build_item(self) -> dict[str, Any]:
         """The hazard from the form."""

@@ -121,7 +121,7 @@ class MembersPane(ItemPane):
             return ""
         total = sum(m.count for m in st.members)
         return (f"Member groups, storey {st.label} · {total} members in {len(st.members)} "
-                "groups (the storey's sound members are one group)")
+                "groups")
 
     def row(self, index: int, item: Any) -> tuple[str, ...]:
         """One group, with its assessed class and eta."""

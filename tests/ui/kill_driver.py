@@ -1,0 +1,36 @@
+"""Run by the kill test in its own process: drive the app, say when a field shows saved, wait.
+
+    python kill_driver.py DB SURVEY_ID
+"""
+
+from __future__ import annotations
+
+import asyncio
+import sys
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+
+from drive import settle, type_in  # noqa: E402
+
+from triage.ui.app import build_app  # noqa: E402
+
+
+async def main(db: str, sid: str) -> None:
+    app = build_app(Path(db), open_survey=sid, blink=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press("f5")
+        await settle(pilot)
+        f = await type_in(pilot, "s-height", "3.9")
+        if f.status_text.startswith("✓ saved"):
+            print("SHOWN SAVED", flush=True)
+        else:
+            print("NOT SAVED " + f.status_text, flush=True)
+        # keep typing in another field, never accepted, until killed
+        await type_in(pilot, "s-notes", "half typed", enter=False)
+        await asyncio.sleep(120)
+
+
+if __name__ == "__main__":
+    asyncio.run(main(sys.argv[1], sys.argv[2]))

@@ -1,0 +1,41 @@
+"""Killed at any moment (SIGKILL), the app loses nothing it showed as saved."""
+
+from __future__ import annotations
+
+import os
+import signal
+import subprocess
+import sys
+from pathlib import Path
+
+from drive import settle
+
+from triage.store import Store
+
+SID = "11111111-1111-4111-8111-111111111111"
+DRIVER = Path(__file__).with_name("kill_driver.py")
+
+
+async def test_sigkill_after_shown_saved(db: Path, make_app) -> None:
+    env = dict(os.environ)
+    env["PYTHONPATH"] = str(Path(__file__).resolve().parents[2])
+    proc = subprocess.Popen([sys.executable, str(DRIVER), str(db), SID],
+                            stdout=subprocess.PIPE, stderr=subprocess.DEVNULL, env=env,
+                            text=True)
+    try:
+        assert proc.stdout is not None
+        line = proc.stdout.readline().strip()
+        assert line == "SHOWN SAVED", line
+        proc.send_signal(signal.SIGKILL)
+        proc.wait(timeout=20)
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+    assert proc.returncode == -signal.SIGKILL
+    with Store.open(db) as st:
+        assert st.load_survey(SID).storeys[0].height_m == 3.9
+        assert st.load_survey(SID).storeys[0].notes is None  # never accepted, never saved
+    app = make_app(db, open_survey=SID)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        assert app.screen.query_one("#s-height").text == "3.9"

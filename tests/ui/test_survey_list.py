@@ -1,0 +1,118 @@
+"""The survey list: filter by typing, open, re-inspect, hide; the history screen's undo."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from drive import settle, type_in, verdict_text
+
+from triage.store import Store
+from triage.ui.screens.history import HistoryScreen
+from triage.ui.screens.survey import SurveyScreen
+from triage.ui.screens.survey_list import SurveyListScreen
+
+BAKERY = "11111111-1111-4111-8111-111111111111"
+
+
+async def test_filter_by_typing_and_open(db: Path, make_app) -> None:
+    app = make_app(db)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        scr = app.screen
+        assert isinstance(scr, SurveyListScreen)
+        table = scr.query_one("#surveys")
+        assert table.row_count == 2
+        await pilot.press(*"post")
+        await settle(pilot)
+        assert table.row_count == 1
+        assert "Old Post Office" in table.get_row_at(0)[0]
+        await pilot.press("enter")
+        await settle(pilot)
+        assert isinstance(app.screen, SurveyScreen)
+        assert app.screen.survey.building.name == "Old Post Office"
+        # nothing logged: hold, provisional, and the caution
+        assert verdict_text(pilot).startswith("◐ hold")
+        assert "provisional" in verdict_text(pilot)
+        assert "indicative" in verdict_text(pilot)
+
+
+async def test_reinspection_copies_storeys_clears_readings(db: Path, make_app) -> None:
+    app = make_app(db)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press(*"bakery")
+        await settle(pilot)
+        await pilot.press("ctrl+r")
+        await settle(pilot)
+        scr = app.screen
+        assert isinstance(scr, SurveyScreen)
+        new = scr.survey
+        assert str(new.inspection.previous) == BAKERY
+        assert [s.label for s in new.storeys] == ["G", "1"]
+        assert all(not s.readings and not s.members for s in new.storeys)
+        assert str(new.survey_id) != BAKERY
+        with Store.open(db, refresh=False) as st:
+            old = st.load_survey(BAKERY)
+            assert new.building_id == old.building_id
+            assert len(old.storeys[0].readings) == 2  # the earlier survey is untouched
+            assert len(st.list_surveys()) == 3
+
+
+async def test_hide_keeps_the_survey(db: Path, make_app) -> None:
+    app = make_app(db)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press(*"bakery")
+        await pilot.press("ctrl+t")
+        await settle(pilot)
+        table = app.screen.query_one("#surveys")
+        assert table.row_count == 0
+        await pilot.press("ctrl+l")  # hidden ones too
+        await settle(pilot)
+        assert table.row_count == 1
+        assert "h" in table.get_row_at(0)[4]
+    with Store.open(db, refresh=False) as st:
+        assert st.load_survey(BAKERY).building.name == "Harbour Bakery"
+        assert [r.id for r in st.list_surveys()] == ["22222222-2222-4222-8222-222222222222"]
+
+
+async def test_history_lists_changes_and_undoes(db: Path, make_app) -> None:
+    app = make_app(db, open_survey=BAKERY)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press("f5")
+        await settle(pilot)
+        await type_in(pilot, "s-height", "4.1")
+        await pilot.press("f3")
+        await settle(pilot)
+        assert isinstance(app.screen, HistoryScreen)
+        log = app.screen.query_one("#log")
+        newest = log.get_row_at(0)
+        assert newest[1] == "storeys[0].height_m" and newest[2] == "3.2" and newest[3] == "4.1"
+        await pilot.press("ctrl+z")
+        await settle(pilot)
+        assert "undone" in str(app.screen.query_one("#history-status").render())
+        await pilot.press("escape")
+        await settle(pilot)
+        assert app.screen.query_one("#s-height").text == "3.2"
+    with Store.open(db, refresh=False) as st:
+        assert st.load_survey(BAKERY).storeys[0].height_m == 3.2
+
+
+async def test_storey_walk_and_add(db: Path, make_app) -> None:
+    app = make_app(db, open_survey=BAKERY)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        scr = app.screen
+        assert scr.storey.label == "G"
+        await pilot.press("pageup")
+        await settle(pilot)
+        assert scr.storey.label == "1"
+        assert len(scr.query_one("#readings-pane").items()) == 1
+        await pilot.press("f5", "ctrl+n")
+        await settle(pilot)
+        assert [s.label for s in scr.survey.storeys] == ["G", "1", "2"]
+        assert scr.storey.label == "2"
+        await pilot.press("ctrl+z")
+        await settle(pilot)
+        assert [s.label for s in scr.survey.storeys] == ["G", "1"]

@@ -125,16 +125,18 @@ def member_classes(members: Sequence[MemberGroup], std: Standards,
     else:
         crack_class_of = {}
     items = []
+    point_l, sign_l, sd_l = point.tolist(), sign.tolist(), sd.tolist()
+    over_l, cracked_l = over.tolist(), cracked.tolist()
     for i, m in enumerate(members):
-        if over[i]:
-            items.append(MemberClass(int(point[i]), "override", probs[i], None, False))
-        elif cracked[i]:
-            how = "crack" if crack_class_of[i] >= sign[i] else "signs"
-            items.append(MemberClass(int(point[i]), how, probs[i], float(sd[i]),
-                                     m.crack_sd_mm is None))
+        row = probs[i]
+        if over_l[i]:
+            items.append(MemberClass(point_l[i], "override", row, None, False))
+        elif cracked_l[i]:
+            how = "crack" if crack_class_of[i] >= sign_l[i] else "signs"
+            items.append(MemberClass(point_l[i], how, row, sd_l[i], m.crack_sd_mm is None))
         else:
-            items.append(MemberClass(int(point[i]), "signs" if sign[i] else None, probs[i],
-                                     None, False))
+            items.append(MemberClass(point_l[i], "signs" if sign_l[i] else None, row, None,
+                                     False))
     return ClassTable(items, point, probs)
 
 

@@ -14,6 +14,7 @@ The building's level is the worst component's, so P(level <= L) = prod_c P(level
 from __future__ import annotations
 
 import itertools
+import math
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -138,6 +139,24 @@ def _loss_pmf(loss: np.ndarray, probs: np.ndarray, cap: int) -> np.ndarray:
     return out
 
 
+HOEFFDING = 1e-10
+
+
+def _hoeffding(loss: np.ndarray, probs: np.ndarray, cap: int) -> int | None:
+    """1 if P(total loss <= cap) > 1 - HOEFFDING, 0 if it is < HOEFFDING, else None."""
+    live = probs > TINY
+    hi = np.where(live, loss, 0).max(axis=1)
+    lo = np.where(live, loss, np.iinfo(np.int64).max).min(axis=1)
+    spread = float(((hi - lo).astype(float) ** 2).sum())
+    mean = float((np.where(live, loss, 0) * np.where(live, probs, 0.0)).sum())
+    if spread == 0.0:
+        return 1 if mean <= cap + 1e-9 else 0
+    gap = cap + 0.5 - mean  # the half unit: losses are integers
+    if math.exp(-2.0 * gap * gap / spread) < HOEFFDING:
+        return 1 if gap > 0 else 0
+    return None
+
+
 def member_cdf_exact(model: MemberModel, lo: int, hi: int) -> np.ndarray | None:
     """P(level <= L) of a storey's member component, exactly; None if weights fit no grid.
 
@@ -172,8 +191,8 @@ def member_cdf_exact(model: MemberModel, lo: int, hi: int) -> np.ndarray | None:
             pv = probs[vert] * allowed
             pa = pv.sum(axis=1)
             factor = float(np.prod(pa))
-            if factor <= 0.0:
-                out[lv] = 0.0
+            if factor <= TINY:
+                out[lv] = factor if factor > 0 else 0.0  # R's condition can only lower it
                 continue
             probs[vert] = pv / pa[:, None]
         else:
@@ -187,6 +206,16 @@ def member_cdf_exact(model: MemberModel, lo: int, hi: int) -> np.ndarray | None:
             continue
         b = model.grade_bounds[int(np.flatnonzero(ok).max())]
         caps = {d: int(np.floor((1.0 - b) * 20 * scale * terms[d].total + 1e-6)) for d in dirs}
+        # Hoeffding's inequality settles most directions without the sums: a total loss whose
+        # mean lies far from the cap, against the spread its groups allow, meets (or misses)
+        # it with certainty to within HOEFFDING.
+        verdicts = [_hoeffding(loss[d], probs[list(terms[d].groups)], caps[d]) for d in dirs]
+        if any(v == 0 for v in verdicts):
+            out[lv] = 0.0
+            continue
+        if all(v == 1 for v in verdicts):
+            out[lv] = factor
+            continue
 
         def pmf(groups: list[int], d: str, cap: int, p: np.ndarray = probs) -> np.ndarray:
             idx = [rows[d][g] for g in groups]

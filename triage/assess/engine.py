@@ -229,11 +229,17 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
             member_cdfs.append(mc)
         work.append(w)
 
+    non_rc = sorted({getattr(survey.building.system, d) for d in ("x", "y")} - {
+        getattr(survey.building.system, d) for d in rc})
     if survey.storeys and not rc:
-        names = sorted({getattr(survey.building.system, d) for d in ("x", "y")})
         reasons_extra.append(
             "residual capacity R: not computed; the JBDPA method covers reinforced concrete "
-            f"only, not {' or '.join(names)}")
+            f"only, not {' or '.join(non_rc)}")
+    if non_rc and any(m.crack_mm and m.damage_class is None
+                      for st in survey.storeys for m in st.members):
+        notes.append("crack widths are classed by the JBDPA bounds for reinforced concrete "
+                     "(0.2, 1 and 2 mm); on members of " + " and ".join(non_rc) +
+                     " that is an indication of ours, not a published rule")
 
     # --- hazards ---------------------------------------------------------------------------
     hazards: list[HazardResult] = []

@@ -153,3 +153,16 @@ def test_model_imports_no_reportlab():
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          check=True)
     assert out.stdout.strip() == "False"
+
+
+def test_long_text_clipped_in_tables_kept_in_full():
+    from triage.report.model import CLIP, CLIPPED
+
+    long = "parapet stones loose along the whole frontage; " * 20
+    s = make([storey("1", [reading("x", 1.0)])],
+             hazards=[{"kind": "falling_hazard", "where": long, "note": "short"}])
+    m = build_report_model(s, assess(s))
+    assert len(m.hazards[0].where) <= CLIP
+    assert m.hazards[0].where.endswith(CLIPPED)
+    assert m.hazards[0].note == "short"
+    assert m.long_texts == [("hazard 1 (falling_hazard), where", long)]

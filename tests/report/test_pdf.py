@@ -217,3 +217,14 @@ def test_long_lists_continue_and_page_one_keeps_the_signing_block(tmp_path: Path
     for i in range(25):  # every keep-out line is printed somewhere
         assert f"parapet segment {i} along the northern street frontage: keep {5 + i} m" in (
             everything)
+
+
+def test_very_long_entries_still_lay_out(tmp_path: Path):
+    long = "a" * 3000
+    s = make([storey("1", [reading("x", 1.0)], notes=long)],
+             hazards=[{"kind": "utility_hazard", "where": long, "note": "word " * 1500}])
+    out = tmp_path / "long.pdf"
+    write_report(s, assess(s), out)
+    everything = "".join(p.extract_text() for p in PdfReader(out).pages)
+    assert "in full under Notes" in flat(everything)
+    assert everything.replace("\n", "").count("a" * 200) >= 2  # the note and the full "where"

@@ -20,6 +20,7 @@ from reportlab.platypus import (
     Frame,
     Image,
     KeepTogether,
+    LayoutError,
     PageBreak,
     PageTemplate,
     Paragraph,
@@ -226,9 +227,9 @@ def _rest(m: ReportModel, reasons_left: list[Any]) -> list[Any]:
     out.append(_h2("Storeys (top to bottom)"))
     rows: list[list[Any]] = [["storey", "height m", "drift x", "drift y", "level x", "level y",
                               "R", "grade", "access"]]
-    rows += [[s.label, s.height, s.drift_x, s.drift_y, s.level_x, s.level_y, s.r, s.grade,
-              s.access] for s in reversed(m.storeys)]
     w = CONTENT_W / 9
+    rows += [[_cell(s.label, w), s.height, s.drift_x, s.drift_y, s.level_x, s.level_y, s.r,
+              s.grade, s.access] for s in reversed(m.storeys)]
     out.append(_grid(rows, [w] * 9))
     out.append(_p("drift: the largest absolute residual drift ratio read in the storey; level "
                   "by drift (FEMA 356 figures); R: residual seismic capacity ratio where a "
@@ -272,9 +273,10 @@ def _rest(m: ReportModel, reasons_left: list[Any]) -> list[Any]:
         out.append(_h2("Since the previous inspection"))
         out += _bullets(m.comparison) if m.comparison else [_p("nothing changed")]
 
-    if m.storey_notes or m.notes or m.defaulted:
+    if m.storey_notes or m.notes or m.defaulted or m.long_texts:
         out.append(_h2("Notes"))
         out += _bullets([f"storey {lab}: {text}" for lab, text in m.storey_notes])
+        out += _bullets([f"{what}, in full: {text}" for what, text in m.long_texts])
         out += _bullets(m.notes)
         if m.defaulted:
             out.append(_p("uncertainties taken from instrument defaults:", "small"))
@@ -396,5 +398,9 @@ def render(m: ReportModel, files: list[tuple[str, bytes, str]], signed: bool) ->
                   leftPadding=0, rightPadding=0, topPadding=0, bottomPadding=0)
     doc.addPageTemplates([PageTemplate(id="page", frames=[frame])])
     first, reasons_left = _page_one(m, doc.height)
-    doc.build(first + _rest(m, reasons_left), canvasmaker=_canvas_class(m, files, signed))
+    try:
+        doc.build(first + _rest(m, reasons_left), canvasmaker=_canvas_class(m, files, signed))
+    except LayoutError as err:  # an entry that no page can hold: one line, not a traceback
+        raise ValueError("the report cannot be laid out: an entry is too large for a page "
+                         f"({str(err).splitlines()[0][:120]})") from None
     return buf.getvalue()

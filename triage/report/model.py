@@ -18,6 +18,8 @@ from triage.model import Survey
 from triage.standards import Standards, load
 
 DASH = "—"
+CLIP = 300  # longest text put in a table cell; longer ones are printed in full under Notes
+CLIPPED = "… (in full under Notes)"
 
 
 class Comparison(Protocol):
@@ -169,6 +171,7 @@ class ReportModel:
     assumptions: list[AssumptionRow]
     engine: str
     inspector: str = ""
+    long_texts: list[tuple[str, str]] = field(default_factory=list)
     comparison: list[str] | None = None
     extra: dict[str, Any] = field(default_factory=dict)
 
@@ -185,6 +188,19 @@ def pct(v: float | None) -> str:
         return DASH
     p = v * 100.0
     return f"{p:.2f}%" if abs(p) < 1.0 else f"{p:.1f}%"
+
+
+class _Clipper:
+    """Shortens text for table cells, keeping every full text for the Notes section."""
+
+    def __init__(self) -> None:
+        self.full: list[tuple[str, str]] = []
+
+    def __call__(self, what: str, text: str) -> str:
+        if len(text) <= CLIP:
+            return text
+        self.full.append((what, text))
+        return text[:CLIP - len(CLIPPED)].rstrip() + CLIPPED
 
 
 def survey_digest(survey: Survey) -> str:
@@ -279,6 +295,7 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
     std = std or load()
     a = assessment
     b = survey.building
+    clip = _Clipper()
     ins = survey.inspection
     inspector = ins.inspector.name + (f" (id {ins.inspector.id})" if ins.inspector.id else "")
     building = [("building", b.name), ("address", b.address), ("use", b.use or DASH),
@@ -288,6 +305,7 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
         building.insert(2, ("location", f"{b.location.lat:.5f}, {b.location.lon:.5f}"))
     if ins.previous is not None:
         building.append(("follows survey", str(ins.previous)))
+    building = [building[0]] + [(k, clip(k, v)) for k, v in building[1:]]
 
     probs = [(tier_words(t), f"{a.tier_probability.get(t, 0.0):.2f}") for t in TIERS]
     if a.measure_next is not None:
@@ -303,7 +321,8 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
             where = f" at {h.where}" if h.where else ""
             keep_out.append(f"{h.kind}{where}: keep {h.keep_out_m:g} m clear around it")
 
-    storeys = [StoreyRow(label=s.label, height=f"{s.height_m:g}", drift_x=pct(s.drift_ratio.x),
+    storeys = [StoreyRow(label=clip(f"storey {s.label}", s.label), height=f"{s.height_m:g}",
+                         drift_x=pct(s.drift_ratio.x),
                          drift_y=pct(s.drift_ratio.y), level_x=s.performance_level.x or DASH,
                          level_y=s.performance_level.y or DASH,
                          r=DASH if s.residual_capacity is None else f"{s.residual_capacity:.1%}",
@@ -337,19 +356,24 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
             how = {"crack": "by crack width", "signs": "by signs",
                    "override": f"set by the inspector: {mg.override_reason or ''}"}.get(
                        mr.class_from or "", "undamaged")
+            group = f"{mr.index + 1}" + (f" {mr.ref}" if mr.ref else "")
+            what = f"storey {st.label}, member group {group}"
             members.append(MemberRow(
-                storey=st.label, group=f"{mr.index + 1}" + (f" {mr.ref}" if mr.ref else ""),
+                storey=clip(f"storey {st.label}", st.label), group=clip(what, group),
                 kind=mr.kind, count=str(mr.count), damage_class=mr.damage_class or DASH,
-                eta=DASH if mr.eta is None else f"{mr.eta:g}", class_from=how,
-                seen="; ".join(seen) or "nothing seen"))
+                eta=DASH if mr.eta is None else f"{mr.eta:g}",
+                class_from=clip(f"{what}, how the class was set", how),
+                seen=clip(f"{what}, what was seen", "; ".join(seen) or "nothing seen")))
 
     hazards = []
     for hr in a.hazards:
         hs = survey.hazards[hr.index]
-        hazards.append(HazardRow(kind=hr.kind, where=hr.where or DASH, storey=hr.storey or DASH,
+        what = f"hazard {hr.index + 1} ({hr.kind})"
+        hazards.append(HazardRow(kind=hr.kind, where=clip(f"{what}, where", hr.where or DASH),
+                                 storey=clip(f"{what}, storey", hr.storey or DASH),
                                  effect=f"at least {tier_words(hr.tier)}",
                                  keep_out=DASH if hr.keep_out_m is None else f"{hr.keep_out_m:g} m",
-                                 note=hs.note or ""))
+                                 note=clip(f"{what}, note", hs.note or "")))
 
     repair = [(r.name, DASH if r.probability is None else f"{r.probability:.3f}", r.source)
               for r in a.repairability]
@@ -413,5 +437,6 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
         method=_method(std), method_text=method_text, assumptions=assumptions,
         engine=f"triage {a.engine.version}",
         inspector=inspector,
+        long_texts=clip.full,
         comparison=list(comparison.lines()) if comparison is not None else None,
     )

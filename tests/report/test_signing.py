@@ -162,3 +162,12 @@ def test_signed_reports_differ_only_by_time(clinic_pair, key):
     # Ed25519 is deterministic: same key, time and content give the same file
     assert render_report(s, a, key=key, signed_at=t) == one
     assert render_report(s, a, key=key) != one
+
+
+def test_trusted_name_shown_when_the_report_names_another(signed: Path, key):
+    from triage.report.keys import PublicKey
+
+    as_trusted = PublicKey("Aroha N.", "R-77-old", key.public.raw)
+    r = verify_report(signed, trusted=[as_trusted])
+    assert r.code == 0
+    assert "a key trusted here as Aroha N., id R-77-old" in r.message

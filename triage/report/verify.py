@@ -109,9 +109,12 @@ def _verify(pdf: Path, expect: str | None, trusted: list[PublicKey] | None) -> V
         keys = trusted if trusted is not None else _trusted_or_none()
         if keys is None:
             return result(4, f"intact, {line}; the trusted-key list cannot be read")
-        if all(k.fingerprint != signer.fingerprint for k in keys):
+        known = next((k for k in keys if k.fingerprint == signer.fingerprint), None)
+        if known is None:
             return result(4, f"intact, {line}, but that key is not trusted on this laptop "
                           "(triage key trust PUBFILE, or --expect FINGERPRINT)")
+        if (known.name, known.id) != (signer.name, signer.id):
+            line += f" (a key trusted here as {known.name}, id {known.id})"
 
     code, detail, notes = _reassess(survey_data, assess_data)
     return result(code, f"intact, {line}; {detail}", tuple(notes))

@@ -226,6 +226,8 @@ def _systems_text(survey: Survey, std: Standards) -> str:
     sx, sy = survey.building.system.x, survey.building.system.y
     nx = std.drift.systems[sx].name if sx in std.drift.systems else sx
     ny = std.drift.systems[sy].name if sy in std.drift.systems else sy
+    if sx == sy:
+        return f"x and y: {nx} ({sx})"
     return f"x: {nx} ({sx}); y: {ny} ({sy})"
 
 

@@ -38,7 +38,7 @@ def styles() -> dict[str, Any]:
                              spaceBefore=8, spaceAfter=3, textColor=ACCENT),
         "tier": ParagraphStyle("tier", parent=base, fontName=bold, fontSize=24, leading=28,
                                textColor=ACCENT),
-        "level": ParagraphStyle("level", parent=base, fontName=bold, fontSize=18, leading=28,
+        "level": ParagraphStyle("level", parent=base, fontName=bold, fontSize=18, leading=22,
                                 textColor=ACCENT),
         "strong": ParagraphStyle("strong", parent=base, fontName=bold),
         "bullet": ParagraphStyle("bullet", parent=base, leftIndent=10, bulletIndent=0,

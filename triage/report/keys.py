@@ -135,7 +135,8 @@ def _write_new(path: Path, data: bytes, mode: int) -> None:
     fd = os.open(path, os.O_WRONLY | os.O_CREAT | os.O_EXCL, mode)
     try:
         os.write(fd, data)
-        os.fchmod(fd, mode)
+        if hasattr(os, "fchmod"):  # POSIX: make sure the umask did not widen or narrow it
+            os.fchmod(fd, mode)
     finally:
         os.close(fd)
 

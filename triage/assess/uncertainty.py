@@ -116,7 +116,9 @@ def _loss_pmf(loss: np.ndarray, probs: np.ndarray, cap: int) -> np.ndarray:
     width = cap - const + 1
     shift = np.where(live, loss - lo[:, None], 0)
     keep = live & (shift < width)
-    moving = (shift * keep).max(axis=1) > 0
+    # A group with more than one possible class moves the sum; its kernel keeps only the
+    # outcomes under the cap (its lost mass is what the cap cuts off).
+    moving = live.sum(axis=1) > 1
     if not moving.any():
         out[const] = 1.0
         return out

@@ -91,3 +91,23 @@ def test_command_refuses_two_buildings_unless_forced(tmp_path):
     assert bad.stderr.count("\n") == 1
     forced = subprocess.run([*run, paths[0], paths[2], "--force"], capture_output=True, text=True)
     assert forced.returncode == 0 and "different buildings" in forced.stdout
+
+
+def test_report_of_a_reinspection_has_the_since_previous_section(tmp_path):
+    import pypdf
+
+    from triage.resources import samples_dir
+
+    db = tmp_path / "db.sqlite"
+    first = samples_dir() / "flats_mariner_court_1.json"
+    second = samples_dir() / "flats_mariner_court_2.json"
+    base = [sys.executable, "-m", "triage", "--db", str(db)]
+    assert subprocess.run([*base, "import", str(first), str(second)],
+                          capture_output=True).returncode == 0
+    sid = json.loads(second.read_text(encoding="utf-8"))["id"]
+    out = tmp_path / "r.pdf"
+    done = subprocess.run([*base, "report", sid, "-o", str(out)], capture_output=True, text=True)
+    assert done.returncode == 0, done.stderr
+    text = "".join(p.extract_text() for p in pypdf.PdfReader(str(out)).pages)
+    assert "Since the previous inspection" in text
+    assert "worsened from class III to V" in text

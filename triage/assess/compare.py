@@ -11,6 +11,7 @@ new survey, is listed. Hazards are matched by kind, storey and place.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from typing import Literal
 
 from pydantic import BaseModel, ConfigDict
@@ -221,3 +222,23 @@ def compare(old: Survey, old_a: Assessment, new: Survey, new_a: Assessment) -> C
                           for h in new.hazards if key(h) not in old_keys),
         cleared_hazards=tuple(HazardNote(kind=h.kind, where=h.where, storey=h.storey)
                               for h in old.hazards if key(h) not in new_keys))
+
+
+def since_previous(survey: Survey, assessment: Assessment,
+                   load_previous: Callable[[str], tuple[Survey, Assessment] | None],
+                   ) -> Comparison | None:
+    """The comparison with the survey's `previous` one, when it names one that can be found.
+
+    `load_previous(id)` returns the earlier survey with its assessment, or None. A previous
+    survey of another building is not compared (None).
+    """
+    prev_id = survey.inspection.previous
+    if prev_id is None:
+        return None
+    found = load_previous(str(prev_id))
+    if found is None:
+        return None
+    old, old_a = found
+    if old.building_id != survey.building_id:
+        return None
+    return compare(old, old_a, survey, assessment)

@@ -169,9 +169,10 @@ def run_report(args: argparse.Namespace) -> int:
         store, survey, revision = _from_store(args)
     try:
         assessment = assess(survey)
+        comparison = _since_previous(survey, assessment, store, args)
         try:
             info = write_report(survey, assessment, out, key=key, revision=revision,
-                                photo_dir=photo_dir)
+                                photo_dir=photo_dir, comparison=comparison)
         except ValueError as err:
             raise UserError(str(err)) from None
         if store is not None and revision is not None:
@@ -185,6 +186,45 @@ def run_report(args: argparse.Namespace) -> int:
     sys.stdout.write(f"report written to {out} ({info.pages} pages, {signed}{rev}); "
                      f"tier {assessment.tier}, indicative only\n")
     return 0
+
+
+def _since_previous(survey: Any, assessment: Any, store: Any,
+                    args: argparse.Namespace) -> Any:
+    """The "since the previous inspection" comparison, when the earlier survey is stored.
+
+    It is looked up in the open database, else in the `--db` (or default) database if one
+    exists; a survey file whose previous survey is nowhere here gets no such section.
+    """
+    from triage.assess import assess
+    from triage.assess.compare import since_previous
+
+    if survey.inspection.previous is None:
+        return None
+    own = store
+    if own is None:
+        try:
+            from triage.store import Store, StoreError, default_db_path
+        except ImportError:
+            return None
+        db = Path(args.db) if getattr(args, "db", None) else default_db_path()
+        if not db.exists():
+            return None
+        try:
+            own = Store.open(db, create=False)
+        except StoreError:
+            return None
+
+    def load(prev_id: str) -> Any:
+        if not own.has_survey(prev_id):
+            return None
+        old = own.load_survey(prev_id)
+        return old, assess(old)
+
+    try:
+        return since_previous(survey, assessment, load)
+    finally:
+        if own is not store:
+            own.close()
 
 
 def _from_store(args: argparse.Namespace) -> tuple[Any, Any, int]:

@@ -192,3 +192,20 @@ def test_partial_validation_matches_full_validation(steps):
         full = parse_survey(json.loads(json.dumps(applied.doc))).to_json_dict()
         assert canonical_json(applied.doc) == canonical_json(full)
         doc = applied.doc
+
+
+def test_an_edit_is_judged_on_the_survey_as_another_process_left_it(db, stored):
+    store, sid = stored
+    store.set_value(sid, "storeys[0].notes", "this store now keeps the JSON between edits")
+    with Store.open(db, refresh=False) as other:
+        other.set_value(sid, "storeys[2].label", "R")
+    # Against what this store saw last, '2' would be a duplicate label: now it is free.
+    store.set_value(sid, "storeys[1].label", "2")
+    assert [x.label for x in store.load_survey(sid).storeys] == ["G", "2", "R"]
+    with Store.open(db, refresh=False) as other:
+        other.add_item(sid, "hazards", {"kind": "falling_hazard", "storey": "2"})
+    # Against what this store saw last, nothing names storey '2': now a hazard does.
+    with pytest.raises(EditRefused, match=r"hazards\[0\]\.storey: '2' names no storey"):
+        store.set_value(sid, "storeys[1].label", "Z")
+    s = store.load_survey(sid)
+    assert s.storeys[1].label == "2" and s.hazards[0].storey == "2"

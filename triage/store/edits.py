@@ -15,6 +15,8 @@ Paths name fields the way the survey file does: `building.name`, `storeys[2].lab
 from __future__ import annotations
 
 import copy
+import functools
+import json
 import re
 from dataclasses import dataclass
 from typing import Any
@@ -43,10 +45,12 @@ class EditRefused(StoreError, ValueError):
     """An edit broke a rule; `str()` is one line naming the field path and the rule."""
 
 
-def parse_path(path: str) -> list[Token]:
-    """`storeys[2].readings[1].offset_mm` -> ['storeys', 2, 'readings', 1, 'offset_mm']."""
-    if not isinstance(path, str) or not path:
-        raise EditRefused("(path): an edit names a field, e.g. storeys[0].label")
+# The same text as triage.model.canonical_json, with the encoder made once.
+_encode = json.JSONEncoder(sort_keys=True, separators=(",", ":"), ensure_ascii=False).encode
+
+
+@functools.lru_cache(maxsize=4096)
+def _parse(path: str) -> tuple[Token, ...]:
     out: list[Token] = []
     for part in path.split("."):
         m = _TOKEN.fullmatch(part)
@@ -54,7 +58,14 @@ def parse_path(path: str) -> list[Token]:
             raise EditRefused(f"{path}: not a field path (e.g. storeys[0].readings[1].offset_mm)")
         out.append(m.group(1))
         out.extend(int(i) for i in _INDEX.findall(m.group(2)))
-    return out
+    return tuple(out)
+
+
+def parse_path(path: str) -> list[Token]:
+    """`storeys[2].readings[1].offset_mm` -> ['storeys', 2, 'readings', 1, 'offset_mm']."""
+    if not isinstance(path, str) or not path:
+        raise EditRefused("(path): an edit names a field, e.g. storeys[0].label")
+    return list(_parse(path))
 
 
 def format_path(tokens: list[Token]) -> str:
@@ -310,3 +321,65 @@ def apply(doc: dict[str, Any], op: str, path: str, value: Any) -> Applied:
         except (KeyError, IndexError, TypeError):
             new_value = None
     return Applied(out, applied.op, applied.path, applied.old, new_value)
+
+
+class CanonicalText:
+    """`canonical_json(doc)` of one survey, re-encoding only what an edit replaced.
+
+    Edits copy on write, so a block, storey, reading or member group no edit touched is the
+    very same object as before; its text is kept by identity (the memo holds the object, so
+    its id cannot be reused). The result is the same string `triage.model.canonical_json`
+    gives (a test checks it).
+    """
+
+    LIMIT = 1024   # entries kept before pruning to what the current survey holds
+
+    def __init__(self) -> None:
+        self._memo: dict[int, tuple[Any, str]] = {}
+
+    def _cached(self, obj: Any, make: Any) -> str:
+        hit = self._memo.get(id(obj))
+        if hit is not None and hit[0] is obj:
+            return hit[1]
+        t: str = make(obj)
+        self._memo[id(obj)] = (obj, t)
+        return t
+
+    def _storey(self, st: Any) -> str:
+        if not isinstance(st, dict):
+            return _encode(st)
+        parts = []
+        for key in sorted(st):
+            value = st[key]
+            if key in ("readings", "members") and isinstance(value, list):
+                encoded = "[" + ",".join(self._cached(x, _encode) for x in value) + "]"
+            else:
+                encoded = _encode(value)
+            parts.append(_encode(key) + ":" + encoded)
+        return "{" + ",".join(parts) + "}"
+
+    def text(self, doc: dict[str, Any]) -> str:
+        """The canonical JSON text of `doc`."""
+        parts = []
+        for key in sorted(doc):
+            value = doc[key]
+            if key == "storeys" and isinstance(value, list):
+                encoded = "[" + ",".join(self._cached(st, self._storey) for st in value) + "]"
+            elif isinstance(value, dict | list):
+                encoded = self._cached(value, _encode)
+            else:
+                encoded = _encode(value)
+            parts.append(_encode(key) + ":" + encoded)
+        if len(self._memo) > self.LIMIT:
+            self._prune(doc)
+        return "{" + ",".join(parts) + "}"
+
+    def _prune(self, doc: dict[str, Any]) -> None:
+        live: list[Any] = [v for v in doc.values() if isinstance(v, dict | list)]
+        for st in doc.get("storeys") or ():
+            live.append(st)
+            if isinstance(st, dict):
+                for key in ("readings", "members"):
+                    live.extend(st.get(key) or ())
+        keep = {id(x) for x in live}
+        self._memo = {k: v for k, v in self._memo.items() if k in keep}

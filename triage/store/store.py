@@ -44,9 +44,11 @@ def _who_default() -> str:
         return "unknown"
 
 
+_encode = json.JSONEncoder(ensure_ascii=False, separators=(",", ":")).encode
+
+
 def _dump(value: Any) -> str | None:
-    return None if value is None else json.dumps(value, ensure_ascii=False,
-                                                 separators=(",", ":"))
+    return None if value is None else _encode(value)
 
 
 def _load(text: str | None) -> Any:
@@ -161,6 +163,7 @@ class Store:
         self.clock = clock or _now_utc
         self.migration_backup: Path | None = None
         self._docs: dict[str, tuple[int, dict[str, Any]]] = {}
+        self._texts: dict[str, edits.CanonicalText] = {}
 
     # --- opening -------------------------------------------------------------------------
 
@@ -218,6 +221,7 @@ class Store:
     def forget_cache(self) -> None:
         """Drop the survey JSON kept between edits (after writes not made through `_edit`)."""
         self._docs.clear()
+        self._texts.clear()
 
     def _write(self) -> Any:
         return immediate(self.conn, self.path)
@@ -344,32 +348,61 @@ class Store:
 
     def _commit_edit(self, c: sqlite3.Connection, sid: str, rev: int,
                      applied: edits.Applied, op: str, who: str | None,
-                     undoes: str | None = None) -> Change:
+                     undoes: str | None = None) -> Change | None:
+        """Write the row (only if still at `rev`) and its change; None if it had moved on."""
         new_rev = rev + 1
         now = self._stamp()
-        cols = list_columns(applied.doc)
-        c.execute(
-            "UPDATE surveys SET doc = :doc, revision = :rev, building_id = :building_id, "
-            "building = :building, address = :address, lat = :lat, lon = :lon, "
-            "inspector = :inspector, at = :at, at_utc = :at_utc, updated_at = :now "
-            "WHERE id = :id",
-            {**cols, "doc": canonical_json(applied.doc), "rev": new_rev, "now": now, "id": sid})
+        text = self._texts.setdefault(sid, edits.CanonicalText()).text(applied.doc)
+        if applied.path.startswith(("building", "inspection")):
+            # The list columns copy these blocks; other edits leave them (and their index) be.
+            cur = c.execute(
+                "UPDATE surveys SET doc = :doc, revision = :rev, building_id = :building_id, "
+                "building = :building, address = :address, lat = :lat, lon = :lon, "
+                "inspector = :inspector, at = :at, at_utc = :at_utc, updated_at = :now "
+                "WHERE id = :id AND revision = :was",
+                {**list_columns(applied.doc), "doc": text, "rev": new_rev, "now": now,
+                 "id": sid, "was": rev})
+        else:
+            cur = c.execute("UPDATE surveys SET doc = ?, revision = ?, updated_at = ? "
+                            "WHERE id = ? AND revision = ?", (text, new_rev, now, sid, rev))
+        if cur.rowcount != 1:
+            return None
         uid = str(uuid.uuid4())
-        old, new = _dump(applied.old), _dump(applied.new)
+        who = who or self.who
         cur = c.execute(
             "INSERT INTO changes (uid, survey_id, revision, op, path, old, new, at, who, undoes) "
             "VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
-            (uid, sid, new_rev, op, applied.path, old, new, now, who or self.who, undoes))
+            (uid, sid, new_rev, op, applied.path, _dump(applied.old), _dump(applied.new), now,
+             who, undoes))
         return Change(int(cur.lastrowid or 0), uid, sid, new_rev, op, applied.path,
-                      applied.old, applied.new, now, who or self.who, undoes)
+                      applied.old, applied.new, now, who, undoes)
 
     def _edit(self, survey_id: str | uuid.UUID, op: str, path: str, value: Any,
               who: str | None) -> Change:
         sid = str(survey_id)
         with self._write() as c:
-            rev, doc = self._current(c, sid)
-            applied = edits.apply(doc, op, path, value)
-            change = self._commit_edit(c, sid, rev, applied, op, who)
+            # Optimistic: the JSON kept since this store's last edit, checked by the UPDATE's
+            # revision condition under the write lock; reloaded if another process moved on.
+            cached = self._docs.get(sid)
+            change = None
+            if cached is not None:
+                try:
+                    applied = edits.apply(cached[1], op, path, value)
+                except edits.EditRefused:
+                    # Refuse only on the survey as it is now, not as this store last saw it.
+                    row = c.execute("SELECT revision FROM surveys WHERE id = ?",
+                                    (sid,)).fetchone()
+                    if row is not None and int(row[0]) == cached[0]:
+                        raise
+                else:
+                    change = self._commit_edit(c, sid, cached[0], applied, op, who)
+            if change is None:
+                self._docs.pop(sid, None)
+                rev, doc = self._current(c, sid)
+                applied = edits.apply(doc, op, path, value)
+                change = self._commit_edit(c, sid, rev, applied, op, who)
+                if change is None:   # cannot happen under the write lock
+                    raise StoreError(f"survey {sid}: changed during the edit; try again")
         self._docs[sid] = (change.revision, applied.doc)
         return change
 
@@ -420,6 +453,8 @@ class Store:
                                                         target.new)
             applied = edits.apply(doc, inv_op, inv_path, inv_value)
             change = self._commit_edit(c, sid, rev, applied, "undo", who, undoes=target.uid)
+            if change is None:
+                raise StoreError(f"survey {sid}: changed during the undo; try again")
         self._docs[sid] = (change.revision, applied.doc)
         return target
 

@@ -173,6 +173,7 @@ EDITS = st.sampled_from([
 @given(st.lists(st.tuples(EDITS, st.integers(0, 2), st.data()), min_size=1, max_size=12))
 def test_partial_validation_matches_full_validation(steps):
     doc = sample().to_json_dict()
+    text = edits.CanonicalText()
     for (op, path, values), s, data in steps:
         value = data.draw(values)
         p = path.format(s=s)
@@ -191,6 +192,8 @@ def test_partial_validation_matches_full_validation(steps):
             continue
         full = parse_survey(json.loads(json.dumps(applied.doc))).to_json_dict()
         assert canonical_json(applied.doc) == canonical_json(full)
+        # The text kept between edits is the canonical text of the survey as it now is.
+        assert text.text(applied.doc) == canonical_json(full)
         doc = applied.doc
 
 

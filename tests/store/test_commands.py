@@ -234,3 +234,20 @@ def test_reading_commands_do_not_create_a_database(tmp_path, cli, command):
             "backup": ["backup", "-o", str(tmp_path / "b.db")]}[command]
     code, _, err = cli("--db", str(db), *args)
     assert code == 1 and "no database there" in err and not db.exists()
+
+
+def test_a_report_pdf_carrying_its_survey_imports_like_the_json(tmp_path, cli):
+    from triage.assess import assess
+    from triage.report import write_report
+
+    survey = parse_survey(sample_dict("Kelp Street House"))
+    pdf = tmp_path / "report.pdf"
+    write_report(survey, assess(survey), pdf)
+    db = tmp_path / "f.db"
+    code, out, err = cli("--db", str(db), "import", str(pdf))
+    assert code == 0, err
+    assert out.startswith(f"imported {survey.survey_id}")
+    with Store.open(db) as st_:
+        assert st_.load_survey(survey.survey_id) == survey
+    code, out, _ = cli("--db", str(db), "import", str(pdf))
+    assert code == 0 and out.startswith("unchanged")

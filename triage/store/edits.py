@@ -17,6 +17,7 @@ from __future__ import annotations
 import copy
 import functools
 import json
+import math
 import re
 from dataclasses import dataclass
 from typing import Any
@@ -47,6 +48,25 @@ class EditRefused(StoreError, ValueError):
 
 # The same text as triage.model.canonical_json, with the encoder made once.
 _encode = json.JSONEncoder(sort_keys=True, separators=(",", ":"), ensure_ascii=False).encode
+_string = json.encoder.encode_basestring   # what that encoder writes for a str
+
+
+def _scalar(v: Any) -> str:
+    """`_encode(v)` for the plain values of a storey, without building an encoder."""
+    if v is None:
+        return "null"
+    if v is True:
+        return "true"
+    if v is False:
+        return "false"
+    t = type(v)
+    if t is str:
+        return _string(v)
+    if t is int:
+        return int.__repr__(v)
+    if t is float and math.isfinite(v):
+        return float.__repr__(v)
+    return _encode(v)
 
 
 @functools.lru_cache(maxsize=4096)
@@ -351,11 +371,12 @@ class CanonicalText:
         parts = []
         for key in sorted(st):
             value = st[key]
-            if key in ("readings", "members") and isinstance(value, list):
-                encoded = "[" + ",".join(self._cached(x, _encode) for x in value) + "]"
+            if type(value) is list:
+                encoded = ("[" + ",".join(self._cached(x, _encode) for x in value) + "]"
+                           if value else "[]")
             else:
-                encoded = _encode(value)
-            parts.append(_encode(key) + ":" + encoded)
+                encoded = _scalar(value)
+            parts.append(_string(key) + ":" + encoded)
         return "{" + ",".join(parts) + "}"
 
     def text(self, doc: dict[str, Any]) -> str:
@@ -363,13 +384,14 @@ class CanonicalText:
         parts = []
         for key in sorted(doc):
             value = doc[key]
-            if key == "storeys" and isinstance(value, list):
+            t = type(value)
+            if key == "storeys" and t is list:
                 encoded = "[" + ",".join(self._cached(st, self._storey) for st in value) + "]"
-            elif isinstance(value, dict | list):
+            elif t is dict or t is list:
                 encoded = self._cached(value, _encode)
             else:
-                encoded = _encode(value)
-            parts.append(_encode(key) + ":" + encoded)
+                encoded = _scalar(value)
+            parts.append(_string(key) + ":" + encoded)
         if len(self._memo) > self.LIMIT:
             self._prune(doc)
         return "{" + ",".join(parts) + "}"

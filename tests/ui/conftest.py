@@ -13,11 +13,11 @@ import pytest
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-from helpers import reading, storey, survey_dict  # noqa: E402
+from helpers import reading, storey, survey_dict
 
-from triage.model import parse_survey  # noqa: E402
-from triage.store import Store  # noqa: E402
-from triage.ui.app import TriageApp, build_app  # noqa: E402
+from triage.model import parse_survey
+from triage.store import Store
+from triage.ui.app import TriageApp, build_app
 
 KOWHAI = timezone(timedelta(hours=13))
 NOW = datetime(2026, 11, 29, 10, 30, tzinfo=KOWHAI)

@@ -11,9 +11,9 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-from drive import settle, type_in  # noqa: E402
+from drive import settle, type_in
 
-from triage.ui.app import build_app  # noqa: E402
+from triage.ui.app import build_app
 
 
 async def main(db: str, sid: str) -> None:

@@ -9,7 +9,7 @@ from pathlib import Path
 from .errors import UserError
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+def add_parser(sub: argparse._SubParsersAction) -> None:
     """Register the commands of this module."""
     p = sub.add_parser("demo", help="open the screens on a scratch database loaded with the "
                        "demo surveys (an invented town and event)")
@@ -28,12 +28,12 @@ def _open(db: Path) -> int:
     return 0
 
 
-def run(args: argparse.Namespace) -> int:
-    """`triage demo`: a scratch copy of the sample surveys, in a temporary folder."""
+def prepare_demo(folder: Path | None = None) -> Path:
+    """A scratch database in a new temporary folder, loaded with the sample surveys."""
     from triage.resources import samples_dir
     from triage.ui.data import FieldData, Refused
 
-    folder = Path(tempfile.mkdtemp(prefix="triage-demo-"))
+    folder = folder or Path(tempfile.mkdtemp(prefix="triage-demo-"))
     db = folder / "demo.db"
     try:
         data = FieldData(db)
@@ -41,10 +41,16 @@ def run(args: argparse.Namespace) -> int:
         raise UserError(str(err)) from None
     try:
         data.load_samples(samples_dir(), "demo")
-        data.remember("last_inspector_name", "Demo Inspector")
+        if not data.setting("last_inspector_name"):
+            data.remember("last_inspector_name", "Demo Inspector")
     finally:
         data.close()
-    return _open(db)
+    return db
+
+
+def run(args: argparse.Namespace) -> int:
+    """`triage demo`: the screens on a scratch copy of the sample surveys."""
+    return _open(prepare_demo())
 
 
 def run_default(args: argparse.Namespace) -> int:

@@ -10,8 +10,7 @@ from textual.app import App
 from textual.binding import Binding, BindingType
 from textual.theme import Theme
 
-from triage.ui.data import Clock, FieldData, default_who
-
+from triage.ui.data import Clock, FieldData, VerdictThread, default_who
 
 # One accent hue (a slate blue) in stronger or weaker weight; no traffic-light colours: the
 # theme's success, warning and error colours are the same hue, so no widget turns green,
@@ -45,6 +44,7 @@ class TriageApp(App[None]):
         self.key_dir = key_dir
         self.report_dir = report_dir or self.db_path.parent / "reports"
         self.who = str(self.data.setting("last_inspector_name") or default_who())
+        self.verdicts = VerdictThread(self.db_path)
 
     def on_mount(self) -> None:
         """Open on the survey list (or straight on one survey)."""
@@ -73,6 +73,7 @@ class TriageApp(App[None]):
 
     def on_unmount(self) -> None:
         """Close the database."""
+        self.verdicts.close()
         self.data.close()
 
 

@@ -11,6 +11,7 @@ A `sqlite3` connection belongs to the thread that opened it, so work done in a t
 
 from __future__ import annotations
 
+import contextlib
 import getpass
 import re
 import uuid
@@ -179,8 +180,11 @@ class FieldData:
         return self.add_survey(data, who, source="new survey")
 
     def reinspect(self, survey_id: str, inspector: dict[str, Any], who: str) -> str:
-        """A re-inspection of a survey: building and storeys copied, readings and damage
-        cleared, the earlier survey linked as `previous`; returns the new survey's id."""
+        """A re-inspection of a survey; returns the new survey's id.
+
+        Building and storeys are copied, readings and damage cleared, and the earlier survey
+        is linked as `previous`.
+        """
         old = self.load(survey_id).to_json_dict()
         storeys = [{"label": s["label"], "height_m": s["height_m"],
                     "below_grade": s.get("below_grade", False)} for s in old["storeys"]]
@@ -232,16 +236,54 @@ def worker_store(db_path: Path) -> Iterator[Store]:
         st.close()
 
 
-def compute_verdict(db_path: Path, survey_id: str) -> Verdict:
-    """Load the survey, assess it and store the assessment (run in a thread worker)."""
+def _verdict(st: Store, survey_id: str) -> Verdict:
     from triage.assess import assess
 
-    with worker_store(db_path) as st:
-        revision = int(st.revision(survey_id))
-        survey = st.load_survey(survey_id)
-        assessment = assess(survey)
-        st.save_assessment(survey_id, revision, assessment)
+    revision = int(st.revision(survey_id))
+    survey = st.load_survey(survey_id)
+    assessment = assess(survey)
+    st.save_assessment(survey_id, revision, assessment)
     return Verdict(survey, assessment, revision)
+
+
+def compute_verdict(db_path: Path, survey_id: str) -> Verdict:
+    """Load the survey, assess it and store the assessment (in any thread but the UI's)."""
+    with worker_store(db_path) as st:
+        return _verdict(st, survey_id)
+
+
+class VerdictThread:
+    """One background thread that assesses, with its own store kept open between runs.
+
+    Opening and closing a connection for every verdict costs more than the assessment of a
+    small survey; this thread keeps one. `submit` returns a future.
+    """
+
+    def __init__(self, db_path: Path) -> None:
+        from concurrent.futures import ThreadPoolExecutor
+
+        self.db_path = Path(db_path)
+        self.pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="verdict")
+        self._store: Store | None = None
+
+    def _run(self, survey_id: str) -> Verdict:
+        if self._store is None:
+            self._store = Store.open(self.db_path, create=False, refresh=False)
+        return _verdict(self._store, survey_id)
+
+    def submit(self, survey_id: str) -> Any:
+        """Assess a survey in the thread; a concurrent.futures.Future of its `Verdict`."""
+        return self.pool.submit(self._run, survey_id)
+
+    def close(self) -> None:
+        """Close the thread's store and end the thread."""
+        def shut() -> None:
+            if self._store is not None:
+                self._store.close()
+                self._store = None
+        with contextlib.suppress(Exception):  # the thread may be gone already
+            self.pool.submit(shut).result(timeout=5)
+        self.pool.shutdown(wait=False)
 
 
 # --- the field forms (forms/): what to look for, per storey systems -------------------------
@@ -270,8 +312,11 @@ def member_kinds(systems: tuple[str, ...]) -> list[str]:
 
 
 def sign_choices(systems: tuple[str, ...], kind: str) -> list[tuple[str, str]]:
-    """(sign key, where to look) for a member kind, from the forms of the storey's systems;
-    signs of the sign table for that kind that no form lists come after, without a hint."""
+    """(sign key, where to look) for a member kind, from the forms of the storey's systems.
+
+    Signs of the sign table for that kind that no form lists come after, with their
+    description as the hint.
+    """
     from triage import standards
 
     out: dict[str, str] = {}

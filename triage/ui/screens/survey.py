@@ -7,6 +7,7 @@ drawn when it comes back. The UI thread never assesses.
 
 from __future__ import annotations
 
+import asyncio
 from typing import Any, ClassVar
 
 from textual import work
@@ -16,10 +17,11 @@ from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import Screen
 from textual.widgets import Footer, OptionList, Static, TabbedContent, TabPane
 from textual.widgets.option_list import Option
-from textual.worker import Worker, WorkerState, get_current_worker
+from textual.worker import Worker, WorkerState
 
-from triage.ui.data import Refused, Verdict, compute_verdict, next_label, rule_of
+from triage.ui.data import Refused, Verdict, next_label, rule_of
 from triage.ui.messages import FieldAccepted
+from triage.ui.widgets.field import set_text
 from triage.ui.widgets.hazards import HazardsPane
 from triage.ui.widgets.members import MembersPane
 from triage.ui.widgets.pane import ItemPane
@@ -141,9 +143,9 @@ class SurveyScreen(Screen[None]):
         elif row is not None and row.edited_since_report is False:
             report = " · report issued"
         prev = " · re-inspection" if self.survey.inspection.previous else ""
-        self.query_one("#survey-title", Static).update(
-            f"{b.name} · {b.address} · rev {self.revision}{report}{prev}"
-            + (f" · {note}" if note else ""))
+        set_text(self.query_one("#survey-title", Static),
+                 f"{b.name} · {b.address} · rev {self.revision}{report}{prev}"
+                 + (f" · {note}" if note else ""), fixed=True)
 
     def fill_storeys(self) -> None:
         """The storey list, top storey first (as the building stands)."""
@@ -212,7 +214,8 @@ class SurveyScreen(Screen[None]):
         event.field.mark_saved()
         self.after_save(rev, structural=event.path.endswith(".label"))
         if event.path.endswith((".count", ".kind", ".crack_mm", ".signs", ".damage_class")):
-            self.query_one(MembersPane).class_line.update("class: working it out …")
+            set_text(self.query_one(MembersPane).class_line, "class: working it out …",
+                     fixed=True)
 
     def after_save(self, revision: int, structural: bool = False) -> None:
         """A change is in the store: update the title, then the verdict."""
@@ -329,13 +332,12 @@ class SurveyScreen(Screen[None]):
         line.show(self.assessment, pending=True)
         self.verdict_worker()
 
-    @work(thread=True, exclusive=True, group="verdict", exit_on_error=False)
-    def verdict_worker(self) -> Verdict:
-        """Assess in a thread; hand the result back to the UI thread."""
+    @work(exclusive=True, group="verdict", exit_on_error=False)
+    async def verdict_worker(self) -> Verdict:
+        """Assess in the verdict thread; draw the result here, on the UI thread."""
         app: Any = self.app
-        v = compute_verdict(app.db_path, self.survey_id)
-        if not get_current_worker().is_cancelled:
-            app.call_from_thread(self.apply_verdict, v)
+        v: Verdict = await asyncio.wrap_future(app.verdicts.submit(self.survey_id))
+        self.apply_verdict(v)
         return v
 
     def apply_verdict(self, v: Verdict) -> None:
@@ -346,10 +348,20 @@ class SurveyScreen(Screen[None]):
         self.survey = v.survey
         self.assessment = v.assessment
         self.query_one(VerdictLine).show(v.assessment, pending=v.revision < self.revision)
+        active = self.current_pane()
         for pane in self.query(ItemPane).results():
-            pane.reload(keep_form=True)
+            if pane is active:
+                pane.reload(keep_form=True)
+            else:
+                pane.dirty = True
         self.query_one(StoreyPane).load(refill=False)
         self._draw_side()
+
+    def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
+        """A pane left out of the last redraw catches up when its tab is shown."""
+        pane = self.current_pane()
+        if isinstance(pane, ItemPane) and pane.dirty:
+            pane.reload(keep_form=True)
 
     def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
         """A verdict that failed says so in the verdict line (never a traceback)."""

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextlib
 from typing import Any, ClassVar
 
 from textual.app import ComposeResult
@@ -96,10 +97,8 @@ class SurveyListScreen(Screen[None]):
                           key=str(r.id))
             shown += 1
         if current is not None:
-            try:
+            with contextlib.suppress(Exception):  # the row may be filtered out
                 table.move_cursor(row=table.get_row_index(current))
-            except Exception:  # the row is filtered out
-                pass
         total = len(self.rows)
         legend = "p provisional · e edited since its report · h hidden"
         self.query_one("#list-status", Static).update(

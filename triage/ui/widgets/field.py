@@ -18,6 +18,7 @@ from textual.widgets import Checkbox, Input, Label, Select, Static
 
 from triage.ui.messages import NOT_SAVED, SAVED, FieldAccepted
 
+
 def no_blink(widget: Any) -> None:
     """Stop a text cursor blinking when the app asks for it (tests and snapshots)."""
     try:
@@ -25,6 +26,19 @@ def no_blink(widget: Any) -> None:
             widget.cursor_blink = False
     except Exception:  # no app yet: blink stays as it is
         pass
+
+
+def set_text(widget: Static, content: Any, fixed: bool = False) -> None:
+    """Update a Static only when its text changes.
+
+    `fixed`: its size cannot change, so no new layout is needed (a layout pass of the whole
+    screen is the costly part of a redraw).
+    """
+    text = str(content)
+    if getattr(widget, "_triage_text", None) == text:
+        return
+    widget._triage_text = text  # type: ignore[attr-defined]
+    widget.update(content, layout=not fixed)
 
 
 def parse_value(text: str, kind: str, unit: str = "", required: bool = False) -> Any:
@@ -63,22 +77,25 @@ class _Saving:
     """The saved / refused status shared by the field widgets."""
 
     status: Static
+    key: str = ""  # the JSON key the widget edits, inside a pane's form
 
     def show_saved(self, note: str = "") -> None:
         """Mark the value as saved."""
-        self.status.update(SAVED + (f"  {note}" if note else ""))
+        set_text(self.status, SAVED + (f"  {note}" if note else ""),
+                 fixed=len(getattr(self.status, "_triage_text", "") or "") < 30)
         self.status.set_class(False, "refused")
         self.status.set_class(True, "saved")
 
     def show_refused(self, rule: str) -> None:
         """Show the rule the value broke; the value stays, unsaved."""
-        self.status.update(NOT_SAVED + rule)
+        set_text(self.status, NOT_SAVED + rule)
         self.status.set_class(True, "refused")
         self.status.set_class(False, "saved")
 
     def show_note(self, note: str) -> None:
         """A neutral line beside the field (e.g. a computed drift)."""
-        self.status.update(note)
+        set_text(self.status, note, fixed=len(note) < 30 and len(
+            getattr(self.status, "_triage_text", "") or "") < 30)
         self.status.set_class(False, "refused")
         self.status.set_class(False, "saved")
 

@@ -8,7 +8,7 @@ from textual.app import ComposeResult
 
 from triage.assess import tier_words
 from triage.ui.data import hazard_choices
-from triage.ui.widgets.field import Choice, Field
+from triage.ui.widgets.field import Choice, Field, set_text
 from triage.ui.widgets.pane import ItemPane, values_of
 
 KEYS = ["kind", "where", "storey", "height_above_ground_m", "note"]
@@ -88,18 +88,18 @@ class HazardsPane(ItemPane):
         else:
             for k in KEYS:
                 self.form[k].set_value(getattr(item, k))
-        self.note.update("keep-out: a falling hazard's zone is at least as wide as it is "
+        set_text(self.note, "keep-out: a falling hazard's zone is at least as wide as it is "
                          "high; give its height above ground")
 
     def form_changed(self, widget: Any) -> None:
         """Say where to look for the kind picked."""
         if widget is self.form["kind"]:
-            self.note.update(self.hint(widget.value()))
+            set_text(self.note, self.hint(widget.value()))
 
     def on_field_accepted(self, event: Any) -> None:
         """Show the hint of a kind picked while editing too."""
         if self.editing is not None and event.field is self.form["kind"]:
-            self.note.update(self.hint(event.value))
+            set_text(self.note, self.hint(event.value))
         super().on_field_accepted(event)
 
     def build_item(self) -> dict[str, Any]:

@@ -11,7 +11,7 @@ from textual.widgets import Label, SelectionList, Static
 from triage.standards import CLASSES
 from triage.ui.data import class_texts, member_kinds, sign_choices
 from triage.ui.messages import FieldAccepted
-from triage.ui.widgets.field import Choice, Field, _Saving
+from triage.ui.widgets.field import Choice, Field, _Saving, set_text
 from triage.ui.widgets.pane import ItemPane, values_of
 
 KEYS = ["kind", "count", "ductility", "crack_mm", "crack_sd_mm", "ref", "dir",
@@ -27,6 +27,7 @@ class SignChecks(_Saving, Horizontal):
     SignChecks > SelectionList { width: 1fr; height: auto; max-height: 8; }
     SignChecks > .fstatus { width: 16; padding-left: 1; color: $text-muted; }
     SignChecks > .fstatus.refused { color: $accent; text-style: bold; width: 30; }
+    MembersPane > .class-line { height: 2; }
     """
 
     def __init__(self, id: str | None = None) -> None:
@@ -154,17 +155,17 @@ class MembersPane(ItemPane):
             widget.key = k
         yield from w
         self.signs = SignChecks(id="m-signs")
-        self.signs.key = "signs"  # type: ignore[attr-defined]
+        self.signs.key = "signs"
         yield self.signs
         reason = Field("override why", None, id="m-reason", width=34,
                        placeholder="reason, before the class")
-        reason.key = "override_reason"  # type: ignore[attr-defined]
+        reason.key = "override_reason"
         yield reason
         cls = Choice("class by hand", None, [(c, c) for c in CLASSES], None, allow_blank=True,
                      id="m-class")
-        cls.key = "damage_class"  # type: ignore[attr-defined]
+        cls.key = "damage_class"
         yield cls
-        self.class_line = Static("", classes="pane-note")
+        self.class_line = Static("", classes="pane-note class-line")
         yield self.class_line
 
     def fill(self, item: Any | None) -> None:
@@ -189,18 +190,18 @@ class MembersPane(ItemPane):
     def show_class(self) -> None:
         """The assessed class and eta of the group in the form, and what it looks like."""
         if self.editing is None:
-            self.class_line.update("class and eta are shown once the group is added")
+            set_text(self.class_line, "class and eta are shown once the group is added", fixed=True)
             return
         res = self.result(self.editing)
         if res is None:
-            self.class_line.update("class: working it out …")
+            set_text(self.class_line, "class: working it out …", fixed=True)
             return
         cls = res.damage_class or "none (undamaged)"
         eta = "—" if res.eta is None else f"{res.eta:g}"
         look = class_texts(self.systems()).get(res.damage_class or "", "")
-        self.class_line.update(f"class {cls}" + (f" from {res.class_from}" if res.class_from
-                                                 else "") + f" · eta {eta}"
-                               + (f" · {look}" if look else ""))
+        origin = f" from {res.class_from}" if res.class_from else ""
+        set_text(self.class_line, f"class {cls}{origin} · eta {eta}"
+                 + (f" · {look}" if look else ""), fixed=True)
 
     def reload(self, keep_form: bool = False) -> None:
         """Table and class line."""

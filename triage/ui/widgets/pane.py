@@ -14,11 +14,12 @@ from typing import Any
 
 from textual.app import ComposeResult
 from textual.containers import VerticalScroll
+from textual.coordinate import Coordinate
 from textual.widgets import DataTable, Static
 
 from triage.ui.data import Refused, rule_of
 from triage.ui.messages import FieldAccepted
-from triage.ui.widgets.field import Choice, Field, Tick
+from triage.ui.widgets.field import Choice, Field, Tick, set_text
 
 FIELD_KEY = re.compile(r"\.(\w+)(?:\[\d+\])?:")
 
@@ -32,7 +33,7 @@ class ItemPane(VerticalScroll):
     ItemPane > DataTable { height: auto; max-height: 8; margin-bottom: 0; }
     ItemPane > .form-title { height: 1; text-style: bold; color: $accent; margin-top: 1; }
     ItemPane > .pane-note { height: auto; color: $text-muted; }
-    ItemPane > .pane-head { height: auto; }
+    ItemPane > .pane-head { height: 1; }
     """
 
     noun = "item"
@@ -41,6 +42,8 @@ class ItemPane(VerticalScroll):
     def __init__(self, id: str | None = None) -> None:
         super().__init__(id=id)
         self.editing: int | None = None
+        self.dirty = False
+        self.rows: list[tuple[str, ...]] = []
         self.form: dict[str, Any] = {}
         self.table: DataTable[str] = DataTable(cursor_type="row", zebra_stripes=True)
         self.head = Static("", classes="pane-head")
@@ -110,11 +113,21 @@ class ItemPane(VerticalScroll):
 
     def reload(self, keep_form: bool = False) -> None:
         """Redraw the table from the survey; refill the form unless the user is in it."""
-        self.head.update(self.heading())
-        self.table.clear()
+        self.dirty = False
+        set_text(self.head, self.heading(), fixed=True)
         items = self.items()
-        for i, it in enumerate(items):
-            self.table.add_row(*self.row(i, it), key=str(i))
+        rows = [self.row(i, it) for i, it in enumerate(items)]
+        if len(rows) == len(self.rows) == self.table.row_count:
+            # same rows: change only the cells that differ (no new layout)
+            for r, (old, new) in enumerate(zip(self.rows, rows, strict=True)):
+                for c, (a, b) in enumerate(zip(old, new, strict=True)):
+                    if a != b:
+                        self.table.update_cell_at(Coordinate(r, c), b)
+        else:
+            self.table.clear()
+            for i, row in enumerate(rows):
+                self.table.add_row(*row, key=str(i))
+        self.rows = rows
         if self.editing is not None and self.editing >= len(items):
             self.editing = None
         if self.editing is not None:
@@ -132,10 +145,11 @@ class ItemPane(VerticalScroll):
             if hasattr(w, "show_note"):
                 w.show_note("")
         if self.editing is None:
-            self.form_title.update(f"new {self.noun}: Enter adds it")
+            set_text(self.form_title, fixed=True, content=f"new {self.noun}: Enter adds it")
         else:
-            self.form_title.update(f"{self.noun} {self.editing + 1}: each field saves as "
-                                   f"accepted · ctrl+n new {self.noun} · ctrl+r removes it")
+            set_text(self.form_title, fixed=True,
+                     content=f"{self.noun} {self.editing + 1}: each field saves as accepted · "
+                     "^n new · ^r remove")
 
     def _set_paths(self) -> None:
         base = f"{self.list_path()}[{self.editing}]" if self.editing is not None else None
@@ -159,8 +173,10 @@ class ItemPane(VerticalScroll):
             self.edit(int(event.row_key.value))
 
     def on_field_accepted(self, event: FieldAccepted) -> None:
-        """In new mode, gather; Enter in a text field adds the item. In edit mode, the
-        screen saves the field (the message goes on up)."""
+        """In new mode gather, and Enter in a text field adds the item.
+
+        In edit mode the screen saves the field (the message goes on up).
+        """
         if self.editing is not None:
             return
         event.stop()
@@ -179,9 +195,9 @@ class ItemPane(VerticalScroll):
         w = self.form.get(key or "")
         if w is not None:
             w.show_refused(rule_of(message))
-            self.note.update("")
+            set_text(self.note, "")
         else:
-            self.note.update(f"not saved: {message}")
+            set_text(self.note, f"not saved: {message}")
 
     def add_item(self) -> None:
         """Add the new item through the store."""
@@ -198,7 +214,7 @@ class ItemPane(VerticalScroll):
             return
         n = len(self.items())
         self.after_add()
-        self.note.update(f"✓ saved: {self.noun} {n} added")
+        set_text(self.note, f"✓ saved: {self.noun} {n} added")
         for w in self.form.values():
             if hasattr(w, "show_note") and w.status_text.startswith("✗"):
                 w.show_note("")
@@ -206,17 +222,17 @@ class ItemPane(VerticalScroll):
     def remove_selected(self) -> None:
         """Remove the item being edited (kept in the change log; ctrl+z brings it back)."""
         if self.editing is None:
-            self.note.update(f"pick a {self.noun} in the table first (Enter or a click)")
+            set_text(self.note, f"pick a {self.noun} in the table first (Enter or a click)")
             return
         idx = self.editing
         try:
             self.survey_screen.remove_item(f"{self.list_path()}[{idx}]")
         except Refused as err:
-            self.note.update(f"not removed: {err}")
+            set_text(self.note, f"not removed: {err}")
             return
         self.editing = None
         self.reload()
-        self.note.update(f"✓ saved: {self.noun} {idx + 1} removed (ctrl+z undoes it)")
+        set_text(self.note, f"✓ saved: {self.noun} {idx + 1} removed (ctrl+z undoes it)")
 
 
 def values_of(form: dict[str, Any], keys: list[str]) -> dict[str, Any]:

@@ -77,12 +77,12 @@ class PhotosPane(ItemPane):
         """Of what, file, caption."""
         self.of = Choice("photo of", None, [("storey", "storey")], "storey", id="p-of",
                          width=40)
-        self.of.key = ""  # type: ignore[attr-defined]
+        self.of.key = ""
         yield self.of
         path = Field("file", None, id="p-path", width=40, placeholder="img/c3.jpg")
         cap = Field("caption", None, id="p-caption", width=40)
-        path.key = "path"  # type: ignore[attr-defined]
-        cap.key = "caption"  # type: ignore[attr-defined]
+        path.key = "path"
+        cap.key = "caption"
         yield path
         yield cap
 

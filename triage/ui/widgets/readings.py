@@ -11,7 +11,7 @@ from textual.widgets import Input, Static
 from triage.assess.drift import pct
 from triage.model import Reading, error_lines
 from triage.ui.data import rule_of
-from triage.ui.widgets.field import Choice, Field, show_text
+from triage.ui.widgets.field import Choice, Field, set_text, show_text
 from triage.ui.widgets.pane import ItemPane, values_of
 from triage.ui.widgets.verdict import storey_drift_text
 
@@ -28,6 +28,10 @@ def reading_text(r: Reading) -> str:
 
 class ReadingsPane(ItemPane):
     """The readings of the storey in view."""
+
+    DEFAULT_CSS = """
+    ReadingsPane > .drift-line { height: 1; }
+    """
 
     noun = "reading"
     columns = (("#", 3), ("dir", 3), ("offset / gauge", 16), ("sd", 6), ("where", 16),
@@ -75,8 +79,8 @@ class ReadingsPane(ItemPane):
         where = Field("where", None, id="r-where", width=30, placeholder="e.g. grid B2")
         for w, k in ((d, "dir"), (off, "offset_mm"), (gauge, "gauge_mm"), (sd, "sd_mm"),
                      (tilt, "tilt_deg"), (sd_deg, "sd_deg"), (where, "where")):
-            w.key = k  # type: ignore[attr-defined]
-        by.key = ""  # type: ignore[attr-defined]
+            w.key = k
+        by.key = ""
         self.by = by
         yield d
         yield by
@@ -86,7 +90,7 @@ class ReadingsPane(ItemPane):
         yield tilt
         yield sd_deg
         yield where
-        self.drift_line = Static("", classes="pane-note")
+        self.drift_line = Static("", classes="pane-note drift-line")
         yield self.drift_line
 
     def _tilt(self) -> bool:
@@ -134,19 +138,19 @@ class ReadingsPane(ItemPane):
         try:
             data = values_of(self.form, TILT_KEYS if self._tilt() else OFFSET_KEYS)
         except ValueError as err:
-            out.update(f"drift: — ({err})")
+            set_text(out, fixed=True, content=f"drift: — ({err})")
             return
         needed = ["tilt_deg"] if self._tilt() else ["offset_mm", "gauge_mm"]
         if any(k not in data for k in needed):
-            out.update("drift: — (needs " + ("the tilt" if self._tilt()
+            set_text(out, fixed=True, content="drift: — (needs " + ("the tilt" if self._tilt()
                                             else "offset and gauge length") + ")")
             return
         try:
             r = Reading.model_validate(data)
         except ValidationError as err:
-            out.update(f"drift: — ({rule_of(error_lines(err)[0])})")
+            set_text(out, fixed=True, content=f"drift: — ({rule_of(error_lines(err)[0])})")
             return
-        out.update(f"drift ratio {pct(r.drift_ratio())} ({r.dir})")
+        set_text(out, fixed=True, content=f"drift ratio {pct(r.drift_ratio())} ({r.dir})")
 
     def build_item(self) -> dict[str, Any]:
         """The reading from the form."""

@@ -8,7 +8,7 @@ from textual.app import ComposeResult
 from textual.containers import VerticalScroll
 from textual.widgets import Static
 
-from triage.ui.widgets.field import Choice, Field, Tick
+from triage.ui.widgets.field import Choice, Field, Tick, set_text
 
 ACCESS = [("full: all of it entered", "full"), ("partial: part of it", "partial"),
           ("none: seen from outside", "none")]
@@ -20,7 +20,8 @@ class StoreyPane(VerticalScroll):
     can_focus = False
     DEFAULT_CSS = """
     StoreyPane { height: 1fr; padding: 0 1; }
-    StoreyPane > .pane-head { height: auto; text-style: bold; }
+    StoreyPane > .pane-head { height: 1; text-style: bold; }
+    StoreyPane > .summary { height: 1; color: $text-muted; margin-top: 1; }
     StoreyPane > .pane-note { height: auto; color: $text-muted; margin-top: 1; }
     """
 
@@ -42,7 +43,7 @@ class StoreyPane(VerticalScroll):
         yield Static("ctrl+n adds a storey on top · ctrl+b adds one below the lowest · "
                      "ctrl+r removes this storey (kept in the change log) · PgUp/PgDn "
                      "walk up and down", classes="pane-note")
-        self.summary = Static("", classes="pane-note")
+        self.summary = Static("", classes="summary")
         yield self.summary
 
     def load(self, refill: bool = True) -> None:
@@ -53,7 +54,8 @@ class StoreyPane(VerticalScroll):
         if st is None:
             return
         n = len(scr.survey.storeys)
-        self.head.update(f"Storey {st.label} ({i + 1} of {n}, counted from the bottom)")
+        set_text(self.head, fixed=True,
+                 content=f"Storey {st.label} ({i + 1} of {n}, counted from the bottom)")
         base = f"storeys[{i}]"
         for f, key in ((self.label_f, "label"), (self.height_f, "height_m"),
                        (self.below_f, "below_grade"), (self.access_f, "access"),
@@ -62,6 +64,7 @@ class StoreyPane(VerticalScroll):
             if refill:
                 f.set_value(getattr(st, key))
                 f.show_note("")
-        self.summary.update(f"{len(st.readings)} readings · {len(st.members)} member groups "
-                            f"({sum(m.count for m in st.members)} members) · "
-                            f"{len(st.photos)} photos on the storey")
+        set_text(self.summary, fixed=True,
+                 content=f"{len(st.readings)} readings · {len(st.members)} member groups "
+                 f"({sum(m.count for m in st.members)} members) · "
+                 f"{len(st.photos)} photos on the storey")

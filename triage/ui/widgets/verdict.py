@@ -69,7 +69,7 @@ class VerdictLine(Static):
                 t.append("  (updating …)", style="dim")
         t.append("\n")
         t.append(CAUTION_SHORT, style="italic")
-        self.update(t)
+        self.update(t, layout=False)
 
     @property
     def text(self) -> str:

@@ -169,16 +169,18 @@ class Store:
 
     @classmethod
     def open(cls, path: str | Path | None = None, *, create: bool = True,
-             who: str | None = None, refresh: bool = True,
+             who: str | None = None, refresh: bool = True, check: bool = True,
              clock: Clock | None = None) -> Store:
         """Open (or create) a database: checked first, schema upgraded after a backup.
 
-        With `refresh`, assessments left stale (by a crash, or a merge) are refreshed.
+        With `refresh`, assessments left stale (by a crash, or a merge) are refreshed. With
+        `check` off, the `quick_check` pass is skipped (for short-lived worker stores on a
+        file the app has just opened and checked).
         """
         p = Path(path) if path is not None else default_db_path()
         if not p.exists() and not create:
             raise StoreError(f"{p}: no database there; check the path (--db PATH)")
-        version = check_file(p)
+        version = check_file(p, deep=check)
         if not p.exists():
             try:
                 p.parent.mkdir(parents=True, exist_ok=True)

@@ -3,14 +3,20 @@
 from __future__ import annotations
 
 from pathlib import Path
-
-from triage.model import Survey, SurveyError, parse_survey_text
+from typing import TYPE_CHECKING
 
 from .errors import UserError
+
+if TYPE_CHECKING:
+    from triage.model import Survey
 
 
 def read_survey_file(path: str) -> Survey:
     """Read and validate a survey JSON file; refuse with one line naming the file and field."""
+    # imported here, not at the top: every command imports this module, and the survey model
+    # (pydantic) is too heavy to load before the screens of `triage demo` are drawn
+    from triage.model import SurveyError, parse_survey_text
+
     p = Path(path)
     try:
         text = p.read_text(encoding="utf-8")

@@ -16,41 +16,22 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
     p.set_defaults(func=run)
 
 
-def _open(db: Path) -> int:
+def _open(db: Path, samples: Path | None = None) -> int:
     from triage.ui.app import build_app
-    from triage.ui.data import Refused
 
-    try:
-        app = build_app(db)
-    except Refused as err:
-        raise UserError(str(err)) from None
+    app = build_app(db, demo_samples=samples)
     app.run()
+    if app.refusal:
+        raise UserError(app.refusal)
     return 0
 
 
-def prepare_demo(folder: Path | None = None) -> Path:
-    """A scratch database in a new temporary folder, loaded with the sample surveys."""
-    from triage.resources import samples_dir
-    from triage.ui.data import FieldData, Refused
-
-    folder = folder or Path(tempfile.mkdtemp(prefix="triage-demo-"))
-    db = folder / "demo.db"
-    try:
-        data = FieldData(db)
-    except Refused as err:
-        raise UserError(str(err)) from None
-    try:
-        data.load_samples(samples_dir(), "demo")
-        if not data.setting("last_inspector_name"):
-            data.remember("last_inspector_name", "Demo Inspector")
-    finally:
-        data.close()
-    return db
-
-
 def run(args: argparse.Namespace) -> int:
-    """`triage demo`: the screens on a scratch copy of the sample surveys."""
-    return _open(prepare_demo())
+    """`triage demo`: the screens on a scratch database loaded with the sample surveys."""
+    from triage.resources import samples_dir
+
+    folder = Path(tempfile.mkdtemp(prefix="triage-demo-"))
+    return _open(folder / "demo.db", samples_dir())
 
 
 def run_default(args: argparse.Namespace) -> int:

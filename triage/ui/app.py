@@ -1,16 +1,23 @@
-"""The app and its one factory, `build_app`, used by the `triage` command and by the tests."""
+"""The app and its one factory, `build_app`, used by the `triage` command and by the tests.
+
+The first screen is drawn before the heavy parts are loaded: the store, the survey model and
+the engine are imported (and the demo database filled) in a thread worker; the database is
+then opened on the UI thread (an SQLite connection belongs to the thread that opened it) and
+the survey list fills in. Keys that need the database say so until it is open.
+"""
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from datetime import datetime
 from pathlib import Path
 from typing import Any, ClassVar
 
+from textual import work
 from textual.app import App
 from textual.binding import Binding, BindingType
 from textual.theme import Theme
-
-from triage.ui.data import Clock, FieldData, VerdictThread, default_who
+from textual.worker import Worker, WorkerState
 
 # One accent hue (a slate blue) in stronger or weaker weight; no traffic-light colours: the
 # theme's success, warning and error colours are the same hue, so no widget turns green,
@@ -32,31 +39,80 @@ class TriageApp(App[None]):
         Binding("f1", "help", "help", priority=True),
     ]
 
-    def __init__(self, db_path: Path, *, clock: Clock | None = None, blink: bool = True,
-                 open_survey: str | None = None, key_dir: Path | None = None,
-                 report_dir: Path | None = None) -> None:
+    def __init__(self, db_path: Path, *, clock: Callable[[], datetime] | None = None,
+                 blink: bool = True, open_survey: str | None = None,
+                 key_dir: Path | None = None, report_dir: Path | None = None,
+                 demo_samples: Path | None = None) -> None:
         super().__init__()
         self.db_path = Path(db_path)
-        self.data = FieldData(self.db_path, clock=clock)
+        self.data: Any = None  # triage.ui.data.FieldData, once the database is open
+        self.verdicts: Any = None  # triage.ui.data.VerdictThread
         self.clock = clock
         self.blink = blink
         self.open_survey = open_survey
         self.key_dir = key_dir
         self.report_dir = report_dir or self.db_path.parent / "reports"
-        self.who = str(self.data.setting("last_inspector_name") or default_who())
-        self.verdicts = VerdictThread(self.db_path)
+        self.demo_samples = demo_samples
+        self.who = "inspector"
+        self.refusal: str | None = None
 
     def on_mount(self) -> None:
-        """Open on the survey list (or straight on one survey)."""
-        self.register_theme(THEME)
-        self.theme = "triage"
+        """Draw the survey list at once; open the database behind it."""
         from triage.ui.screens.survey_list import SurveyListScreen
 
+        self.register_theme(THEME)
+        self.theme = "triage"
         self.push_screen(SurveyListScreen())
+        # after the first frame, so the heavy imports do not hold it up
+        self.call_after_refresh(self.load_worker)
+
+    @work(thread=True, exclusive=True, group="open", exit_on_error=False)
+    def load_worker(self) -> None:
+        """Import the store, the model and the engine; fill the demo database if asked."""
+        from triage.ui import data
+
+        if self.demo_samples is not None:
+            fd = data.FieldData(self.db_path, clock=self.clock)
+            try:
+                fd.load_samples(self.demo_samples, "demo")
+                if not fd.setting("last_inspector_name"):
+                    fd.remember("last_inspector_name", "Demo Inspector")
+            finally:
+                fd.close()
+        import triage.assess  # noqa: F401  (warm: the first verdict needs it)
+
+    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
+        """The database can be opened once the heavy modules are in."""
+        if event.worker.group != "open":
+            return
+        if event.state == WorkerState.SUCCESS:
+            self.database_ready()
+        elif event.state == WorkerState.ERROR:
+            self.refuse(str(event.worker.error).splitlines()[0])
+
+    def database_ready(self) -> None:
+        """Open the database on the UI thread and fill the first screen."""
+        from triage.ui.data import FieldData, Refused, VerdictThread, default_who
+
+        try:
+            self.data = FieldData(self.db_path, clock=self.clock)
+        except Refused as err:
+            self.refuse(str(err))
+            return
+        self.verdicts = VerdictThread(self.db_path)
+        self.who = str(self.data.setting("last_inspector_name") or default_who())
+        screen: Any = self.screen
+        if hasattr(screen, "refresh_rows"):
+            screen.refresh_rows()
         if self.open_survey:
             from triage.ui.screens.survey import SurveyScreen
 
             self.push_screen(SurveyScreen(self.open_survey))
+
+    def refuse(self, message: str) -> None:
+        """The database cannot be used: leave with the one-line reason (status 1)."""
+        self.refusal = message
+        self.exit(return_code=1)
 
     def action_help(self) -> None:
         """Show the keys of the screen in view."""
@@ -73,8 +129,10 @@ class TriageApp(App[None]):
 
     def on_unmount(self) -> None:
         """Close the database."""
-        self.verdicts.close()
-        self.data.close()
+        if self.verdicts is not None:
+            self.verdicts.close()
+        if self.data is not None:
+            self.data.close()
 
 
 def build_app(db_path: Path | str, **options: Any) -> TriageApp:
@@ -82,6 +140,7 @@ def build_app(db_path: Path | str, **options: Any) -> TriageApp:
 
     Options: `clock` (a callable giving the time, for tests), `blink` (False stops cursors
     blinking), `open_survey` (a survey id to open at once), `key_dir` (where to look for
-    signing keys), `report_dir` (where reports are written by default).
+    signing keys), `report_dir` (where reports are written by default), `demo_samples` (a
+    folder of survey files loaded into the database first: `triage demo`).
     """
     return TriageApp(Path(db_path), **options)

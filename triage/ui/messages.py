@@ -9,12 +9,19 @@ from typing import Any
 
 from textual.message import Message
 
-from triage.assess import CAUTION, PROBABILITY_LABEL
-
-# The caution, whole and short; the short form keeps "indicative" and "engineer of record".
-CAUTION_FULL = CAUTION
+# The caution, short; it keeps "indicative" and "engineer of record". The whole caution
+# (CAUTION_FULL) and the probability label come from triage.assess, imported on first use
+# (module __getattr__), so the first screen is drawn before the engine is loaded.
 CAUTION_SHORT = "indicative only, not a safety certificate: the engineer of record decides"
-PROBABILITY_NOTE = PROBABILITY_LABEL
+
+
+def __getattr__(name: str) -> str:
+    """CAUTION_FULL and PROBABILITY_NOTE, read from triage.assess when first asked for."""
+    if name in ("CAUTION_FULL", "PROBABILITY_NOTE"):
+        from triage.assess import CAUTION, PROBABILITY_LABEL
+
+        return CAUTION if name == "CAUTION_FULL" else PROBABILITY_LABEL
+    raise AttributeError(name)
 
 SAVED = "✓ saved"
 NOT_SAVED = "✗ not saved: "

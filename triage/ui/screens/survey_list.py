@@ -10,10 +10,8 @@ from textual.binding import Binding, BindingType
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Input, Static
 
-from triage.assess import tier_words
-from triage.ui.data import Refused
 from triage.ui.messages import CAUTION_SHORT
-from triage.ui.widgets.field import no_blink
+from triage.ui.widgets.field import no_blink, set_text
 
 
 def _when(at: str) -> str:
@@ -69,9 +67,19 @@ class SurveyListScreen(Screen[None]):
         """Back from a survey: its tier may have changed."""
         self.refresh_rows()
 
+    def ready(self) -> bool:
+        """Whether the database is open; says so when not."""
+        app: Any = self.app
+        if app.data is None:
+            set_text(self.query_one("#list-status", Static), "opening the survey database …")
+            return False
+        return True
+
     def refresh_rows(self, keep: str | None = None) -> None:
         """Reload the rows from the store and apply the filter."""
         app: Any = self.app
+        if not self.ready():
+            return
         self.rows = app.data.surveys(include_hidden=self.include_hidden)
         self.apply_filter(keep)
 
@@ -82,6 +90,8 @@ class SurveyListScreen(Screen[None]):
 
     def apply_filter(self, keep: str | None = None) -> None:
         """Show the rows matching what is typed in the filter."""
+        from triage.assess import tier_words
+
         table = self.query_one("#surveys", DataTable)
         current = keep or self.selected_id()
         words = self.query_one("#filter", Input).value.lower().split()
@@ -107,7 +117,7 @@ class SurveyListScreen(Screen[None]):
 
     def on_input_changed(self, event: Input.Changed) -> None:
         """Filter as the user types."""
-        if event.input.id == "filter":
+        if event.input.id == "filter" and self.ready():
             self.apply_filter()
 
     def selected_id(self) -> str | None:
@@ -136,12 +146,15 @@ class SurveyListScreen(Screen[None]):
         from triage.ui.screens.survey import SurveyScreen
 
         sid = self.selected_id()
-        if sid is not None:
+        if sid is not None and self.ready():
             self.app.push_screen(SurveyScreen(sid))
 
     def action_new(self) -> None:
         """Start a new survey."""
         from triage.ui.screens.new_survey import NewSurveyScreen
+
+        if not self.ready():
+            return
 
         def opened(sid: str | None) -> None:
             self.refresh_rows(keep=sid)
@@ -154,8 +167,10 @@ class SurveyListScreen(Screen[None]):
 
     def action_reinspect(self) -> None:
         """Start a re-inspection of the highlighted survey's building."""
+        from triage.ui.data import Refused
+
         sid = self.selected_id()
-        if sid is None:
+        if sid is None or not self.ready():
             return
         app: Any = self.app
         inspector = {"name": app.data.setting("last_inspector_name") or app.who}
@@ -176,7 +191,7 @@ class SurveyListScreen(Screen[None]):
     def action_hide(self) -> None:
         """Hide the highlighted survey (kept, and logged)."""
         sid = self.selected_id()
-        if sid is None:
+        if sid is None or not self.ready():
             return
         app: Any = self.app
         app.data.hide(sid, app.who)
@@ -186,5 +201,7 @@ class SurveyListScreen(Screen[None]):
 
     def action_show_hidden(self) -> None:
         """Show or leave out hidden surveys."""
+        if not self.ready():
+            return
         self.include_hidden = not self.include_hidden
         self.refresh_rows()

@@ -27,8 +27,14 @@ the revision it covers (`record_report`); a later change means "edited since rep
 
 Transactions. WAL journal, synchronous=FULL, foreign keys on and a busy timeout on every
 connection; every write in BEGIN IMMEDIATE, so two processes on one file never lose each
-other's writes. An edit re-reads the revision inside its transaction and reloads the JSON if
-another process moved it on. One `Store` per thread.
+other's writes. An edit's UPDATE is conditional on the revision this store last saw; if another
+process moved the survey on, the JSON is reloaded under the write lock and the edit applied to
+that. One `Store` per thread.
+
+Modules: `connect` (checked opening, pragmas, transactions, one-line errors), `schema`
+(tables, version, migrations), `edits` (paths, applying an edit, partial validation), `store`
+(the `Store`), `backup` (consistent copies), `merge` (gathering databases), `area` (the
+one-row-per-building summary), `paths` (the default database).
 """
 
 from .connect import StoreError, SurveyConflict

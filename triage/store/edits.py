@@ -19,8 +19,7 @@ import functools
 import json
 import math
 import re
-from dataclasses import dataclass
-from typing import Any
+from typing import Any, NamedTuple
 
 from pydantic import BaseModel, ValidationError
 
@@ -96,8 +95,7 @@ def format_path(tokens: list[Token]) -> str:
     return out
 
 
-@dataclass(frozen=True)
-class Applied:
+class Applied(NamedTuple):
     """An edit applied to a copy of the survey data: the new data and what it changed."""
 
     doc: dict[str, Any]

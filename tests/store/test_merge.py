@@ -186,3 +186,20 @@ def test_merged_json_is_the_source_json(tmp_path):
             for sid in ids:
                 assert st.survey_json(sid) == src.survey_json(sid)
                 assert json.loads(json.dumps(st.survey_json(sid)))["id"] == sid
+
+
+def test_a_damaged_source_with_its_wal_is_named_not_its_copy(tmp_path, cli):
+    bad, target = tmp_path / "bad.db", tmp_path / "centre.db"
+    _laptop(bad, ["Clinic", "School", "Flats", "Shed", "Store", "Hall"])
+    data = bytearray(bad.read_bytes())
+    page = int.from_bytes(data[16:18], "big")
+    for k in range(page + 8, len(data) - page, page):
+        data[k:k + 64] = b"\xa5" * 64
+    bad.write_bytes(bytes(data))
+    wal = Path(str(bad) + "-wal")
+    wal.write_bytes(b"")   # a -wal beside it: the source is read through a copy
+    before = _bytes(bad, wal)
+    code, _, err = cli("merge", str(bad), "--into", str(target))
+    assert code == 1
+    assert err.startswith(f"triage merge: {bad}: damaged database") and "triage-merge-" not in err
+    assert _bytes(bad, wal) == before

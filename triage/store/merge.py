@@ -81,7 +81,10 @@ def _readable_copy(src: Path, tmp: Path) -> tuple[Path, bool]:
 def _prepare(src: Path, tmp: Path) -> tuple[Path, bool]:
     """A checked file at this schema version to attach read-only, and whether immutable."""
     readable, immutable = _readable_copy(src, tmp)
-    version = check_file(readable, immutable=immutable)
+    try:
+        version = check_file(readable, immutable=immutable)
+    except StoreError as err:   # name the source, not the copy read in its place
+        raise StoreError(str(err).replace(str(readable), str(src))) from None
     if version == 0:
         raise StoreError("not a triage database (empty)")
     if version > SCHEMA_VERSION:
@@ -102,6 +105,15 @@ def _prepare(src: Path, tmp: Path) -> tuple[Path, bool]:
     return readable, immutable
 
 
+def _reason(err: StoreError, src: Path) -> str:
+    """The message without the path it starts with (the command names the source itself)."""
+    msg = str(err)
+    for prefix in (f"{src}: ", f"{src.resolve()}: "):
+        if msg.startswith(prefix):
+            return msg[len(prefix):]
+    return msg
+
+
 def merge_source(store: Store, src: Path) -> MergeResult:
     """Merge one source database into `store`; a refused source comes back with `skipped`."""
     result = MergeResult(str(src))
@@ -115,9 +127,7 @@ def merge_source(store: Store, src: Path) -> MergeResult:
         try:
             readable, immutable = _prepare(src, Path(tmp))
         except StoreError as err:
-            msg = str(err)
-            prefix = f"{src}: "
-            result.skipped = msg[len(prefix):] if msg.startswith(prefix) else msg
+            result.skipped = _reason(err, src)
             return result
         except OSError as err:
             result.skipped = f"cannot be read ({err.strerror})"
@@ -127,7 +137,7 @@ def merge_source(store: Store, src: Path) -> MergeResult:
             conn.execute("ATTACH DATABASE ? AS src",
                          (uri(readable, "ro", immutable=immutable),))
         except sqlite3.Error as err:
-            result.skipped = str(explain(err, src))
+            result.skipped = _reason(explain(err, src), src)
             return result
         try:
             _merge_attached(store, src, result)

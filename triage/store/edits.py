@@ -50,7 +50,7 @@ _encode = json.JSONEncoder(sort_keys=True, separators=(",", ":"), ensure_ascii=F
 _string = json.encoder.encode_basestring   # what that encoder writes for a str
 
 
-def _scalar(v: Any) -> str:
+def scalar_json(v: Any) -> str:
     """`_encode(v)` for the plain values of a storey, without building an encoder."""
     if v is None:
         return "null"
@@ -373,7 +373,7 @@ class CanonicalText:
                 encoded = ("[" + ",".join(self._cached(x, _encode) for x in value) + "]"
                            if value else "[]")
             else:
-                encoded = _scalar(value)
+                encoded = scalar_json(value)
             parts.append(_string(key) + ":" + encoded)
         return "{" + ",".join(parts) + "}"
 
@@ -388,7 +388,7 @@ class CanonicalText:
             elif t is dict or t is list:
                 encoded = self._cached(value, _encode)
             else:
-                encoded = _scalar(value)
+                encoded = scalar_json(value)
             parts.append(_string(key) + ":" + encoded)
         if len(self._memo) > self.LIMIT:
             self._prune(doc)

@@ -48,7 +48,9 @@ _encode = json.JSONEncoder(ensure_ascii=False, separators=(",", ":")).encode
 
 
 def _dump(value: Any) -> str | None:
-    return None if value is None else _encode(value)
+    if value is None:
+        return None
+    return _encode(value) if isinstance(value, dict | list) else edits.scalar_json(value)
 
 
 def _load(text: str | None) -> Any:

@@ -25,22 +25,21 @@ pytestmark = pytest.mark.skipif(sys.platform == "win32", reason="needs fork and 
 
 def _writer(db: Path, sid: str, start: int, out: int, storey: int = 0,
             until: float | None = None, pause: float = 0.0) -> None:
-    """Edit in a loop; after each commit write `k op rev` to the pipe."""
+    """Edit in a loop; after each commit write `k op rev change-id` to the pipe."""
     st = Store.open(db, refresh=False)
     k = start
     while until is None or time.monotonic() < until:
         if k % 3 == 0:
-            rev = st.add_item(sid, f"storeys[{storey}].readings",
-                              {"dir": "x", "tilt_deg": 0.01, "where": f"k{k}"})
-            op = "add"
+            change = st.edit(sid, "add", f"storeys[{storey}].readings",
+                             {"dir": "x", "tilt_deg": 0.01, "where": f"k{k}"})
+            rev, uid, op = change.revision, change.uid, "add"
         elif k % 17 == 1:
             st.assess_now(sid)   # the recompute the screens run after an edit
-            rev = st.revision(sid)
-            op = "assess"
+            rev, uid, op = st.revision(sid), "-", "assess"
         else:
-            rev = st.set_value(sid, f"storeys[{storey}].notes", f"k{k}")
-            op = "set"
-        os.write(out, f"{k} {op} {rev}\n".encode())
+            change = st.edit(sid, "set", f"storeys[{storey}].notes", f"k{k}")
+            rev, uid, op = change.revision, change.uid, "set"
+        os.write(out, f"{k} {op} {rev} {uid}\n".encode())
         k += 1
         if pause:
             time.sleep(pause)
@@ -81,7 +80,7 @@ def test_sigkill_at_random_moments_loses_no_acknowledged_edit(tmp_path):
     with Store.open(db) as st:
         st.add_survey(s)
     rnd = random.Random(20261127)
-    acked: list[tuple[int, str, int]] = []
+    acked: list[tuple[int, str, int, str]] = []
     kills = 0
     t_end = time.monotonic() + 25
     for cycle in range(60):
@@ -98,8 +97,8 @@ def test_sigkill_at_random_moments_loses_no_acknowledged_edit(tmp_path):
         text = buf.decode() + _read_all(fd)
         for line in text.splitlines():
             parts = line.split()
-            if len(parts) == 3:   # a line cut by the kill was never acknowledged in full
-                acked.append((int(parts[0]), parts[1], int(parts[2])))
+            if len(parts) == 4:   # a line cut by the kill was never acknowledged in full
+                acked.append((int(parts[0]), parts[1], int(parts[2]), parts[3]))
         if time.monotonic() > t_end:
             break
     assert kills >= 50
@@ -109,14 +108,17 @@ def test_sigkill_at_random_moments_loses_no_acknowledged_edit(tmp_path):
         wheres = {r.where for r in survey.storeys[0].readings}
         log = st.change_log(sid)
         set_values = {c.new for c in log if c.op == "set"}
-        for k, op, _ in acked:
+        logged = {c.uid: c for c in log}
+        for k, op, rev, uid in acked:
             if op == "add":
                 assert f"k{k}" in wheres
             elif op == "set":
                 assert f"k{k}" in set_values
+            if uid != "-":
+                assert logged[uid].revision == rev
         last_set = next(c for c in log if c.op == "set")
         assert survey.storeys[0].notes == last_set.new
-        assert st.revision(sid) >= max(rev for _, _, rev in acked)
+        assert st.revision(sid) >= max(rev for _, _, rev, _ in acked)
         assert st.stale_ids() == []   # refreshed on this open
     assert len(acked) > kills
 
@@ -143,11 +145,13 @@ def test_two_writers_on_one_file_lose_nothing(tmp_path):
         log = st.change_log(sid)
         for storey, lines in enumerate(acks):
             wheres = {r.where for r in survey.storeys[storey].readings}
-            adds = {f"k{k}" for k, op, _ in lines if op == "add"}
+            adds = {f"k{k}" for k, op, _, _ in lines if op == "add"}
             assert adds <= wheres
             assert len(wheres - {None}) == len(adds)
         # Every acknowledged change of both is in the log, each revision once.
-        acked_sets = {f"k{k}" for lines in acks for k, op, _ in lines if op == "set"}
+        acked_sets = {f"k{k}" for lines in acks for k, op, _, _ in lines if op == "set"}
         assert acked_sets <= {c.new for c in log if c.op == "set"}
+        assert {uid for lines in acks for _, _, _, uid in lines if uid != "-"} <= {
+            c.uid for c in log}
         revs = [c.revision for c in log if c.op in ("set", "add")]
         assert len(revs) == len(set(revs))

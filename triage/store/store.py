@@ -509,12 +509,23 @@ class Store:
         return True
 
     def load_assessment(self, survey_id: str | uuid.UUID) -> Assessment | None:
-        """The last stored assessment of the survey (possibly of an earlier revision)."""
+        """The last stored assessment of the survey (possibly of an earlier revision).
+
+        None when there is none, or when it no longer reads as this engine's assessment
+        (written by another version): recompute it then.
+        """
+        from pydantic import ValidationError
+
         from triage.assess import parse_assessment
 
         row = self.conn.execute("SELECT json FROM assessments WHERE survey_id = ?",
                                 (str(survey_id),)).fetchone()
-        return None if row is None else parse_assessment(json.loads(row[0]))
+        if row is None:
+            return None
+        try:
+            return parse_assessment(json.loads(row[0]))
+        except (ValidationError, ValueError):
+            return None
 
     def stale_ids(self) -> list[str]:
         """Surveys whose stored assessment is not of their current revision."""

@@ -227,6 +227,16 @@ class Store:
         self._docs.clear()
         self._texts.clear()
 
+    KEEP = 16   # surveys whose JSON is kept between edits (the ones being worked on)
+
+    def _keep(self, sid: str, revision: int, doc: dict[str, Any]) -> None:
+        self._docs.pop(sid, None)
+        self._docs[sid] = (revision, doc)
+        while len(self._docs) > self.KEEP:
+            old = next(iter(self._docs))
+            del self._docs[old]
+            self._texts.pop(old, None)
+
     def _write(self) -> Any:
         return immediate(self.conn, self.path)
 
@@ -274,7 +284,7 @@ class Store:
                 (import_uid(sid, text), sid, op, text, now, who or self.who))
             if result is not None:
                 self._put_assessment(c, sid, 1, result)
-        self._docs[sid] = (1, doc)
+        self._keep(sid, 1, doc)
         return "added"
 
     # --- reading -------------------------------------------------------------------------
@@ -407,7 +417,7 @@ class Store:
                 change = self._commit_edit(c, sid, rev, applied, op, who)
                 if change is None:   # cannot happen under the write lock
                     raise StoreError(f"survey {sid}: changed during the edit; try again")
-        self._docs[sid] = (change.revision, applied.doc)
+        self._keep(sid, change.revision, applied.doc)
         return change
 
     def edit(self, survey_id: str | uuid.UUID, op: str, path: str, value: Any = None,
@@ -459,7 +469,7 @@ class Store:
             change = self._commit_edit(c, sid, rev, applied, "undo", who, undoes=target.uid)
             if change is None:
                 raise StoreError(f"survey {sid}: changed during the undo; try again")
-        self._docs[sid] = (change.revision, applied.doc)
+        self._keep(sid, change.revision, applied.doc)
         return target
 
     def _log_plain(self, c: sqlite3.Connection, sid: str, op: str, path: str, old: Any,

@@ -117,6 +117,7 @@ class SurveyScreen(Screen[None]):
         self.query_one(VerdictLine).show(self.assessment, pending=True)
         self._layout_side()
         self.request_verdict()
+        self.call_after_refresh(self.current_pane().focus_first)
 
     def on_resize(self) -> None:
         """The full verdict beside the form when the terminal is wide enough."""
@@ -196,8 +197,9 @@ class SurveyScreen(Screen[None]):
         self.go_storey(self.storey_index + step)
 
     def action_tab(self, name: str) -> None:
-        """Show a tab."""
+        """Show a tab, the cursor in its form."""
         self.query_one(TabbedContent).active = name
+        self.call_after_refresh(self.current_pane().focus_first)
 
     # --- saving --------------------------------------------------------------------------
 
@@ -213,6 +215,9 @@ class SurveyScreen(Screen[None]):
             return
         event.field.mark_saved()
         self.after_save(rev, structural=event.path.endswith(".label"))
+        pane = next((a for a in event.field.ancestors if isinstance(a, ItemPane)), None)
+        if pane is not None:
+            pane.retry_refused(event.field)
         if event.path.endswith((".count", ".kind", ".crack_mm", ".signs", ".damage_class")):
             set_text(self.query_one(MembersPane).class_line, "class: working it out …",
                      fixed=True)

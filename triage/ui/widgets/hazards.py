@@ -100,7 +100,7 @@ class HazardsPane(ItemPane):
         """Show the hint of a kind picked while editing too."""
         if self.editing is not None and event.field is self.form["kind"]:
             set_text(self.note, self.hint(event.value))
-        super().on_field_accepted(event)
+        # (Textual then calls ItemPane.on_field_accepted itself: handlers run down the MRO)
 
     def build_item(self) -> dict[str, Any]:
         """The hazard from the form."""

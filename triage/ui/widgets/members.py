@@ -221,8 +221,8 @@ class MembersPane(ItemPane):
                                    self.signs.value())
         if self.editing is None and event.field is self.signs:
             event.stop()
-            return
-        super().on_field_accepted(event)
+            event.prevent_default()  # gathered with the new group, not added on its own
+        # (Textual then calls ItemPane.on_field_accepted itself: handlers run down the MRO)
 
     def build_item(self) -> dict[str, Any]:
         """The group from the form."""

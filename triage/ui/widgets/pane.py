@@ -166,6 +166,13 @@ class ItemPane(VerticalScroll):
         elif first is not None:
             first.children[1].focus() if len(first.children) > 1 else None
 
+    def focus_first(self) -> None:
+        """Put the cursor in the form's first text field (where typing starts)."""
+        for w in self.form.values():
+            if isinstance(w, Field) and w.display:
+                w.focus_input()
+                return
+
     def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
         """Enter or a click on a row edits that item."""
         event.stop()
@@ -184,6 +191,21 @@ class ItemPane(VerticalScroll):
             self.form_changed(event.field)
             return
         self.add_item()
+
+    def retry_refused(self, saved: Any) -> None:
+        """After a field is saved, try again the fields of this form still refused.
+
+        A class set by hand waits for its reason, for example.
+        """
+        if self.editing is None:
+            return
+        for w in self.form.values():
+            if w is saved or not w.status_text.startswith("✗"):
+                continue
+            if isinstance(w, Field):
+                w.accept(force=True)
+            elif w.path:
+                self.post_message(FieldAccepted(w, w.path, w.value()))
 
     def show_error(self, message: str) -> None:
         """Put a refusal beside the field it names, or under the form."""

@@ -46,6 +46,10 @@ class StoreyPane(VerticalScroll):
         self.summary = Static("", classes="summary")
         yield self.summary
 
+    def focus_first(self) -> None:
+        """Cursor in the height field."""
+        self.height_f.focus_input()
+
     def load(self, refill: bool = True) -> None:
         """Show the storey in view."""
         scr: Any = self.screen

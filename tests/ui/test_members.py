@@ -1,0 +1,56 @@
+"""Member groups: the class and eta shown once a group is saved; signs from the forms; an
+override of the class needs its reason first."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from drive import pick, settle, type_in
+
+from triage.store import Store
+
+SID = "11111111-1111-4111-8111-111111111111"
+
+
+async def test_group_class_eta_signs_override(db: Path, make_app) -> None:
+    app = make_app(db, open_survey=SID)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press("f7")
+        await settle(pilot)
+        scr = app.screen
+        pane = scr.query_one("#members-pane")
+        # the check list offers the concrete column signs of the rc_frame form
+        offered = [str(o.value) for o in pane.signs.checks.options]
+        assert "cover_spalling" in offered and "bar_buckled" in offered
+        assert "brace_buckled" not in offered  # a steel sign is not on a concrete column
+        await type_in(pilot, "m-crack", "1.4", enter=False)
+        await type_in(pilot, "m-ref", "C3", enter=False)
+        await type_in(pilot, "m-count", "1")
+        assert len(scr.survey.storeys[0].members) == 2
+        row = pane.table.get_row_at(1)
+        assert row[1] == "C3" and row[6] == "III" and row[7] == "0.5" and row[8] == "crack"
+        # edit it: tick a sign, which is saved at once
+        pane.table.move_cursor(row=1)
+        pane.table.focus()
+        await pilot.press("enter")
+        await settle(pilot)
+        assert pane.editing == 1
+        pane.signs.checks.select("bar_exposed")
+        await settle(pilot)
+        assert "✓ saved" in pane.signs.status_text
+        assert pane.table.get_row_at(1)[6] == "IV"
+        assert "class IV from signs" in str(pane.class_line.render())
+        # a class set by hand without a reason is refused, with the rule
+        c = await pick(pilot, "m-class", "II")
+        assert "override_reason" in c.status_text and "✗" in c.status_text
+        # the reason saved, the class waiting for it is saved too
+        await type_in(pilot, "m-reason", "engineer's reading of the full panel")
+        await settle(pilot)
+        assert "✓ saved" in c.status_text
+        assert pane.table.get_row_at(1)[6] == "II"
+        assert pane.table.get_row_at(1)[8] == "override"
+    with Store.open(db, refresh=False) as st:
+        m = st.load_survey(SID).storeys[0].members[1]
+        assert m.signs == ("bar_exposed",) and m.damage_class == "II"
+        assert m.override_reason == "engineer's reading of the full panel"

@@ -158,6 +158,12 @@ EDITS = st.sampled_from([
     ("set", "storeys[{s}].members[0].count", st.integers(-1, 40)),
     ("set", "storeys[{s}].members[1].crack_mm", st.sampled_from([None, 0, 0.2, 1.5, 70])),
     ("set", "storeys[{s}].label", st.sampled_from(["G", "1", "2", "M", "R"])),
+    ("set", "storeys[{s}].readings[1].tilt_deg", st.one_of(st.none(), st.floats(-1, 1))),
+    ("set", "storeys[{s}].readings[0].gauge_mm", st.sampled_from([None, 0, 1000, 2500.5])),
+    ("set", "storeys[{s}].members[1].damage_class", st.sampled_from([None, "IV", "VI"])),
+    ("set", "storeys[{s}].members[0].dir", st.sampled_from([None, "x"])),
+    ("set", "storeys[{s}].members[1].ref", st.one_of(st.none(), st.text(max_size=4))),
+    ("set", "storeys[{s}].members[5].count", st.integers(1, 3)),
     ("add", "storeys[{s}].readings", st.fixed_dictionaries(
         {"dir": st.sampled_from(["x", "y"]), "tilt_deg": st.floats(-2, 2)})),
     ("add", "hazards", st.fixed_dictionaries(
@@ -177,9 +183,15 @@ def test_partial_validation_matches_full_validation(steps):
     for (op, path, values), s, data in steps:
         value = data.draw(values)
         p = path.format(s=s)
+        # The short way for plain item fields and the general way agree, refusal included.
+        try:
+            general: edits.Applied | str = edits.apply(doc, op, p, value, direct=False)
+        except EditRefused as err:
+            general = str(err)
         try:
             applied = edits.apply(doc, op, p, value)
-        except EditRefused:
+        except EditRefused as err:
+            assert general == str(err)
             # Refused by the part: the whole survey with the raw edit applied is refused too.
             raw = {"set": edits.apply_set, "add": edits.apply_add,
                    "remove": lambda d, q, v: edits.apply_remove(d, q)}
@@ -190,6 +202,10 @@ def test_partial_validation_matches_full_validation(steps):
             with pytest.raises(ValueError):
                 parse_survey(json.loads(json.dumps(bad)))
             continue
+        assert not isinstance(general, str), general
+        assert (general.old, general.new, general.path) == (applied.old, applied.new,
+                                                             applied.path)
+        assert canonical_json(general.doc) == canonical_json(applied.doc)
         full = parse_survey(json.loads(json.dumps(applied.doc))).to_json_dict()
         assert canonical_json(applied.doc) == canonical_json(full)
         # The text kept between edits is the canonical text of the survey as it now is.

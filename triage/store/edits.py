@@ -315,8 +315,65 @@ def inverse(op: str, path: str, old: Any, new: Any) -> tuple[str, str, Any]:
     raise EditRefused(f"{op}: this change cannot be undone")
 
 
-def apply(doc: dict[str, Any], op: str, path: str, value: Any) -> Applied:
-    """Apply one edit (set, add at the path's index, remove) and validate what it touched."""
+_PLAIN = (str, int, float, bool)
+_ITEM_MODELS: dict[str, type[BaseModel]] = {"readings": Reading, "members": MemberGroup}
+
+
+def apply_field(doc: dict[str, Any], path: str, value: Any) -> Applied | None:
+    """The keystroke case, done directly: one plain field of a reading or a member group.
+
+    Such an edit can break only the rules of its own item (no label, hazard or storey count
+    changes), so the item alone is validated. None when the edit is not of this kind (the
+    general path then handles it, with the same result; a test checks both agree).
+    """
+    try:
+        t = _parse(path)
+    except EditRefused:
+        return None
+    if (len(t) != 5 or t[0] != "storeys" or not isinstance(t[1], int)
+            or not isinstance(t[3], int) or not isinstance(t[4], str)):
+        return None
+    kind = t[2]
+    model = _ITEM_MODELS.get(str(kind))
+    if model is None or not (value is None or isinstance(value, _PLAIN)):
+        return None
+    storeys = doc.get("storeys")
+    if type(storeys) is not list or not 0 <= t[1] < len(storeys):
+        return None
+    st = storeys[t[1]]
+    items = st.get(kind) if type(st) is dict else None
+    if type(items) is not list or not 0 <= t[3] < len(items) or type(items[t[3]]) is not dict:
+        return None
+    field = t[4]
+    item = dict(items[t[3]])
+    old = item.get(field)
+    if value is None:
+        item.pop(field, None)
+    else:
+        item[field] = value
+    norm = _validate(model, item, f"storeys[{t[1]}].{kind}[{t[3]}]")
+    new_items = list(items)
+    new_items[t[3]] = norm
+    new_st = dict(st)
+    new_st[kind] = new_items
+    new_storeys = list(storeys)
+    new_storeys[t[1]] = new_st
+    new_doc = dict(doc)
+    new_doc["storeys"] = new_storeys
+    return Applied(new_doc, "set", path, old, norm.get(field))
+
+
+def apply(doc: dict[str, Any], op: str, path: str, value: Any, *,
+          direct: bool = True) -> Applied:
+    """Apply one edit (set, add at the path's index, remove) and validate what it touched.
+
+    `direct` lets a plain field of a reading or member group take the short way
+    (`apply_field`); off, every edit goes the general way (for the test that they agree).
+    """
+    if direct and op == "set":
+        quick = apply_field(doc, path, value)
+        if quick is not None:
+            return quick
     if op == "set":
         applied = apply_set(doc, path, value)
     elif op == "add":
@@ -354,6 +411,9 @@ class CanonicalText:
 
     def __init__(self) -> None:
         self._memo: dict[int, tuple[Any, str]] = {}
+        self._doc: dict[str, Any] | None = None   # the survey the last text is of
+        self._text = ""
+        self._spans: list[tuple[int, int]] = []    # where each storey sits in that text
 
     def _cached(self, obj: Any, make: Any) -> str:
         hit = self._memo.get(id(obj))
@@ -379,20 +439,67 @@ class CanonicalText:
 
     def text(self, doc: dict[str, Any]) -> str:
         """The canonical JSON text of `doc`."""
+        out = self._splice(doc)
+        if out is None:
+            out = self._build(doc)
+        if len(self._memo) > self.LIMIT:
+            self._prune(doc)
+        return out
+
+    def _splice(self, doc: dict[str, Any]) -> str | None:
+        """The last text with the one storey that changed put in its place; None if more did."""
+        prev = self._doc
+        if prev is None or doc.keys() != prev.keys():
+            return None
+        for key, value in doc.items():
+            if key != "storeys" and value is not prev[key]:
+                return None
+        old, new = prev.get("storeys"), doc.get("storeys")
+        if type(old) is not list or type(new) is not list or len(old) != len(new):
+            return None
+        changed = [i for i, (a, b) in enumerate(zip(old, new, strict=True)) if a is not b]
+        if len(changed) > 1:
+            return None
+        if changed:
+            i = changed[0]
+            a, b = self._spans[i]
+            piece = self._cached(new[i], self._storey)
+            delta = len(piece) - (b - a)
+            self._text = self._text[:a] + piece + self._text[b:]
+            self._spans[i] = (a, a + len(piece))
+            for k in range(i + 1, len(self._spans)):
+                x, y = self._spans[k]
+                self._spans[k] = (x + delta, y + delta)
+        self._doc = doc
+        return self._text
+
+    def _build(self, doc: dict[str, Any]) -> str:
         parts = []
-        for key in sorted(doc):
+        spans: list[tuple[int, int]] = []
+        pos = 1   # after "{"
+        for n, key in enumerate(sorted(doc)):
             value = doc[key]
             t = type(value)
+            head = ("," if n else "") + _string(key) + ":"
+            pos += len(head)
             if key == "storeys" and t is list:
-                encoded = "[" + ",".join(self._cached(st, self._storey) for st in value) + "]"
+                texts = [self._cached(st, self._storey) for st in value]
+                at = pos + 1   # after "["
+                for m, piece in enumerate(texts):
+                    at += 1 if m else 0
+                    spans.append((at, at + len(piece)))
+                    at += len(piece)
+                encoded = "[" + ",".join(texts) + "]"
             elif t is dict or t is list:
                 encoded = self._cached(value, _encode)
             else:
                 encoded = scalar_json(value)
-            parts.append(_string(key) + ":" + encoded)
-        if len(self._memo) > self.LIMIT:
-            self._prune(doc)
-        return "{" + ",".join(parts) + "}"
+            parts.append(head + encoded)
+            pos += len(encoded)
+        self._text = "{" + "".join(parts) + "}"
+        self._spans = spans
+        self._doc = doc
+        return self._text
 
     def _prune(self, doc: dict[str, Any]) -> None:
         live: list[Any] = [v for v in doc.values() if isinstance(v, dict | list)]

@@ -3,17 +3,14 @@ the drift profile drawn in characters."""
 
 from __future__ import annotations
 
-import sys
 from pathlib import Path
 
 from drive import settle
+from helpers import make, reading, storey
 
 from triage.assess import CAUTION, assess
 from triage.ui.screens.help import HelpScreen
 from triage.ui.widgets.profile import drift_profile
-
-sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
-from helpers import make, reading, storey  # noqa: E402
 
 SID = "11111111-1111-4111-8111-111111111111"
 

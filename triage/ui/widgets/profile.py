@@ -13,7 +13,6 @@ from typing import Any
 
 from triage.assess.drift import pct
 
-
 BANDS = (0.0, 0.25, 0.5, 0.75, 1.0)  # where 0, IO, LS, CP and 1.25 x CP sit on a track
 
 

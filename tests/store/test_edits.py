@@ -228,3 +228,27 @@ def test_an_edit_is_judged_on_the_survey_as_another_process_left_it(db, stored):
         store.set_value(sid, "storeys[1].label", "Z")
     s = store.load_survey(sid)
     assert s.storeys[1].label == "2" and s.hazards[0].storey == "2"
+
+
+def test_the_stored_json_stays_canonical_through_edits_of_every_kind(stored):
+    store, sid = stored
+    steps = [
+        ("set", "storeys[1].readings[0].offset_mm", 4.5),
+        ("set", "building.name", "Harbour Flats, Kōwhai Bay"),
+        ("add", "storeys", {"label": "R", "height_m": 2.4}),
+        ("set", "storeys[3].notes", "roof plant room: ōōō"),
+        ("add", "hazards", {"kind": "falling_hazard", "storey": "R"}),
+        ("set", "storeys[0].members[1].crack_mm", 0.9),
+        ("remove", "storeys[0].readings[0]", None),
+        ("set", "inspection.inspector.name", "Āni Tester"),
+        ("set", "storeys[2].members[0].count", 9),
+    ]
+    for op, path, value in steps:
+        store.edit(sid, op, path, value)
+        doc = _doc(store, sid)
+        assert doc == canonical_json(json.loads(doc))
+        assert doc == canonical_json(store.load_survey(sid).to_json_dict())
+    store.undo_last(sid)
+    store.undo_last(sid)
+    doc = _doc(store, sid)
+    assert doc == canonical_json(store.load_survey(sid).to_json_dict())

@@ -403,17 +403,18 @@ class CanonicalText:
 
     Edits copy on write, so a block, storey, reading or member group no edit touched is the
     very same object as before; its text is kept by identity (the memo holds the object, so
-    its id cannot be reused). The result is the same string `triage.model.canonical_json`
-    gives (a test checks it).
+    its id cannot be reused). `parts` gives the text in pieces (what comes before the storeys,
+    each storey, what comes after), the same string objects as long as they do not change, so
+    SQLite can be handed the pieces and Python's cached UTF-8 of each is reused. Joined, they
+    are the string `triage.model.canonical_json` gives (a test checks it).
     """
 
     LIMIT = 1024   # entries kept before pruning to what the current survey holds
 
     def __init__(self) -> None:
         self._memo: dict[int, tuple[Any, str]] = {}
-        self._doc: dict[str, Any] | None = None   # the survey the last text is of
-        self._text = ""
-        self._spans: list[tuple[int, int]] = []    # where each storey sits in that text
+        self._doc: dict[str, Any] | None = None   # the survey the last head and tail are of
+        self._ends = ("", "")
 
     def _cached(self, obj: Any, make: Any) -> str:
         hit = self._memo.get(id(obj))
@@ -437,69 +438,47 @@ class CanonicalText:
             parts.append(_string(key) + ":" + encoded)
         return "{" + ",".join(parts) + "}"
 
-    def text(self, doc: dict[str, Any]) -> str:
-        """The canonical JSON text of `doc`."""
-        out = self._splice(doc)
-        if out is None:
-            out = self._build(doc)
-        if len(self._memo) > self.LIMIT:
-            self._prune(doc)
-        return out
-
-    def _splice(self, doc: dict[str, Any]) -> str | None:
-        """The last text with the one storey that changed put in its place; None if more did."""
+    def _same_ends(self, doc: dict[str, Any]) -> bool:
         prev = self._doc
         if prev is None or doc.keys() != prev.keys():
-            return None
-        for key, value in doc.items():
-            if key != "storeys" and value is not prev[key]:
-                return None
-        old, new = prev.get("storeys"), doc.get("storeys")
-        if type(old) is not list or type(new) is not list or len(old) != len(new):
-            return None
-        changed = [i for i, (a, b) in enumerate(zip(old, new, strict=True)) if a is not b]
-        if len(changed) > 1:
-            return None
-        if changed:
-            i = changed[0]
-            a, b = self._spans[i]
-            piece = self._cached(new[i], self._storey)
-            delta = len(piece) - (b - a)
-            self._text = self._text[:a] + piece + self._text[b:]
-            self._spans[i] = (a, a + len(piece))
-            for k in range(i + 1, len(self._spans)):
-                x, y = self._spans[k]
-                self._spans[k] = (x + delta, y + delta)
-        self._doc = doc
-        return self._text
+            return False
+        return all(value is prev[key] for key, value in doc.items() if key != "storeys")
 
-    def _build(self, doc: dict[str, Any]) -> str:
-        parts = []
-        spans: list[tuple[int, int]] = []
-        pos = 1   # after "{"
-        for n, key in enumerate(sorted(doc)):
-            value = doc[key]
-            t = type(value)
-            head = ("," if n else "") + _string(key) + ":"
-            pos += len(head)
-            if key == "storeys" and t is list:
-                texts = [self._cached(st, self._storey) for st in value]
-                at = pos + 1   # after "["
-                for m, piece in enumerate(texts):
-                    at += 1 if m else 0
-                    spans.append((at, at + len(piece)))
-                    at += len(piece)
-                encoded = "[" + ",".join(texts) + "]"
-            elif t is dict or t is list:
-                encoded = self._cached(value, _encode)
-            else:
-                encoded = scalar_json(value)
-            parts.append(head + encoded)
-            pos += len(encoded)
-        self._text = "{" + "".join(parts) + "}"
-        self._spans = spans
+    def parts(self, doc: dict[str, Any]) -> tuple[str, list[str], str]:
+        """(head, storey texts, tail): head + ",".join(storeys) + tail is the text."""
+        storeys = doc.get("storeys")
+        if type(storeys) is not list:
+            return _encode(doc), [], ""
+        if not self._same_ends(doc):
+            head, tail = "{", ""
+            after = False
+            for n, key in enumerate(sorted(doc)):
+                sep = "," if n else ""
+                if key == "storeys":
+                    head += sep + '"storeys":['
+                    tail = "]"
+                    after = True
+                    continue
+                value = doc[key]
+                t = type(value)
+                encoded = (self._cached(value, _encode) if t is dict or t is list
+                           else scalar_json(value))
+                piece = sep + _string(key) + ":" + encoded
+                if after:
+                    tail += piece
+                else:
+                    head += piece
+            self._ends = (head, tail + "}")
         self._doc = doc
-        return self._text
+        texts = [self._cached(st, self._storey) for st in storeys]
+        if len(self._memo) > self.LIMIT:
+            self._prune(doc)
+        return self._ends[0], texts, self._ends[1]
+
+    def text(self, doc: dict[str, Any]) -> str:
+        """The canonical JSON text of `doc`."""
+        head, storeys, tail = self.parts(doc)
+        return head + ",".join(storeys) + tail
 
     def _prune(self, doc: dict[str, Any]) -> None:
         live: list[Any] = [v for v in doc.values() if isinstance(v, dict | list)]

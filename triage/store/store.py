@@ -6,6 +6,7 @@ items kept in the change log) and the transaction rules.
 
 from __future__ import annotations
 
+import functools
 import getpass
 import hashlib
 import json
@@ -61,6 +62,17 @@ def import_uid(survey_id: str, doc_text: str) -> str:
     """The id of the change that brought a survey in: the same on every laptop for one file."""
     digest = hashlib.sha256(doc_text.encode("utf-8")).hexdigest()
     return str(uuid.uuid5(ID_NAMESPACE, f"stored:{survey_id}:{digest}"))
+
+
+_PIECES = 400   # storeys joined by SQLite (a deeper `||` chain would near its limits)
+
+
+@functools.lru_cache(maxsize=64)
+def _update_doc_sql(storeys: int) -> str:
+    """UPDATE of the survey JSON given as head, each storey and tail, joined by SQLite."""
+    joined = " || ',' || ".join("?" * storeys) if storeys else "''"
+    return (f"UPDATE surveys SET doc = ? || {joined} || ?, revision = ?, updated_at = ? "
+            "WHERE id = ? AND revision = ?")
 
 
 def list_columns(doc: dict[str, Any]) -> dict[str, Any]:
@@ -366,7 +378,8 @@ class Store:
         """Write the row (only if still at `rev`) and its change; None if it had moved on."""
         new_rev = rev + 1
         now = self._stamp()
-        text = self._texts.setdefault(sid, edits.CanonicalText()).text(applied.doc)
+        head, storeys, tail = self._texts.setdefault(sid, edits.CanonicalText()).parts(
+            applied.doc)
         if applied.path.startswith(("building", "inspection")):
             # The list columns copy these blocks; other edits leave them (and their index) be.
             cur = c.execute(
@@ -374,11 +387,16 @@ class Store:
                 "building = :building, address = :address, lat = :lat, lon = :lon, "
                 "inspector = :inspector, at = :at, at_utc = :at_utc, updated_at = :now "
                 "WHERE id = :id AND revision = :was",
-                {**list_columns(applied.doc), "doc": text, "rev": new_rev, "now": now,
-                 "id": sid, "was": rev})
+                {**list_columns(applied.doc), "doc": head + ",".join(storeys) + tail,
+                 "rev": new_rev, "now": now, "id": sid, "was": rev})
+        elif len(storeys) <= _PIECES:
+            # SQLite joins the pieces: the UTF-8 of the storeys no edit touched is not redone.
+            cur = c.execute(_update_doc_sql(len(storeys)),
+                            (head, *storeys, tail, new_rev, now, sid, rev))
         else:
             cur = c.execute("UPDATE surveys SET doc = ?, revision = ?, updated_at = ? "
-                            "WHERE id = ? AND revision = ?", (text, new_rev, now, sid, rev))
+                            "WHERE id = ? AND revision = ?",
+                            (head + ",".join(storeys) + tail, new_rev, now, sid, rev))
         if cur.rowcount != 1:
             return None
         uid = str(uuid.uuid4())

@@ -21,10 +21,16 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("merge", help="gather several inspectors' databases into one")
     p.add_argument("sources", nargs="+", metavar="DB", help="databases to read (never changed)")
     p.add_argument("--into", required=True, metavar="DB", help="the database to gather into")
-    p.set_defaults(func=run_merge)
+    p.set_defaults(func=run)
     p = sub.add_parser("summary", help="one row per building: latest tier, level, where")
     p.add_argument("--format", choices=("text", "csv", "geojson"), default="text")
-    p.set_defaults(func=run_summary)
+    p.set_defaults(func=run)
+
+
+def run(args: argparse.Namespace) -> int:
+    """Run the command of this module that `args.command` names."""
+    commands = {"merge": run_merge, "summary": run_summary}
+    return commands[args.command](args)
 
 
 def run_merge(args: argparse.Namespace) -> int:

@@ -20,18 +20,24 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("import", help="survey files (JSON, or a report PDF carrying its survey) "
                        "into the database")
     p.add_argument("files", nargs="+", metavar="FILE", help="triage-survey/1 JSON or report PDF")
-    p.set_defaults(func=run_import)
+    p.set_defaults(func=run)
     p = sub.add_parser("export", help="a survey out of the database as triage-survey/1 JSON")
     p.add_argument("id", metavar="ID", help="the survey id (or an unambiguous start of it)")
     p.add_argument("-o", "--output", required=True, metavar="FILE", help="the JSON file to write")
-    p.set_defaults(func=run_export)
+    p.set_defaults(func=run)
     p = sub.add_parser("list", help="the surveys in the database")
     p.add_argument("--format", choices=("text", "json"), default="text")
     p.add_argument("--hidden", action="store_true", help="include hidden surveys")
-    p.set_defaults(func=run_list)
+    p.set_defaults(func=run)
     p = sub.add_parser("backup", help="a consistent copy of the database, safe while it is in use")
     p.add_argument("-o", "--output", required=True, metavar="FILE", help="the copy to write")
-    p.set_defaults(func=run_backup)
+    p.set_defaults(func=run)
+
+
+def run(args: argparse.Namespace) -> int:
+    """Run the command of this module that `args.command` names."""
+    commands = {"import": run_import, "export": run_export, "list": run_list, "backup": run_backup}
+    return commands[args.command](args)
 
 
 def open_store(args: argparse.Namespace, *, create: bool = True,

@@ -8,7 +8,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Button, Footer, Static
+from textual.widgets import Button, Footer, Input, Static
 
 from triage import standards
 from triage.ui.data import Refused, rule_of, storey_labels
@@ -73,8 +73,14 @@ class NewSurveyScreen(Screen[str | None]):
         self.query_one("#f-name", Field).focus_input()
 
     def on_field_accepted(self, event: FieldAccepted) -> None:
-        """A field passed its own check; it is stored with the rest on create."""
+        """A field passed its own check (stored with the rest on create); on to the next."""
         event.field.show_note("ok")
+        if isinstance(event.field, Field):
+            event.field.saved_text = event.field.text  # leaving it now asks nothing more
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        """Enter moves on to the next field."""
+        self.focus_next()
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         """The create button."""

@@ -129,7 +129,7 @@ class Field(_Saving, Horizontal):
         self.saved_text = show_text(value)
         self._width = width
         self.input = Input(self.saved_text, placeholder=placeholder or unit, compact=True,
-                           password=password, select_on_focus=False)
+                           password=password, select_on_focus=True)
         self.status = Static("", classes="fstatus")
 
     def compose(self) -> ComposeResult:
@@ -177,8 +177,7 @@ class Field(_Saving, Horizontal):
         self.show_saved(note)
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
-        """Enter accepts the value."""
-        event.stop()
+        """Enter accepts the value (the event goes on up: a form may move to the next field)."""
         self.accept(force=self.path is None)
 
     def on_input_blurred(self, event: Input.Blurred) -> None:

@@ -17,6 +17,7 @@ KEYS = ["kind", "where", "storey", "height_above_ground_m", "note"]
 class HazardsPane(ItemPane):
     """The hazards of the survey (any time, whatever storey is in view)."""
 
+    first_key = "kind"
     noun = "hazard"
     columns = (("#", 2), ("kind", 15), ("where", 11), ("st.", 4), ("height", 6),
                ("keep-out", 7), ("at least", 10))

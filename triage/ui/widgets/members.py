@@ -85,6 +85,7 @@ class SignChecks(_Saving, Horizontal):
 class MembersPane(ItemPane):
     """The member groups of the storey in view."""
 
+    first_key = "count"
     noun = "member group"
     columns = (("#", 3), ("ref", 5), ("kind", 10), ("count", 5), ("crack", 6), ("signs", 5),
                ("class", 5), ("eta", 5), ("from", 8))

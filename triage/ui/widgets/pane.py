@@ -166,8 +166,17 @@ class ItemPane(VerticalScroll):
         elif first is not None:
             first.children[1].focus() if len(first.children) > 1 else None
 
+    first_key = ""  # the form field where entry starts (the first text field when empty)
+
     def focus_first(self) -> None:
-        """Put the cursor in the form's first text field (where typing starts)."""
+        """Put the cursor where entry of a new item starts."""
+        w = self.form.get(self.first_key)
+        if isinstance(w, Choice):
+            w.select.focus()
+            return
+        if isinstance(w, Field) and w.display:
+            w.focus_input()
+            return
         for w in self.form.values():
             if isinstance(w, Field) and w.display:
                 w.focus_input()

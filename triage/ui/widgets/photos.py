@@ -15,6 +15,7 @@ KEYS = ["path", "caption"]
 class PhotosPane(ItemPane):
     """Photos of one thing: pick what they are of, then add path and caption."""
 
+    first_key = "path"
     noun = "photo"
     columns = (("#", 3), ("file", 30), ("caption", 30))
 

@@ -33,8 +33,9 @@ class ReadingsPane(ItemPane):
     ReadingsPane > .drift-line { height: 1; }
     """
 
+    first_key = "offset_mm"
     noun = "reading"
-    columns = (("#", 3), ("dir", 3), ("offset / gauge", 16), ("sd", 6), ("where", 16),
+    columns = (("#", 3), ("dir", 3), ("offset / gauge", 16), ("sd", 7), ("where", 15),
                ("drift", 7))
 
     def list_path(self) -> str:

@@ -415,6 +415,8 @@ class CanonicalText:
         self._memo: dict[int, tuple[Any, str]] = {}
         self._doc: dict[str, Any] | None = None   # the survey the last head and tail are of
         self._ends = ("", "")
+        self._storeys: list[Any] = []             # its storeys, and their texts
+        self._texts: list[str] = []
 
     def _cached(self, obj: Any, make: Any) -> str:
         hit = self._memo.get(id(obj))
@@ -424,17 +426,27 @@ class CanonicalText:
         self._memo[id(obj)] = (obj, t)
         return t
 
+    def _items(self, items: list[Any]) -> str:
+        """A list of readings or member groups, each item's text kept by identity."""
+        memo = self._memo
+        texts = []
+        for x in items:   # inlined `_cached`: this loop runs on every keystroke
+            hit = memo.get(id(x))
+            if hit is not None and hit[0] is x:
+                texts.append(hit[1])
+            else:
+                t = _encode(x)
+                memo[id(x)] = (x, t)
+                texts.append(t)
+        return "[" + ",".join(texts) + "]"
+
     def _storey(self, st: Any) -> str:
         if not isinstance(st, dict):
             return _encode(st)
         parts = []
         for key in sorted(st):
             value = st[key]
-            if type(value) is list:
-                encoded = ("[" + ",".join(self._cached(x, _encode) for x in value) + "]"
-                           if value else "[]")
-            else:
-                encoded = scalar_json(value)
+            encoded = self._items(value) if type(value) is list else scalar_json(value)
             parts.append(_string(key) + ":" + encoded)
         return "{" + ",".join(parts) + "}"
 
@@ -469,8 +481,18 @@ class CanonicalText:
                 else:
                     head += piece
             self._ends = (head, tail + "}")
+        previous = self._storeys
         self._doc = doc
-        texts = [self._cached(st, self._storey) for st in storeys]
+        if len(previous) == len(storeys) and self._texts:
+            # Only the storeys an edit replaced are looked at again.
+            texts = list(self._texts)
+            for i, st in enumerate(storeys):
+                if st is not previous[i]:
+                    texts[i] = self._cached(st, self._storey)
+        else:
+            texts = [self._cached(st, self._storey) for st in storeys]
+        self._storeys = storeys
+        self._texts = texts
         if len(self._memo) > self.LIMIT:
             self._prune(doc)
         return self._ends[0], texts, self._ends[1]

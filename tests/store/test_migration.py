@@ -95,3 +95,19 @@ def test_this_version_refuses_a_file_of_the_next(tmp_path, monkeypatch):
     monkeypatch.undo()
     with pytest.raises(StoreError, match="newer triage \\(schema 2; this one knows 1\\)"):
         Store.open(db)
+
+
+def test_an_older_source_is_merged_through_an_upgraded_copy(tmp_path, monkeypatch):
+    from triage.store.merge import merge_into
+
+    old = tmp_path / "laptop.db"
+    _v1(old)
+    before = old.read_bytes()
+    monkeypatch.setattr(schema, "MIGRATIONS", [*schema.MIGRATIONS, _to_2])
+    with Store.open(tmp_path / "centre.db") as st:
+        (r,) = merge_into(st, [old])
+        assert r.skipped is None and r.added == 3
+        assert st.conn.execute("PRAGMA user_version").fetchone()[0] == 2
+        assert {x.building for x in st.list_surveys()} == {f"Building {i}" for i in range(3)}
+    assert old.read_bytes() == before   # the source itself stays at version 1
+    assert not list(tmp_path.glob("laptop.v1-backup*"))

@@ -31,8 +31,8 @@ from pathlib import Path
 
 from triage.model import ID_NAMESPACE, canonical_json
 
+from . import schema
 from .connect import StoreError, check_file, explain, immediate, uri
-from .schema import SCHEMA_VERSION
 from .store import Store
 
 # Columns copied as they are (id, source, source_db and conflict_of are set by the merge).
@@ -87,10 +87,11 @@ def _prepare(src: Path, tmp: Path) -> tuple[Path, bool]:
         raise StoreError(str(err).replace(str(readable), str(src))) from None
     if version == 0:
         raise StoreError("not a triage database (empty)")
-    if version > SCHEMA_VERSION:
+    known = schema.current_version()
+    if version > known:
         raise StoreError(f"written by a newer triage (schema {version}; this one knows "
-                         f"{SCHEMA_VERSION}); update triage to merge it")
-    if version < SCHEMA_VERSION:
+                         f"{known}); update triage to merge it")
+    if version < known:
         # An older schema is upgraded in a copy, never in the source.
         copy = tmp / "upgraded.db"
         ro = sqlite3.connect(uri(readable, "ro", immutable=immutable), uri=True)

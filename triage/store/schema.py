@@ -116,6 +116,11 @@ MIGRATIONS: list[Migration] = [_to_1]
 SCHEMA_VERSION = len(MIGRATIONS)
 
 
+def current_version() -> int:
+    """The schema version this tool writes (read at call time, so tests can add a step)."""
+    return len(MIGRATIONS)
+
+
 def backup_path(path: Path, version: int) -> Path:
     """Where the copy made before migrating from `version` goes (a free name beside it)."""
     base = path.with_name(f"{path.stem}.v{version}-backup{path.suffix or '.db'}")

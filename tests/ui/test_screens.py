@@ -89,3 +89,18 @@ def test_drift_profile_marks_and_bars() -> None:
     assert "0.30%" in g and "0.05%" in g
     assert "—" in lines[1]  # storey 1 has no y reading
     assert "I 0.20% L 1.0% C 4.0%" in lines[3]
+
+
+async def test_the_mouse_works(db: Path, make_app) -> None:
+    app = make_app(db, open_survey=SID)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        scr = app.screen
+        await pilot.click("#--content-tab-members")
+        await settle(pilot)
+        assert scr.query_one("TabbedContent").active == "members"
+        pane = scr.query_one("#members-pane")
+        await pilot.click(pane.table, offset=(4, 1))  # the first group's row
+        await settle(pilot)
+        assert pane.editing == 0
+        assert scr.query_one("#m-count").text == "12"

@@ -25,7 +25,8 @@ class HistoryScreen(Screen[bool]):
 
     CSS_PATH = "history.tcss"
     BINDINGS: ClassVar[list[BindingType]] = [
-        Binding("escape,f3", "close", "back", priority=True),
+        Binding("escape", "close", "back"),
+        Binding("f3", "close", "back", show=False, priority=True),
         Binding("ctrl+z", "undo", "undo last change", priority=True),
     ]
 

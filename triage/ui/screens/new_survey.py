@@ -27,7 +27,7 @@ class NewSurveyScreen(Screen[str | None]):
     CSS_PATH = "new_survey.tcss"
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("ctrl+s", "create", "create survey", priority=True),
-        Binding("escape", "cancel", "back", priority=True),
+        Binding("escape", "cancel", "back"),
     ]
 
     def compose(self) -> ComposeResult:

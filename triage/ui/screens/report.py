@@ -62,7 +62,8 @@ class ReportScreen(Screen[bool]):
     CSS_PATH = "report.tcss"
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("ctrl+s", "write", "write report", priority=True),
-        Binding("escape,f4", "close", "back", priority=True),
+        Binding("escape", "close", "back"),
+        Binding("f4", "close", "back", show=False, priority=True),
     ]
 
     def __init__(self, survey_id: str) -> None:

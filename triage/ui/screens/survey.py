@@ -49,7 +49,7 @@ class SurveyScreen(Screen[None]):
                 show=False),
         Binding("pagedown", "storey(-1)", "storey down", priority=True, key_display="PgDn",
                 show=False),
-        Binding("escape", "back", "back", priority=True),
+        Binding("escape", "back", "back"),  # not priority: a pick list open closes first
         Binding("ctrl+b", "add_below", "storey below", priority=True, show=False),
         Binding("f5", "tab('storey')", "storey tab", priority=True, show=False),
         Binding("f6", "tab('readings')", "readings tab", priority=True, show=False),

@@ -18,7 +18,8 @@ class VerdictScreen(Screen[None]):
 
     CSS_PATH = "verdict.tcss"
     BINDINGS: ClassVar[list[BindingType]] = [
-        Binding("escape,f2", "close", "back", priority=True),
+        Binding("escape", "close", "back"),
+        Binding("f2", "close", "back", show=False, priority=True),
     ]
 
     def __init__(self, survey: Any, assessment: Any) -> None:

@@ -20,7 +20,7 @@ class HazardsPane(ItemPane):
     first_key = "kind"
     noun = "hazard"
     columns = (("#", 2), ("kind", 15), ("where", 11), ("st.", 4), ("height", 6),
-               ("keep-out", 7), ("at least", 10))
+               ("zone", 7), ("at least", 10))
 
     def list_path(self) -> str:
         """Hazards belong to the survey."""

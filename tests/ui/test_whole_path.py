@@ -132,3 +132,24 @@ async def test_unsigned_report_is_labelled(tmp_path: Path, db: Path, make_app) -
         assert "UNSIGNED" in result
         assert out.exists()
         assert verify_report(out).code == 3
+
+
+async def test_wrong_passphrase_writes_nothing(tmp_path: Path, db: Path, make_app) -> None:
+    new_key("Tess Tester", "T-1", tmp_path / "t.key", "right one")
+    app = make_app(db, open_survey="11111111-1111-4111-8111-111111111111")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press("f4")
+        await settle(pilot)
+        await type_in(pilot, "r-key", str(tmp_path / "t.key"), enter=False)
+        pw = await type_in(pilot, "r-pass", "wrong one", enter=False)
+        out = tmp_path / "never.pdf"
+        await type_in(pilot, "r-out", str(out), enter=False)
+        await pilot.press("ctrl+s")
+        await settle(pilot)
+        assert "wrong passphrase" in pw.status_text
+        assert "not written" in str(app.screen.query_one("#report-result").render())
+        assert "wrong one" not in str(app.screen.query_one("#report-result").render())
+    assert not out.exists()
+    with Store.open(db, refresh=False) as st:
+        assert st.survey_row("11111111-1111-4111-8111-111111111111").reported_revision is None

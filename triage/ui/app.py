@@ -41,7 +41,7 @@ class TriageApp(App[None]):
 
     def __init__(self, db_path: Path, *, clock: Callable[[], datetime] | None = None,
                  blink: bool = True, open_survey: str | None = None,
-                 key_dir: Path | None = None, report_dir: Path | None = None,
+                 report_dir: Path | None = None,
                  demo_samples: Path | None = None) -> None:
         super().__init__()
         self.db_path = Path(db_path)
@@ -50,7 +50,6 @@ class TriageApp(App[None]):
         self.clock = clock
         self.blink = blink
         self.open_survey = open_survey
-        self.key_dir = key_dir
         self.report_dir = report_dir or self.db_path.parent / "reports"
         self.demo_samples = demo_samples
         self.who = "inspector"
@@ -139,8 +138,8 @@ def build_app(db_path: Path | str, **options: Any) -> TriageApp:
     """The app on a survey database (created when missing).
 
     Options: `clock` (a callable giving the time, for tests), `blink` (False stops cursors
-    blinking), `open_survey` (a survey id to open at once), `key_dir` (where to look for
-    signing keys), `report_dir` (where reports are written by default), `demo_samples` (a
-    folder of survey files loaded into the database first: `triage demo`).
+    blinking), `open_survey` (a survey id to open at once), `report_dir` (where reports are
+    written by default), `demo_samples` (a folder of survey files loaded into the database
+    first: `triage demo`).
     """
     return TriageApp(Path(db_path), **options)

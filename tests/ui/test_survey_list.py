@@ -116,3 +116,27 @@ async def test_storey_walk_and_add(db: Path, make_app) -> None:
         await pilot.press("ctrl+z")
         await settle(pilot)
         assert [s.label for s in scr.survey.storeys] == ["G", "1"]
+
+
+async def test_moving_away_saves_what_was_typed(db: Path, make_app) -> None:
+    app = make_app(db, open_survey=BAKERY)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        scr = app.screen
+        await type_in(pilot, "r-offset", "7", enter=False)  # a new reading, half typed
+        await pilot.press("f5")
+        await settle(pilot)
+        await type_in(pilot, "s-height", "4.4", enter=False)  # typed, not yet accepted
+        await pilot.press("pageup")
+        await settle(pilot)
+        assert scr.storey.label == "1"
+        with Store.open(db, refresh=False) as st:
+            assert st.load_survey(BAKERY).storeys[0].height_m == 4.4
+        assert scr.query_one("#s-height").text == "3.2"  # storey 1's own height
+        assert scr.query_one("#r-offset").text == "7"  # the half-typed reading is kept
+        # a value that breaks its rule holds the move until it is put right
+        await type_in(pilot, "s-height", "-1", enter=False)
+        await pilot.press("pagedown")
+        await settle(pilot)
+        assert scr.storey.label == "1"
+        assert "greater than 0" in scr.query_one("#s-height").status_text

@@ -21,7 +21,7 @@ from textual.worker import Worker, WorkerState
 
 from triage.ui.data import Refused, Verdict, next_label, rule_of
 from triage.ui.messages import FieldAccepted
-from triage.ui.widgets.field import set_text
+from triage.ui.widgets.field import Field, set_text
 from triage.ui.widgets.hazards import HazardsPane
 from triage.ui.widgets.members import MembersPane
 from triage.ui.widgets.pane import ItemPane
@@ -180,13 +180,43 @@ class SurveyScreen(Screen[None]):
         if i != self.storey_index:
             self.go_storey(i)
 
+    def flush_focused(self) -> bool:
+        """Save what is typed in the focused field before moving away from it.
+
+        Returns False (and shows the rule) when the value breaks a rule: the move waits
+        until it is put right.
+        """
+        w = self.app.focused
+        f = w.parent if w is not None else None
+        if not isinstance(f, Field) or not f.path or f.text.strip() == f.saved_text.strip():
+            return True
+        try:
+            value = f.value()
+            rev = self.data.set(self.survey_id, f.path, value, self.who)
+        except ValueError as err:  # the field's own rule (Refused is not a ValueError)
+            f.show_refused(str(err))
+            return False
+        except Refused as err:
+            f.show_refused(rule_of(str(err)))
+            return False
+        f.mark_saved()
+        self.after_save(rev)
+        return True
+
     def go_storey(self, i: int) -> None:
-        """Show storey i (0 is the lowest)."""
+        """Show storey i (0 is the lowest); a new item half typed stays in its form."""
+        if not self.flush_focused():
+            self.notify("not moved: a field breaks its rule (shown beside it)")
+            return
         self.storey_index = max(0, min(len(self.survey.storeys) - 1, i))
+        self.query_one(StoreyPane).load()
         for pane in self.query(ItemPane).results():
-            if not isinstance(pane, HazardsPane):
+            editing = pane.editing is not None and not isinstance(pane, HazardsPane)
+            if editing:
                 pane.editing = None
-        self.load_all()
+            pane.reload(keep_form=not editing)
+            if not editing:
+                pane.set_paths()
         ol = self.query_one("#storeys", OptionList)
         want = len(self.survey.storeys) - 1 - self.storey_index
         if ol.highlighted != want:
@@ -198,6 +228,8 @@ class SurveyScreen(Screen[None]):
 
     def action_tab(self, name: str) -> None:
         """Show a tab, the cursor in its form."""
+        if not self.flush_focused():
+            return
         self.query_one(TabbedContent).active = name
         self.call_after_refresh(self.current_pane().focus_first)
 
@@ -378,11 +410,15 @@ class SurveyScreen(Screen[None]):
     # --- other screens -------------------------------------------------------------------
 
     def action_back(self) -> None:
-        """Back to the survey list."""
+        """Back to the survey list (a field that breaks its rule is left unsaved)."""
+        if not self.flush_focused():
+            self.notify("left unsaved: the value broke its rule")
         self.app.pop_screen()
 
     def action_verdict(self) -> None:
         """The full verdict."""
+        if not self.flush_focused():
+            return
         from triage.ui.screens.verdict import VerdictScreen
 
         if self.assessment is not None:
@@ -390,6 +426,8 @@ class SurveyScreen(Screen[None]):
 
     def action_history(self) -> None:
         """The change log, with undo."""
+        if not self.flush_focused():
+            return
         from triage.ui.screens.history import HistoryScreen
 
         def back(changed: bool | None) -> None:
@@ -406,6 +444,8 @@ class SurveyScreen(Screen[None]):
 
     def action_report(self) -> None:
         """Issue the report."""
+        if not self.flush_focused():
+            return
         from triage.ui.screens.report import ReportScreen
 
         def back(done: bool | None) -> None:

@@ -140,7 +140,7 @@ class ItemPane(VerticalScroll):
         items = self.items()
         item = items[self.editing] if self.editing is not None else None
         self.fill(item)
-        self._set_paths()
+        self.set_paths()
         for w in self.form.values():
             if hasattr(w, "show_note"):
                 w.show_note("")
@@ -151,7 +151,8 @@ class ItemPane(VerticalScroll):
                      content=f"{self.noun} {self.editing + 1}: each field saves as accepted · "
                      "^n new · ^r remove")
 
-    def _set_paths(self) -> None:
+    def set_paths(self) -> None:
+        """Point the form's fields at the item being edited (none in new mode)."""
         base = f"{self.list_path()}[{self.editing}]" if self.editing is not None else None
         for key, w in self.form.items():
             w.path = f"{base}.{key}" if base is not None else None

@@ -104,9 +104,13 @@ class TriageApp(App[None]):
         if hasattr(screen, "refresh_rows"):
             screen.refresh_rows()
         if self.open_survey:
+            from triage.store import StoreError
             from triage.ui.screens.survey import SurveyScreen
 
-            self.push_screen(SurveyScreen(self.open_survey))
+            try:
+                self.push_screen(SurveyScreen(self.open_survey))
+            except (StoreError, Refused, ValueError) as err:
+                self.notify(f"survey not opened: {str(err).splitlines()[0]}")
 
     def refuse(self, message: str) -> None:
         """The database cannot be used: leave with the one-line reason (status 1)."""

@@ -10,6 +10,7 @@ from pathlib import Path
 
 import pytest
 
+from tests.wording import BORROWED
 from triage import standards
 from triage.forms import (
     HAZARD_GROUPS,
@@ -78,8 +79,7 @@ def test_class_text_describes_each_class_in_our_words() -> None:
 
 
 def test_forms_use_no_forbidden_words() -> None:
-    banned = ("placard", "restricted use", "limited entry", "green tag", "yellow tag",
-              "red tag")
+    banned = BORROWED
     for p in forms_dir().glob("*.toml"):
         text = p.read_text(encoding="utf-8").lower()
         assert not [w for w in banned if w in text], p.name

@@ -8,6 +8,7 @@ from pathlib import Path
 import pytest
 from pypdf import PdfReader
 
+from tests.wording import BORROWED
 from triage import standards
 from triage.assess import CAUTION
 from triage.cli import main
@@ -63,8 +64,7 @@ def test_form_holds_building_storey_bands_hazards_and_signature(
 
 
 def test_there_is_no_result_box(printed: dict[str, tuple[int, list[str]]]) -> None:
-    banned = ("occupy", "evacuate", "○", "◐", "●", "placard", "restricted use",
-              "limited entry", "tag", "result")
+    banned = ("occupy", "evacuate", "○", "◐", "●", "tag", "result", *BORROWED)
     for key, (_, pages) in printed.items():
         whole = " ".join(pages).lower()
         found = [w for w in banned if w in whole]

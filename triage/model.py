@@ -10,7 +10,6 @@ from __future__ import annotations
 import json
 import math
 import uuid
-from datetime import datetime
 from typing import Annotated, Any, Literal
 
 from pydantic import (
@@ -413,8 +412,3 @@ def json_schema() -> dict[str, Any]:
     schema["$id"] = "urn:triage:triage-survey/1"
     schema["title"] = "triage-survey/1"
     return schema
-
-
-def inspection_time(survey: Survey) -> datetime:
-    """The inspection time (timezone-aware)."""
-    return survey.inspection.at

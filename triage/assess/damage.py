@@ -70,11 +70,6 @@ class MemberClass:
     crack_sd: float | None
     sd_defaulted: bool
 
-    @property
-    def uncertain(self) -> bool:
-        """More than one class is possible under the crack's uncertainty."""
-        return int(np.count_nonzero(self.probs > EPS)) > 1
-
 
 @dataclass(frozen=True)
 class ClassTable:
@@ -140,11 +135,6 @@ def member_classes(members: Sequence[MemberGroup], std: Standards,
     return ClassTable(items, point, probs)
 
 
-def member_class(m: MemberGroup, std: Standards, a: Assumptions) -> MemberClass:
-    """The class of one group (see `member_classes`)."""
-    return member_classes([m], std, a).items[0]
-
-
 def eta_table(m: MemberGroup, std: Standards) -> np.ndarray | None:
     """Eta for class index 0..5 of a column or wall; None for kinds R does not count."""
     key = (id(std), m.kind, m.ductility)
@@ -193,20 +183,6 @@ class CapacityTerms:
     def total(self) -> float:
         """The summed weight of the counted groups."""
         return float(self.weights.sum())
-
-
-def capacity_terms(storey: Storey, d: str, std: Standards) -> CapacityTerms | None:
-    """The groups counted toward R in direction `d`, or None when none count."""
-    idx, w, e = [], [], []
-    for gi, m in enumerate(storey.members):
-        table = eta_table(m, std)
-        if table is not None and counts_in(m, d):
-            idx.append(gi)
-            w.append(m.count * m.weight)
-            e.append(table)
-    if not idx:
-        return None
-    return CapacityTerms(tuple(idx), np.array(w), np.array(e))
 
 
 def capacity_terms_all(storey: Storey, etas: Sequence[np.ndarray | None],

@@ -10,7 +10,7 @@ import math
 from dataclasses import dataclass
 
 from triage.model import Reading, Survey
-from triage.standards import LEVELS, Assumptions, Standards
+from triage.standards import Assumptions, Standards
 
 from .result import Figures
 
@@ -72,11 +72,6 @@ def level_index(drift: float, f: Figures) -> int:
     if drift <= f.CP:
         return 2
     return 3
-
-
-def level_name(i: int) -> str:
-    """The level's name from its index."""
-    return LEVELS[i]
 
 
 def storey_readings(survey: Survey, a: Assumptions) -> list[ReadingValue]:

@@ -34,7 +34,7 @@ from .result import (
     StoreyResult,
 )
 from .stats import sig6, sig6_opt
-from .uncertainty import MemberModel, drift_cdfs, member_cdf
+from .uncertainty import SAMPLES, MemberModel, drift_cdfs, member_cdf
 
 _MEMBERS = TypeAdapter(tuple[MemberResult, ...])
 LEVEL_TIER = (0, 1, 2, 2)  # IO occupy, LS hold, CP and beyond-CP evacuate
@@ -337,7 +337,7 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
     borderline = probs[TIERS[tier]] < 0.5
     if any_sampled:
         notes.append("tier probabilities: members near a class bound were sampled "
-                     f"({40_000} draws, seed {seed})")
+                     f"({SAMPLES} draws, seed {seed})")
 
     measure_next = _measure_next(survey, work, by_sd, figs)
     for line in survey_warnings(survey):

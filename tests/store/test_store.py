@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import pytest
 
 from tests.store.conftest import fixed_clock, sample, sample_dict
@@ -115,3 +117,21 @@ def test_open_without_create_refuses_a_missing_file(tmp_path):
     with pytest.raises(StoreError, match="no database there"):
         Store.open(tmp_path / "nope.db", create=False)
     assert not (tmp_path / "nope.db").exists()
+
+
+def test_the_default_database_is_kept_in_the_users_data_folder(tmp_path, monkeypatch, cli):
+    import platformdirs
+
+    from triage.resources import samples_dir
+    from triage.store import default_db_path
+
+    monkeypatch.delenv("TRIAGE_HOME", raising=False)
+    assert default_db_path() == Path(
+        platformdirs.user_data_dir("triage", appauthor=False)) / "triage.db"
+    # $TRIAGE_HOME moves it, with the keys (one folder for all of an inspector's data).
+    monkeypatch.setenv("TRIAGE_HOME", str(tmp_path / "home"))
+    assert default_db_path() == tmp_path / "home" / "triage.db"
+    code, out, _ = cli("import", str(samples_dir() / "school_saltmarsh_road.json"))
+    assert code == 0, out
+    with Store.open(tmp_path / "home" / "triage.db", create=False) as st:
+        assert len(st.list_surveys()) == 1

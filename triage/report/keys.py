@@ -25,6 +25,8 @@ from cryptography.hazmat.primitives.asymmetric.ed25519 import (
     Ed25519PublicKey,
 )
 
+from triage.paths import data_home
+
 PUBLIC_FORMAT = "triage-public-key/1"
 TRUST_FILE = "trusted_keys.json"
 _FP = re.compile(r"^[0-9a-f]{32}$")
@@ -32,12 +34,7 @@ _FP = re.compile(r"^[0-9a-f]{32}$")
 
 def home() -> Path:
     """The folder of the user's triage data: `$TRIAGE_HOME`, else the platform's data dir."""
-    env = os.environ.get("TRIAGE_HOME")
-    if env:
-        return Path(env)
-    import platformdirs
-
-    return Path(platformdirs.user_data_dir("triage", appauthor=False))
+    return data_home()
 
 
 def fingerprint(public_raw: bytes) -> str:

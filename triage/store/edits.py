@@ -19,6 +19,7 @@ import functools
 import json
 import math
 import re
+from collections.abc import Callable
 from typing import Any, NamedTuple
 
 from pydantic import BaseModel, ValidationError
@@ -207,14 +208,20 @@ def _lines(err: ValidationError, where: str) -> str:
     return out[0] + more
 
 
-def _validate(model: type[BaseModel], data: Any, where: str) -> dict[str, Any]:
+def _validate(model: type[BaseModel], data: Any, where: str | Callable[[], str]) -> dict[str, Any]:
+    """`model.model_validate(data).model_dump(mode="json", exclude_none=True)`, or refuse.
+
+    `where` (the item's path, or a function giving it) is only formatted for a refusal.
+    """
     if not isinstance(data, dict):
-        raise EditRefused(f"{where}: must be a JSON object")
+        raise EditRefused(f"{where if isinstance(where, str) else where()}: must be a JSON object")
     try:
-        obj = model.model_validate(data)
+        obj = model.__pydantic_validator__.validate_python(data)
     except ValidationError as err:
-        raise EditRefused(_lines(err, where)) from None
-    return obj.model_dump(mode="json", exclude_none=True)
+        raise EditRefused(_lines(err, where if isinstance(where, str) else where())) from None
+    out: dict[str, Any] = model.__pydantic_serializer__.to_python(obj, mode="json",
+                                                                 exclude_none=True)
+    return out
 
 
 def _unit(tokens: list[Token], op: str) -> list[Token] | None:
@@ -351,7 +358,7 @@ def apply_field(doc: dict[str, Any], path: str, value: Any) -> Applied | None:
         item.pop(field, None)
     else:
         item[field] = value
-    norm = _validate(model, item, f"storeys[{t[1]}].{kind}[{t[3]}]")
+    norm = _validate(model, item, lambda: f"storeys[{t[1]}].{kind}[{t[3]}]")
     new_items = list(items)
     new_items[t[3]] = norm
     new_st = dict(st)
@@ -443,10 +450,20 @@ class CanonicalText:
     def _storey(self, st: Any) -> str:
         if not isinstance(st, dict):
             return _encode(st)
+        memo = self._memo
         parts = []
         for key in sorted(st):
             value = st[key]
-            encoded = self._items(value) if type(value) is list else scalar_json(value)
+            if type(value) is list:
+                # A list no edit replaced (the members, when a reading changed) is kept whole.
+                hit = memo.get(id(value))
+                if hit is not None and hit[0] is value:
+                    encoded = hit[1]
+                else:
+                    encoded = self._items(value)
+                    memo[id(value)] = (value, encoded)
+            else:
+                encoded = scalar_json(value)
             parts.append(_string(key) + ":" + encoded)
         return "{" + ",".join(parts) + "}"
 
@@ -507,7 +524,9 @@ class CanonicalText:
         for st in doc.get("storeys") or ():
             live.append(st)
             if isinstance(st, dict):
-                for key in ("readings", "members"):
-                    live.extend(st.get(key) or ())
+                for value in st.values():
+                    if type(value) is list:
+                        live.append(value)
+                        live.extend(value)
         keep = {id(x) for x in live}
         self._memo = {k: v for k, v in self._memo.items() if k in keep}

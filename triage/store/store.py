@@ -10,7 +10,9 @@ import functools
 import getpass
 import hashlib
 import json
+import random
 import sqlite3
+import time
 import uuid
 from collections.abc import Callable
 from dataclasses import dataclass
@@ -64,15 +66,77 @@ def import_uid(survey_id: str, doc_text: str) -> str:
     return str(uuid.uuid5(ID_NAMESPACE, f"stored:{survey_id}:{digest}"))
 
 
-_PIECES = 400   # storeys joined by SQLite (a deeper `||` chain would near its limits)
+_RUNS = 200   # storey pieces joined by SQLite at most (a deeper `||` chain nears its limits)
 
 
 @functools.lru_cache(maxsize=64)
-def _update_doc_sql(storeys: int) -> str:
-    """UPDATE of the survey JSON given as head, each storey and tail, joined by SQLite."""
-    joined = " || ',' || ".join("?" * storeys) if storeys else "''"
-    return (f"UPDATE surveys SET doc = ? || {joined} || ?, revision = ?, updated_at = ? "
-            "WHERE id = ? AND revision = ?")
+def _update_doc_sql(runs: int) -> str:
+    """UPDATE of the survey JSON given as head, `runs` runs of storeys and tail."""
+    middle = " || ',' || ".join("?" * runs)
+    return (f"UPDATE surveys SET doc = ? || {middle + ' || ' if runs else ''}?, revision = ?, "
+            "updated_at = ? WHERE id = ? AND revision = ?")
+
+
+def _doc_pieces(head: str, storeys: list[str], tail: str) -> list[str]:
+    """The survey JSON in pieces for SQLite to join: head, runs of storeys, tail.
+
+    Python keeps a string's UTF-8 with it once made, and needs none for an ASCII string. The
+    head (the building's name and address, often not ASCII) and every storey that is not ASCII
+    go as they are, so the UTF-8 of those no edit touched is not made again; ASCII storeys next
+    to each other are joined here, so SQLite joins few pieces. Joined with commas between the
+    runs, the pieces are the text.
+    """
+    pieces = [head]
+    run: list[str] = []
+    for text in storeys:
+        if text.isascii():
+            run.append(text)
+            continue
+        if run:
+            pieces.append(",".join(run))
+            run = []
+        pieces.append(text)
+    if run:
+        pieces.append(",".join(run))
+    if len(pieces) > _RUNS + 1:
+        pieces = [head, ",".join(storeys)]
+    pieces.append(tail)
+    return pieces
+
+
+def new_uid() -> str:
+    """A random (version 4) UUID as text, for a change's id: `str(uuid.uuid4())`, cheaper.
+
+    The bits come from the `random` module's generator, which is seeded from the system's
+    entropy at start and again in every forked child; a change id needs to be unique, not
+    unguessable, and this saves a system call on every saved keystroke.
+    """
+    n = (random.getrandbits(128) & _UID_KEEP) | _UID_SET
+    h = f"{n:032x}"
+    return f"{h[:8]}-{h[8:12]}-{h[12:16]}-{h[16:20]}-{h[20:]}"
+
+
+_UID_KEEP = ~((0xF000 << 64) | (0xC000 << 48)) & ((1 << 128) - 1)   # version and variant bits
+_UID_SET = (4 << 76) | (0x8000 << 48)                                 # version 4, RFC 4122
+
+
+class _UtcStamp:
+    """`datetime.now(UTC).isoformat(timespec="milliseconds")`, the date part kept per second."""
+
+    def __init__(self) -> None:
+        self._second = -1
+        self._prefix = ""
+
+    def __call__(self) -> str:
+        ms = time.time_ns() // 1_000_000
+        second, frac = divmod(ms, 1000)
+        if second != self._second:
+            self._prefix = time.strftime("%Y-%m-%dT%H:%M:%S", time.gmtime(second))
+            self._second = second
+        return f"{self._prefix}.{frac:03d}+00:00"
+
+
+_utc_stamp = _UtcStamp()
 
 
 def list_columns(doc: dict[str, Any]) -> dict[str, Any]:
@@ -87,7 +151,7 @@ def list_columns(doc: dict[str, Any]) -> dict[str, Any]:
             "inspector": insp["inspector"]["name"], "at": at, "at_utc": at_utc}
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class Change:
     """One entry of a survey's change log."""
 
@@ -253,6 +317,8 @@ class Store:
         return immediate(self.conn, self.path)
 
     def _stamp(self) -> str:
+        if self.clock is _now_utc:
+            return _utc_stamp()
         return self.clock().astimezone(UTC).isoformat(timespec="milliseconds")
 
     # --- surveys in ----------------------------------------------------------------------
@@ -389,17 +455,13 @@ class Store:
                 "WHERE id = :id AND revision = :was",
                 {**list_columns(applied.doc), "doc": head + ",".join(storeys) + tail,
                  "rev": new_rev, "now": now, "id": sid, "was": rev})
-        elif len(storeys) <= _PIECES:
-            # SQLite joins the pieces: the UTF-8 of the storeys no edit touched is not redone.
-            cur = c.execute(_update_doc_sql(len(storeys)),
-                            (head, *storeys, tail, new_rev, now, sid, rev))
         else:
-            cur = c.execute("UPDATE surveys SET doc = ?, revision = ?, updated_at = ? "
-                            "WHERE id = ? AND revision = ?",
-                            (head + ",".join(storeys) + tail, new_rev, now, sid, rev))
+            pieces = _doc_pieces(head, storeys, tail)
+            cur = c.execute(_update_doc_sql(len(pieces) - 2),
+                            (*pieces, new_rev, now, sid, rev))
         if cur.rowcount != 1:
             return None
-        uid = str(uuid.uuid4())
+        uid = new_uid()
         who = who or self.who
         cur = c.execute(
             "INSERT INTO changes (uid, survey_id, revision, op, path, old, new, at, who, undoes) "
@@ -496,7 +558,7 @@ class Store:
         c.execute(
             "INSERT INTO changes (uid, survey_id, revision, op, path, old, new, at, who, undoes) "
             "VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
-            (str(uuid.uuid4()), sid, rev, op, path, _dump(old), _dump(new), self._stamp(),
+            (new_uid(), sid, rev, op, path, _dump(old), _dump(new), self._stamp(),
              who or self.who, undoes))
 
     def hide_survey(self, survey_id: str | uuid.UUID, who: str | None = None) -> None:

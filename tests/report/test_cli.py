@@ -133,3 +133,28 @@ def test_report_from_the_database(capsys, tmp_path: Path, survey_file: Path):
     code, _, err = run(capsys, "--db", str(db), "report", "6f1c0c3e-0000-5d4e-9a61-7d2f0b8e4c11",
                        "-o", str(tmp_path / "none.pdf"))
     assert code == 1 and len(err.splitlines()) == 1
+
+
+def test_a_report_of_a_stored_survey_finds_its_photos_beside_the_imported_file(
+        tmp_path: Path, capsys):
+    from PIL import Image
+    from pypdf import PdfReader
+
+    (tmp_path / "img").mkdir()
+    Image.new("RGB", (800, 600), (120, 130, 140)).save(tmp_path / "img" / "c3.jpg")
+    d = clinic_dict()
+    d["storeys"][1]["members"][1]["photos"] = [{"path": "img/c3.jpg", "caption": "C3 face"}]
+    d["id"] = "0c4e9a61-5b2d-4f8e-a7c3-9d1b6e2f4a80"
+    src = tmp_path / "clinic.json"
+    src.write_text(json.dumps(d, ensure_ascii=False), encoding="utf-8")
+    db = str(tmp_path / "field.db")
+    assert run(capsys, "--db", db, "import", str(src))[0] == 0
+    out = tmp_path / "from-db.pdf"
+    code, _, err = run(capsys, "--db", db, "report", d["id"], "-o", str(out))
+    assert code == 0, err
+    assert len([i for p in PdfReader(out).pages for i in p.images]) == 1
+    # Once the imported file is gone the photo is listed as not found; the report is still made.
+    src.unlink()
+    code, _, err = run(capsys, "--db", db, "report", d["id"], "-o", str(out))
+    assert code == 0, err
+    assert not [i for p in PdfReader(out).pages for i in p.images]

@@ -3,7 +3,11 @@
 from __future__ import annotations
 
 import hashlib
+import multiprocessing
+import os
+import shutil
 import sqlite3
+import tempfile
 from pathlib import Path
 
 import pytest
@@ -119,3 +123,102 @@ def test_a_missing_folder_gives_a_clear_message(tmp_path):
     blocker.write_text("x")
     with pytest.raises(StoreError, match="cannot create the folder"):
         Store.open(blocker / "sub" / "f.db")
+
+
+def _as_a_user_who_cannot_write(work, *args):
+    """Run `work(*args)` where permissions hold: in a child as 'nobody' when we are root.
+
+    Root writes through any mode bits, and CI runs as root; the child gives up root first.
+    Returns what `work` returned (over a pipe).
+    """
+    ctx = multiprocessing.get_context("fork")
+    mine, theirs = ctx.Pipe()
+
+    def child() -> None:
+        if os.geteuid() == 0:
+            os.setgid(65534)
+            os.setuid(65534)
+        theirs.send(work(*args))
+
+    proc = ctx.Process(target=child)
+    proc.start()
+    got = mine.recv()
+    proc.join()
+    assert proc.exitcode == 0
+    return got
+
+
+def _open_and_edit(path: str, sid: str) -> list[str]:
+    said = []
+    try:
+        st = Store.open(Path(path))
+    except StoreError as err:
+        return [f"open: {err}"]
+    try:
+        st.set_value(sid, "storeys[0].notes", "written in a read-only place")
+        said.append("edit: saved")
+    except StoreError as err:
+        said.append(f"edit: {err}")
+    st.close()
+    return said
+
+
+def _cli(*argv: str) -> tuple[int, str]:
+    import contextlib
+    import io
+
+    from triage.cli import main
+
+    err = io.StringIO()
+    with contextlib.redirect_stderr(err), contextlib.redirect_stdout(io.StringIO()):
+        code = main(list(argv))
+    return code, err.getvalue()
+
+
+@pytest.fixture
+def shared_dir():
+    """A folder outside pytest's own (which only its owner may enter), removed afterwards."""
+    d = Path(tempfile.mkdtemp(prefix="triage-ro-"))
+    d.chmod(0o777)
+    yield d
+    d.chmod(0o777)
+    shutil.rmtree(d)
+
+
+def test_a_read_only_folder_refuses_in_one_line_and_changes_nothing(shared_dir):
+    p = _real_db(shared_dir / "field.db")
+    with Store.open(p) as st:
+        sid = st.list_surveys()[0].id
+    p.chmod(0o666)
+    before = _digest(p)
+    survey_file = write_json(shared_dir / "new.json", sample_dict("Brand New Flats"))
+    survey_file.chmod(0o644)
+    shared_dir.chmod(0o555)
+    said = _as_a_user_who_cannot_write(_open_and_edit, str(p), sid)
+    assert said == [f"open: {p}: the database or its folder is read-only; nothing was "
+                    "changed; use a writable folder (triage --db PATH)"]
+    code, err = _as_a_user_who_cannot_write(_cli, "--db", str(p), "list")
+    assert code == 1 and err.count("\n") == 1 and "read-only" in err and str(p) in err
+    new = shared_dir / "new.db"
+    code, err = _as_a_user_who_cannot_write(_cli, "--db", str(new), "import", str(survey_file))
+    assert code == 1 and err.count("\n") == 1 and "cannot open or create" in err, err
+    assert not new.exists()
+    said = _as_a_user_who_cannot_write(_open_and_edit, str(new), sid)
+    assert said == [f"open: {new}: cannot open or create the database there (missing or "
+                    "read-only folder?); use triage --db PATH with a writable folder"]
+    assert _digest(p) == before and sorted(x.name for x in shared_dir.iterdir()) == ["field.db", "new.json"]
+
+
+def test_a_read_only_file_is_read_but_an_edit_is_refused_and_nothing_changes(shared_dir):
+    p = _real_db(shared_dir / "field.db")
+    with Store.open(p) as st:
+        sid = st.list_surveys()[0].id
+        before = st.survey_json(sid)
+    p.chmod(0o444)
+    said = _as_a_user_who_cannot_write(_open_and_edit, str(p), sid)
+    assert said == [f"edit: {p}: the database or its folder is read-only; nothing was "
+                    "changed; use a writable folder (triage --db PATH)"]
+    p.chmod(0o644)
+    with Store.open(p) as st:
+        assert st.survey_json(sid) == before
+        assert st.integrity() == "ok"

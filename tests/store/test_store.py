@@ -135,3 +135,22 @@ def test_the_default_database_is_kept_in_the_users_data_folder(tmp_path, monkeyp
     assert code == 0, out
     with Store.open(tmp_path / "home" / "triage.db", create=False) as st:
         assert len(st.list_surveys()) == 1
+
+
+def test_photo_paths_are_relative_to_the_file_a_survey_was_imported_from(store, tmp_path):
+    s = sample()
+    src = tmp_path / "trip" / "harbour.json"
+    src.parent.mkdir()
+    src.write_text("{}", encoding="utf-8")
+    store.add_survey(s, source=str(src))
+    assert store.photo_dir(s.survey_id) == src.parent
+    src.unlink()   # the file moved away: its folder no longer says where the photos are
+    assert store.photo_dir(s.survey_id) is None
+    made_here = sample("Made In The App")
+    store.add_survey(made_here)
+    assert store.photo_dir(made_here.survey_id) is None
+    merged = sample("Merged From A Laptop")
+    laptop = tmp_path / "laptop.db"
+    laptop.write_bytes(b"")
+    store.add_survey(merged, source=str(laptop))
+    assert store.photo_dir(merged.survey_id) is None

@@ -167,6 +167,7 @@ def run_report(args: argparse.Namespace) -> int:
         photo_dir = src.resolve().parent
     else:
         store, survey, revision = _from_store(args)
+        photo_dir = store.photo_dir(survey.survey_id)
     try:
         assessment = assess(survey)
         comparison = _since_previous(survey, assessment, store, args)

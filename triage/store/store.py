@@ -391,6 +391,22 @@ class Store:
         """The survey's current revision (1 when stored, one more with every change)."""
         return self._doc_row(str(survey_id))[0]
 
+    def photo_dir(self, survey_id: str | uuid.UUID) -> Path | None:
+        """The folder the survey's photo paths are relative to, when it is known.
+
+        Photo paths are relative to the survey file (DESIGN.md); the store keeps no files, so
+        this is the folder of the survey file or report it was imported from, while that file
+        is still there. None for a survey made in the app or merged from another database.
+        """
+        row = self.conn.execute("SELECT source FROM surveys WHERE id = ?",
+                                (str(survey_id),)).fetchone()
+        if row is None or not row[0]:
+            return None
+        src = Path(row[0])
+        if src.suffix.lower() not in (".json", ".pdf") or not src.is_file():
+            return None
+        return src.parent
+
     def has_survey(self, survey_id: str | uuid.UUID) -> bool:
         """Whether the survey is in this database (hidden or not)."""
         return self.conn.execute("SELECT 1 FROM surveys WHERE id = ?",

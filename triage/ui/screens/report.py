@@ -50,8 +50,9 @@ def write_issued(db_path: Path, survey_id: str, out: Path, key_path: str | None,
     key = load_key(Path(key_path).expanduser(), passphrase or None) if key_path else None
     v = compute_verdict(db_path, survey_id)
     out.parent.mkdir(parents=True, exist_ok=True)
-    info = write_report(v.survey, v.assessment, out, key=key, revision=v.revision)
     with worker_store(db_path) as st:
+        info = write_report(v.survey, v.assessment, out, key=key, revision=v.revision,
+                            photo_dir=st.photo_dir(survey_id))
         st.record_report(survey_id, v.revision, str(info.path), info.fingerprint)
     return Issued(Path(info.path), bool(info.signed), info.fingerprint, v.revision)
 

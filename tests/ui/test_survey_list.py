@@ -4,10 +4,11 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import pytest
 from drive import settle, type_in, verdict_text
 
 from triage.store import Store
-from triage.ui.screens.history import HistoryScreen
+from triage.ui.screens.history import HistoryScreen, describe_change
 from triage.ui.screens.survey import SurveyScreen
 from triage.ui.screens.survey_list import SurveyListScreen
 
@@ -88,10 +89,14 @@ async def test_history_lists_changes_and_undoes(db: Path, make_app) -> None:
         assert isinstance(app.screen, HistoryScreen)
         log = app.screen.query_one("#log")
         newest = log.get_row_at(0)
-        assert newest[1] == "storeys[0].height_m" and newest[2] == "3.2" and newest[3] == "4.1"
+        assert newest[1] == "height m (storey #1)" and newest[2] == "3.2" and newest[3] == "4.1"
+        detail = str(app.screen.query_one("#history-detail").render())
+        assert "revision 2" in detail and "height m (storey #1): 3.2 → 4.1" in detail
         await pilot.press("ctrl+z")
         await settle(pilot)
-        assert "undone" in str(app.screen.query_one("#history-status").render())
+        status = str(app.screen.query_one("#history-status").render())
+        assert "undone height m (storey #1)" in status
+        assert log.get_row_at(0)[1] == "undone: height m (storey #1)"
         await pilot.press("escape")
         await settle(pilot)
         assert app.screen.query_one("#s-height").text == "3.2"
@@ -140,3 +145,22 @@ async def test_moving_away_saves_what_was_typed(db: Path, make_app) -> None:
         await settle(pilot)
         assert scr.storey.label == "1"
         assert "greater than 0" in scr.query_one("#s-height").status_text
+
+
+@pytest.mark.parametrize(("op", "path", "new", "words"), [
+    ("set", "storeys[1].readings[0].offset_mm", 7.5, "offset mm (storey #2, reading #1)"),
+    ("add", "storeys[0].readings[2]", {"dir": "x"}, "added reading #3 (storey #1)"),
+    ("remove", "storeys[2].members[1]", None, "removed member group #2 (storey #3)"),
+    ("undo", "storeys[0].readings[2]", None, "undone: removed reading #3 (storey #1)"),
+    ("undo", "storeys[2].members[1]", {"kind": "wall"},
+     "undone: put back member group #2 (storey #3)"),
+    ("set", "building.location.lat", -41.2, "lat (building, location)"),
+    ("set", "hazards[0]", {"kind": "collapse"}, "replaced hazard #1"),
+    ("add", "storeys[0].members[1].photos[0]", {"path": "a.jpg"},
+     "added photo #1 (storey #1, member group #2)"),
+    ("hide", "hidden", True, "survey hidden"),
+    ("undo", "hidden", False, "survey shown again"),
+    ("import", "", "{}", "survey imported"),
+])
+def test_changes_are_told_in_words_field_first(op, path, new, words) -> None:
+    assert describe_change(op, path, new) == words

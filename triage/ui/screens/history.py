@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import json
+import re
+from datetime import datetime
 from typing import Any, ClassVar
 
 from textual.app import ComposeResult
@@ -20,6 +22,59 @@ def _short(v: Any, n: int = 18) -> str:
     return text if len(text) <= n else text[: n - 1] + "…"
 
 
+_PART = re.compile(r"([A-Za-z_][A-Za-z0-9_]*)((?:\[\d+\])*)")
+_NOUN = {"storeys": "storey", "readings": "reading", "members": "member group",
+         "hazards": "hazard", "photos": "photo", "signs": "sign"}
+_OP = {"import": "survey imported", "create": "survey created", "hide": "survey hidden",
+       "unhide": "survey shown again"}
+
+
+def _places(path: str) -> tuple[list[str], str | None]:
+    """The items a path goes through, in words, and the field it ends on (None: an item)."""
+    places: list[str] = []
+    parts = path.split(".")
+    for k, part in enumerate(parts):
+        m = _PART.fullmatch(part)
+        if m is None:
+            return [path], None
+        name, index = m.group(1), [int(i) for i in re.findall(r"\d+", m.group(2))]
+        if not index:
+            if k == len(parts) - 1:
+                return places, name.replace("_", " ")
+            places.append(name)
+            continue
+        places.append(f"{_NOUN.get(name, name)} #{index[0] + 1}")
+        places.extend(f"#{i + 1}" for i in index[1:])
+    return places, None
+
+
+def describe_change(op: str, path: str, new: Any = None) -> str:
+    """A change in words, the field first: `offset mm (storey #2, reading #1)`.
+
+    Positions count from 1 and are those of the survey as it was when the change was made;
+    `new` tells whether an undo took an item out (None) or put it back.
+    """
+    if op in _OP or path in ("", "hidden"):
+        return _OP.get(op, "survey shown again" if op == "undo" else op)
+    places, field = _places(path)
+    if field is None:
+        item, within = (places[-1], places[:-1]) if places else (path, [])
+        verb = {"add": "added", "remove": "removed", "set": "replaced"}.get(
+            op, "removed" if new is None else "put back")
+        text = f"{verb} {item}" + (f" ({', '.join(within)})" if within else "")
+    else:
+        text = field + (f" ({', '.join(places)})" if places else "")
+    return f"undone: {text}" if op == "undo" else text
+
+
+def _local(at: str, fmt: str) -> str:
+    """A stored UTC time stamp as this laptop's local time."""
+    try:
+        return datetime.fromisoformat(at).astimezone().strftime(fmt)
+    except ValueError:
+        return at
+
+
 class HistoryScreen(Screen[bool]):
     """What changed, old and new, when and by whom; ctrl+z undoes the last change."""
 
@@ -34,18 +89,20 @@ class HistoryScreen(Screen[bool]):
         super().__init__()
         self.survey_id = survey_id
         self.changed = False
+        self.entries: dict[str, Any] = {}
 
     def compose(self) -> ComposeResult:
         """Title, the log, footer."""
         yield Static("History of this survey (newest first)", classes="title")
         yield DataTable(id="log", cursor_type="row", zebra_stripes=True)
+        yield Static("", id="history-detail")
         yield Static("", id="history-status", classes="hint")
         yield Footer(compact=True)
 
     def on_mount(self) -> None:
         """Fill the log."""
         t = self.query_one("#log", DataTable)
-        for name, w in (("when", 16), ("what", 24), ("old", 14), ("new", 14), ("who", 8)):
+        for name, w in (("when", 12), ("what", 28), ("old", 10), ("new", 10), ("who", 8)):
             t.add_column(name, width=w)
         self.fill()
 
@@ -54,11 +111,25 @@ class HistoryScreen(Screen[bool]):
         app: Any = self.app
         t = self.query_one("#log", DataTable)
         t.clear()
-        for c in app.data.changes(self.survey_id):
-            what = f"{c.op} {c.path}" if c.op != "set" else c.path
-            t.add_row(str(c.at)[:16].replace("T", " "), _short(what, 24), _short(c.old, 14),
-                      _short(c.new, 14), _short(c.who, 8), key=str(c.seq))
+        self.entries = {str(c.seq): c for c in app.data.changes(self.survey_id)}
+        for key, c in self.entries.items():
+            what = describe_change(c.op, c.path, c.new)
+            t.add_row(_local(str(c.at), "%d %b %H:%M"), _short(what, 28), _short(c.old, 10),
+                      _short(c.new, 10), _short(c.who, 8), key=key)
         t.focus()
+        if not self.entries:
+            self.query_one("#history-detail", Static).update("")
+
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        """The highlighted change in full below the table."""
+        c = self.entries.get(str(event.row_key.value))
+        if c is None:
+            return
+        what = describe_change(c.op, c.path, c.new)
+        values = "" if c.op in _OP else f": {_short(c.old, 60)} → {_short(c.new, 60)}"
+        self.query_one("#history-detail", Static).update(
+            f"{_local(str(c.at), '%Y-%m-%d %H:%M:%S %Z')}, {c.who}, revision {c.revision}\n"
+            f"{what}{values}")
 
     def action_undo(self) -> None:
         """Undo the last change not yet undone."""
@@ -73,7 +144,7 @@ class HistoryScreen(Screen[bool]):
             status.update("nothing to undo")
             return
         self.changed = True
-        status.update(f"✓ saved: undone {change.op} {change.path}")
+        status.update(f"✓ saved: undone {describe_change(change.op, change.path)}")
         self.fill()
 
     def action_close(self) -> None:

@@ -121,19 +121,23 @@ _UID_SET = (4 << 76) | (0x8000 << 48)                                 # version 
 
 
 class _UtcStamp:
-    """`datetime.now(UTC).isoformat(timespec="milliseconds")`, the date part kept per second."""
+    """`datetime.now(UTC).isoformat(timespec="milliseconds")`, the date part kept per second.
+
+    The second and its text are kept as one tuple, so threads sharing a stamp never pair one
+    second's text with another's.
+    """
 
     def __init__(self) -> None:
-        self._second = -1
-        self._prefix = ""
+        self._kept: tuple[int, str] = (-1, "")
 
     def __call__(self) -> str:
         ms = time.time_ns() // 1_000_000
         second, frac = divmod(ms, 1000)
-        if second != self._second:
-            self._prefix = time.strftime("%Y-%m-%dT%H:%M:%S", time.gmtime(second))
-            self._second = second
-        return f"{self._prefix}.{frac:03d}+00:00"
+        kept = self._kept
+        if kept[0] != second:
+            kept = (second, time.strftime("%Y-%m-%dT%H:%M:%S", time.gmtime(second)))
+            self._kept = kept
+        return f"{kept[1]}.{frac:03d}+00:00"
 
 
 _utc_stamp = _UtcStamp()

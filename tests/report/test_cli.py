@@ -150,8 +150,10 @@ def test_a_report_of_a_stored_survey_finds_its_photos_beside_the_imported_file(
     db = str(tmp_path / "field.db")
     assert run(capsys, "--db", db, "import", str(src))[0] == 0
     out = tmp_path / "from-db.pdf"
-    code, _, err = run(capsys, "--db", db, "report", d["id"], "-o", str(out))
+    # The start of the id, as `triage list` shows it, names the survey as well.
+    code, said, err = run(capsys, "--db", db, "report", d["id"][:8], "-o", str(out))
     assert code == 0, err
+    assert "store revision 1" in said
     assert len([i for p in PdfReader(out).pages for i in p.images]) == 1
     # Once the imported file is gone the photo is listed as not found; the report is still made.
     src.unlink()

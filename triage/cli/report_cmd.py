@@ -8,8 +8,8 @@ from __future__ import annotations
 
 import argparse
 import os
+import re
 import sys
-import uuid
 from pathlib import Path
 from typing import Any
 
@@ -132,12 +132,9 @@ def _load_signing_key(path: str) -> Any:
         raise UserError(str(err)) from None
 
 
-def _is_uuid(text: str) -> bool:
-    try:
-        uuid.UUID(text)
-    except ValueError:
-        return False
-    return True
+def _is_id(text: str) -> bool:
+    """A survey id, or the start of one (as `triage list` shows them), rather than a path."""
+    return re.fullmatch(r"[0-9a-fA-F][0-9a-fA-F-]{3,35}", text) is not None
 
 
 def run_report(args: argparse.Namespace) -> int:
@@ -158,8 +155,8 @@ def run_report(args: argparse.Namespace) -> int:
     store: Any = None
     revision = None
     photo_dir = None
-    if not src.exists() and not _is_uuid(args.source):
-        raise UserError(f"{args.source}: no such file (nor a survey id, which is a UUID)")
+    if not src.exists() and not _is_id(args.source):
+        raise UserError(f"{args.source}: no such file (nor a survey id or the start of one)")
     if src.exists():
         from .common import read_survey_file
 
@@ -241,13 +238,18 @@ def _from_store(args: argparse.Namespace) -> tuple[Any, Any, int]:
         store = Store.open(db, create=False)
     except StoreError as err:
         raise UserError(str(err)) from None
+    from .store_cmd import resolve_id
+
     try:
-        survey = store.load_survey(args.source)
-        revision = store.revision(args.source)
-    except (StoreError, KeyError) as err:
+        sid = resolve_id(store, args.source)
+        survey = store.load_survey(sid)
+        revision = store.revision(sid)
+    except UserError:
         store.close()
-        msg = str(err) if isinstance(err, StoreError) else f"no survey {args.source}"
-        raise UserError(f"{args.source}: {msg} in {db}") from None
+        raise
+    except StoreError as err:
+        store.close()
+        raise UserError(f"{args.source}: {err}") from None
     return store, survey, revision
 
 

@@ -213,12 +213,15 @@ def _validate(model: type[BaseModel], data: Any, where: str | Callable[[], str])
 
     `where` (the item's path, or a function giving it) is only formatted for a refusal.
     """
+    def place() -> str:
+        return where if isinstance(where, str) else where()
+
     if not isinstance(data, dict):
-        raise EditRefused(f"{where if isinstance(where, str) else where()}: must be a JSON object")
+        raise EditRefused(f"{place()}: must be a JSON object")
     try:
         obj = model.__pydantic_validator__.validate_python(data)
     except ValidationError as err:
-        raise EditRefused(_lines(err, where if isinstance(where, str) else where())) from None
+        raise EditRefused(_lines(err, place())) from None
     out: dict[str, Any] = model.__pydantic_serializer__.to_python(obj, mode="json",
                                                                  exclude_none=True)
     return out

@@ -104,6 +104,10 @@ def _doc_pieces(head: str, storeys: list[str], tail: str) -> list[str]:
     return pieces
 
 
+_UID_KEEP = ~((0xF000 << 64) | (0xC000 << 48)) & ((1 << 128) - 1)   # version and variant bits
+_UID_SET = (4 << 76) | (0x8000 << 48)                                 # version 4, RFC 4122
+
+
 def new_uid() -> str:
     """A random (version 4) UUID as text, for a change's id: `str(uuid.uuid4())`, cheaper.
 
@@ -114,10 +118,6 @@ def new_uid() -> str:
     n = (random.getrandbits(128) & _UID_KEEP) | _UID_SET
     h = f"{n:032x}"
     return f"{h[:8]}-{h[8:12]}-{h[12:16]}-{h[16:20]}-{h[20:]}"
-
-
-_UID_KEEP = ~((0xF000 << 64) | (0xC000 << 48)) & ((1 << 128) - 1)   # version and variant bits
-_UID_SET = (4 << 76) | (0x8000 << 48)                                 # version 4, RFC 4122
 
 
 class _UtcStamp:

@@ -94,15 +94,15 @@ class SurveyScreen(Screen[None]):
                 yield OptionList(id="storeys")
                 yield Static("PgUp ↑\nPgDn ↓", id="storey-keys")
             with TabbedContent(id="tabs", initial="readings"):
-                with TabPane("storey", id="storey"):
+                with TabPane("storey [dim]f5[/]", id="storey"):
                     yield StoreyPane(id="storey-pane")
-                with TabPane("readings", id="readings"):
+                with TabPane("readings [dim]f6[/]", id="readings"):
                     yield ReadingsPane(id="readings-pane")
-                with TabPane("members", id="members"):
+                with TabPane("members [dim]f7[/]", id="members"):
                     yield MembersPane(id="members-pane")
-                with TabPane("hazards", id="hazards"):
+                with TabPane("hazards [dim]f8[/]", id="hazards"):
                     yield HazardsPane(id="hazards-pane")
-                with TabPane("photos", id="photos"):
+                with TabPane("photos [dim]f9[/]", id="photos"):
                     yield PhotosPane(id="photos-pane")
             with VerticalScroll(id="side"):
                 yield Static("", id="side-verdict")

@@ -229,14 +229,16 @@ class FieldData:
 @contextmanager
 def worker_store(db_path: Path) -> Iterator[Store]:
     """A store opened and closed in the calling (worker) thread."""
-    st = Store.open(Path(db_path), create=False, refresh=False)
+    # The app checked the file when it opened it; a worker's store skips the whole-file read.
+    st = Store.open(Path(db_path), create=False, refresh=False, check=False)
     try:
         yield st
     finally:
         st.close()
 
 
-def _verdict(st: Store, survey_id: str) -> Verdict:
+def verdict_of(st: Store, survey_id: str) -> Verdict:
+    """Assess the stored survey at its current revision and store the assessment."""
     from triage.assess import assess
 
     revision = int(st.revision(survey_id))
@@ -244,12 +246,6 @@ def _verdict(st: Store, survey_id: str) -> Verdict:
     assessment = assess(survey)
     st.save_assessment(survey_id, revision, assessment)
     return Verdict(survey, assessment, revision)
-
-
-def compute_verdict(db_path: Path, survey_id: str) -> Verdict:
-    """Load the survey, assess it and store the assessment (in any thread but the UI's)."""
-    with worker_store(db_path) as st:
-        return _verdict(st, survey_id)
 
 
 class VerdictThread:
@@ -269,7 +265,7 @@ class VerdictThread:
     def _run(self, survey_id: str) -> Verdict:
         if self._store is None:
             self._store = Store.open(self.db_path, create=False, refresh=False)
-        return _verdict(self._store, survey_id)
+        return verdict_of(self._store, survey_id)
 
     def submit(self, survey_id: str) -> Any:
         """Assess a survey in the thread; a concurrent.futures.Future of its `Verdict`."""

@@ -20,7 +20,7 @@ from textual.screen import Screen
 from textual.widgets import Button, Footer, Static
 from textual.worker import Worker, WorkerState
 
-from triage.ui.data import Refused, compute_verdict, rule_of, worker_store
+from triage.ui.data import Refused, rule_of, verdict_of, worker_store
 from triage.ui.messages import CAUTION_SHORT, UNSIGNED, FieldAccepted
 from triage.ui.widgets.field import Field
 
@@ -48,9 +48,9 @@ def write_issued(db_path: Path, survey_id: str, out: Path, key_path: str | None,
     from triage.report.keys import load_key
 
     key = load_key(Path(key_path).expanduser(), passphrase or None) if key_path else None
-    v = compute_verdict(db_path, survey_id)
     out.parent.mkdir(parents=True, exist_ok=True)
     with worker_store(db_path) as st:
+        v = verdict_of(st, survey_id)
         info = write_report(v.survey, v.assessment, out, key=key, revision=v.revision,
                             photo_dir=st.photo_dir(survey_id))
         st.record_report(survey_id, v.revision, str(info.path), info.fingerprint)

@@ -25,16 +25,11 @@ from cryptography.hazmat.primitives.asymmetric.ed25519 import (
     Ed25519PublicKey,
 )
 
-from triage.paths import data_home
+from triage.paths import data_home as home  # $TRIAGE_HOME, else the platform's data dir
 
 PUBLIC_FORMAT = "triage-public-key/1"
 TRUST_FILE = "trusted_keys.json"
 _FP = re.compile(r"^[0-9a-f]{32}$")
-
-
-def home() -> Path:
-    """The folder of the user's triage data: `$TRIAGE_HOME`, else the platform's data dir."""
-    return data_home()
 
 
 def fingerprint(public_raw: bytes) -> str:

@@ -1,7 +1,9 @@
 """The `triage` command: parses the command line, then calls the layers below.
 
-Each command lives in its own module of this package with `add_parser(subparsers)` and
-`run(args) -> int`; heavy libraries are imported inside `run`, so start-up stays quick.
+Each command lives in a module of this package named after it, with `add_parser(subparsers)`;
+every subparser sets `func` to its own run function (`run`, or `run_NAME` where a module
+registers several commands), which `main` calls. Shared helpers are in `common`. Heavy
+libraries are imported inside the run functions, so start-up stays quick.
 Every refusal is one line on standard error naming the file or field and the rule, with the
 exit status of DESIGN.md; never a traceback.
 """
@@ -16,8 +18,8 @@ from collections.abc import Sequence
 from .errors import UserError
 
 # Command modules, in the order `triage --help` lists them.
-MODULES = ("assess_cmd", "store_cmd", "report_cmd", "area_cmd", "gather_cmd", "form_cmd",
-           "ui_cmd")
+MODULES = ("assess", "surveys", "keys", "report", "verify", "compare", "merge", "summary", "form",
+           "screens")
 
 
 class _Parser(argparse.ArgumentParser):
@@ -53,8 +55,8 @@ def main(argv: Sequence[str] | None = None) -> int:
         return int(exc.code or 0)
     if args.command is None:
         args.command = "ui"
-        from . import ui_cmd
-        args.func = ui_cmd.run_default
+        from . import screens
+        args.func = screens.run_default
     try:
         if args.command in ("ui", "demo", "form"):
             _check_forms()

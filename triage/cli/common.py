@@ -1,14 +1,21 @@
-"""Helpers shared by the command modules: reading survey files, one-line refusals."""
+"""Helpers shared by the command modules: reading survey files, opening the database, ids.
+
+Everything here is public and used by more than one command; a command module keeps its own
+helpers private and never imports another command module's.
+"""
 
 from __future__ import annotations
 
+import argparse
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from .errors import UserError
 
 if TYPE_CHECKING:
     from triage.model import Survey
+    from triage.store import Store
+    from triage.store.reader import SurveyReader
 
 
 def read_survey_file(path: str) -> Survey:
@@ -32,3 +39,65 @@ def read_survey_file(path: str) -> Survey:
         return parse_survey_text(text)
     except SurveyError as err:
         raise UserError(f"{path}: {err}") from None
+
+
+def read_report_survey(path: str) -> Survey:
+    """The survey embedded in a triage report PDF; refuse with one line naming the file."""
+    from triage.model import SurveyError, parse_survey_text
+
+    try:
+        from triage.report import read_embedded
+    except (ImportError, AttributeError):
+        raise UserError(f"{path}: this build cannot read surveys from report PDFs; import the "
+                        "survey's JSON file") from None
+    try:
+        got: Any = read_embedded(Path(path))
+    except (ValueError, OSError) as err:
+        msg = str(err) or type(err).__name__
+        raise UserError(msg if msg.startswith(path) else f"{path}: {msg}") from None
+    text = got[0] if isinstance(got, tuple) else got
+    if not text:
+        raise UserError(f"{path}: carries no embedded triage survey (not a triage report)")
+    try:
+        return parse_survey_text(text if isinstance(text, str) else text.decode("utf-8"))
+    except (SurveyError, UnicodeDecodeError) as err:
+        raise UserError(f"{path}: embedded survey: {err}") from None
+
+
+def read_survey(path: str) -> Survey:
+    """A survey from a JSON file, or from a report PDF carrying one (by the `.pdf` suffix)."""
+    if path.lower().endswith(".pdf"):
+        return read_report_survey(path)
+    return read_survey_file(path)
+
+
+def open_store(args: argparse.Namespace, *, create: bool = True,
+               refresh: bool = True) -> Store:
+    """The database of `--db` (default: under the user's data folder), or a one-line refusal."""
+    from triage.store import Store, StoreError
+
+    try:
+        return Store.open(args.db, create=create, refresh=refresh)
+    except StoreError as err:
+        raise UserError(str(err)) from None
+
+
+def open_reader(args: argparse.Namespace, *, refresh: bool = True) -> SurveyReader:
+    """The surveys to read (`--db`, which must exist), for the commands that only read them."""
+    return open_store(args, create=False, refresh=refresh)
+
+
+def resolve_id(reader: SurveyReader, given: str) -> str:
+    """A survey id from the whole id or an unambiguous start of it."""
+    ids = reader.match_ids(given)
+    if len(ids) == 1:
+        return ids[0]
+    if not ids:
+        raise UserError(f"{given}: no survey with this id in {reader.location} "
+                        "(see 'triage list')")
+    raise UserError(f"{given}: {len(ids)} surveys start with this; give more of the id")
+
+
+def yes_no(v: bool | None) -> str:
+    """"yes", "no", or "—" when not known, as the tables print a flag."""
+    return "—" if v is None else ("yes" if v else "no")

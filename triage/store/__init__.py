@@ -40,8 +40,9 @@ one-row-per-building summary), `paths` (the default database).
 from .connect import StoreError, SurveyConflict
 from .edits import EditRefused
 from .paths import default_db_path
+from .rows import Change, SurveyRow
 from .schema import SCHEMA_VERSION
-from .store import Change, Store, SurveyRow
+from .store import Store
 
 __all__ = ["SCHEMA_VERSION", "Change", "EditRefused", "Store", "StoreError", "SurveyConflict",
            "SurveyRow", "default_db_path"]

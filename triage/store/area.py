@@ -8,8 +8,10 @@ its surveys (kept by a merge) are both visible.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
-from .store import Store
+if TYPE_CHECKING:
+    from .store import Store
 
 
 @dataclass(frozen=True)

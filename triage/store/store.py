@@ -15,7 +15,6 @@ import sqlite3
 import time
 import uuid
 from collections.abc import Callable
-from dataclasses import dataclass
 from datetime import UTC, datetime
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
@@ -27,10 +26,13 @@ from triage.model import ID_NAMESPACE, Survey, SurveyError, canonical_json, pars
 from . import edits
 from .connect import StoreError, SurveyConflict, check_file, connect, explain, immediate
 from .paths import default_db_path
+from .rows import ROW_SQL, Change, SurveyRow, row_of
 from .schema import ensure_schema
 
 if TYPE_CHECKING:
     from triage.assess import Assessment
+
+    from .area import BuildingRow
 
 Clock = Callable[[], datetime]
 UNDOABLE = ("set", "add", "remove", "hide")
@@ -155,84 +157,6 @@ def list_columns(doc: dict[str, Any]) -> dict[str, Any]:
             "inspector": insp["inspector"]["name"], "at": at, "at_utc": at_utc}
 
 
-@dataclass(frozen=True, slots=True)
-class Change:
-    """One entry of a survey's change log."""
-
-    seq: int
-    uid: str
-    survey_id: str
-    revision: int
-    op: str
-    path: str
-    old: Any
-    new: Any
-    at: str
-    who: str
-    undoes: str | None
-
-
-@dataclass(frozen=True)
-class SurveyRow:
-    """One survey as the lists show it, read from plain columns (never re-assessed)."""
-
-    id: str
-    building_id: str
-    building: str
-    address: str
-    lat: float | None
-    lon: float | None
-    inspector: str
-    at: str
-    tier: str | None
-    level: str | None
-    governing_storey: str | None
-    governing_dir: str | None
-    governing_basis: str | None
-    provisional: bool | None
-    revision: int
-    assessed_revision: int | None
-    hidden: bool
-    source: str | None
-    conflict_of: str | None
-    conflict: bool
-    reported_revision: int | None
-
-    @property
-    def stale(self) -> bool:
-        """The stored assessment is of an earlier revision (or there is none)."""
-        return self.assessed_revision != self.revision
-
-    @property
-    def edited_since_report(self) -> bool | None:
-        """Edited after its last report; None when no report was issued."""
-        if self.reported_revision is None:
-            return None
-        return self.revision > self.reported_revision
-
-
-_ROW_SQL = """
-SELECT s.id, s.building_id, s.building, s.address, s.lat, s.lon, s.inspector, s.at,
-       s.tier, s.level, s.gov_storey, s.gov_dir, s.gov_basis, s.provisional, s.revision,
-       s.assessed_revision, s.hidden, s.source, s.conflict_of,
-       (EXISTS (SELECT 1 FROM surveys o WHERE o.id = s.conflict_of AND o.hidden = 0)
-        OR EXISTS (SELECT 1 FROM surveys c WHERE c.conflict_of = s.id AND c.hidden = 0))
-         AS conflict,
-       (SELECT max(r.revision) FROM reports r WHERE r.survey_id = s.id) AS reported
-FROM surveys s
-"""
-
-
-def _row(r: tuple[Any, ...]) -> SurveyRow:
-    return SurveyRow(
-        id=r[0], building_id=r[1], building=r[2], address=r[3], lat=r[4], lon=r[5],
-        inspector=r[6], at=r[7], tier=r[8], level=r[9], governing_storey=r[10],
-        governing_dir=r[11], governing_basis=r[12],
-        provisional=None if r[13] is None else bool(r[13]), revision=r[14],
-        assessed_revision=r[15], hidden=bool(r[16]), source=r[17], conflict_of=r[18],
-        conflict=bool(r[19]), reported_revision=r[20])
-
-
 class Store:
     """A survey database. One per thread: an SQLite connection belongs to its thread."""
 
@@ -295,6 +219,11 @@ class Store:
 
     def __exit__(self, *exc: object) -> None:
         self.close()
+
+    @property
+    def location(self) -> str:
+        """The database file, as messages name it."""
+        return str(self.path)
 
     @property
     def db_id(self) -> str:
@@ -416,16 +345,32 @@ class Store:
         return self.conn.execute("SELECT 1 FROM surveys WHERE id = ?",
                                  (str(survey_id),)).fetchone() is not None
 
+    def match_ids(self, given: str) -> list[str]:
+        """`[given]` when it is a stored survey's id, else every id starting with it.
+
+        Hidden surveys count; the start is compared in lower case, as ids are printed.
+        """
+        if self.has_survey(given):
+            return [given]
+        start = given.lower()
+        return [r.id for r in self.list_surveys(include_hidden=True) if r.id.startswith(start)]
+
     def list_surveys(self, include_hidden: bool = False) -> list[SurveyRow]:
         """Every survey, newest inspection first, from plain columns (fast, never assessed)."""
         where = "" if include_hidden else " WHERE s.hidden = 0"
-        cur = self.conn.execute(_ROW_SQL + where + " ORDER BY s.at_utc DESC, s.id")
-        return [_row(r) for r in cur]
+        cur = self.conn.execute(ROW_SQL + where + " ORDER BY s.at_utc DESC, s.id")
+        return [row_of(r) for r in cur]
 
     def survey_row(self, survey_id: str | uuid.UUID) -> SurveyRow | None:
         """The list row of one survey (hidden ones too); None when absent."""
-        r = self.conn.execute(_ROW_SQL + " WHERE s.id = ?", (str(survey_id),)).fetchone()
-        return None if r is None else _row(r)
+        r = self.conn.execute(ROW_SQL + " WHERE s.id = ?", (str(survey_id),)).fetchone()
+        return None if r is None else row_of(r)
+
+    def building_rows(self) -> list[BuildingRow]:
+        """One row per building id: its latest visible survey (see `triage.store.area`)."""
+        from .area import building_rows
+
+        return building_rows(self)
 
     def change_log(self, survey_id: str | uuid.UUID) -> list[Change]:
         """The survey's change log, newest first."""

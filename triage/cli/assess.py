@@ -1,4 +1,4 @@
-"""`triage assess FILE [--format text|json]`."""
+"""`triage assess FILE [--format text|json]` and `triage schema`."""
 
 from __future__ import annotations
 

@@ -7,11 +7,13 @@ import sys
 from pathlib import Path
 from typing import TYPE_CHECKING
 
+from .common import open_reader, read_survey, resolve_id
 from .errors import UserError
 
 if TYPE_CHECKING:
     from triage.assess import Assessment
     from triage.model import Survey
+    from triage.store.reader import SurveyReader
 
 
 def add_parser(sub: argparse._SubParsersAction) -> None:
@@ -33,13 +35,9 @@ def load_either(given: str, args: argparse.Namespace) -> tuple[Survey, Assessmen
     from triage.assess import assess
 
     if Path(given).exists():
-        from .store_cmd import _read
-
-        survey = _read(given)
+        survey = read_survey(given)
         return survey, assess(survey)
-    from .store_cmd import open_store, resolve_id
-
-    st = open_store(args, create=False)
+    st: SurveyReader = open_reader(args)
     try:
         sid = resolve_id(st, given)
         survey = st.load_survey(sid)

@@ -1,4 +1,4 @@
-"""Commands: merge (gather inspectors' databases into one) and summary (the area picture)."""
+"""`triage summary [--format text|csv|geojson]`: the area picture, one row per building."""
 
 from __future__ import annotations
 
@@ -7,69 +7,26 @@ import csv
 import io
 import json
 import sys
-from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-from .errors import UserError
+from .common import open_reader, yes_no
 
 if TYPE_CHECKING:
     from triage.store.area import BuildingRow
+    from triage.store.reader import SurveyReader
 
 
 def add_parser(sub: argparse._SubParsersAction) -> None:
-    """Register `merge` and `summary`."""
-    p = sub.add_parser("merge", help="gather several inspectors' databases into one")
-    p.add_argument("sources", nargs="+", metavar="DB", help="databases to read (never changed)")
-    p.add_argument("--into", required=True, metavar="DB", help="the database to gather into")
-    p.set_defaults(func=run)
+    """Register `summary`."""
     p = sub.add_parser("summary", help="one row per building: latest tier, level, where")
     p.add_argument("--format", choices=("text", "csv", "geojson"), default="text")
     p.set_defaults(func=run)
-
-
-def run(args: argparse.Namespace) -> int:
-    """Run the command of this module that `args.command` names."""
-    commands = {"merge": run_merge, "summary": run_summary}
-    return commands[args.command](args)
-
-
-def run_merge(args: argparse.Namespace) -> int:
-    """Merge each source into the target; a refused source is named and skipped."""
-    from triage.store import Store, StoreError
-    from triage.store.merge import merge_into
-
-    try:
-        st = Store.open(args.into, create=True)
-    except StoreError as err:
-        raise UserError(str(err)) from None
-    try:
-        try:
-            results = merge_into(st, [Path(s) for s in args.sources])
-        except StoreError as err:
-            raise UserError(str(err)) from None
-    finally:
-        st.close()
-    failed = 0
-    for r in results:
-        if r.skipped:
-            failed += 1
-            sys.stderr.write(f"triage merge: {r.source}: {r.skipped}; skipped\n")
-            continue
-        kept = (f", {r.conflicts} edited differently here and there (both versions kept, "
-                "flagged as conflict)") if r.conflicts else ""
-        sys.stdout.write(f"merged {r.source}: {r.added} added, {r.updated} brought up to "
-                         f"date, {r.unchanged} unchanged{kept}\n")
-    return 1 if failed else 0
 
 
 def _words(tier: str | None) -> str:
     from triage.assess import tier_words
 
     return tier_words(tier) if tier else "not assessed"
-
-
-def _yes(v: bool | None) -> str:
-    return "—" if v is None else ("yes" if v else "no")
 
 
 def _cut(text: str, n: int) -> str:
@@ -89,7 +46,7 @@ def summary_text(rows: list[BuildingRow]) -> str:
         lines.append(
             f"{_cut(r.building, 24):<24}  {_cut(r.address, 28):<28}  {loc:<19}  {r.at:<25}  "
             f"{_cut(r.inspector, 16):<16}  {_words(r.tier):<12}  {r.level or '—':<9}  "
-            f"{r.governing_storey or '—':<9}  {_yes(r.provisional):<11}  "
+            f"{r.governing_storey or '—':<9}  {yes_no(r.provisional):<11}  "
             f"{'CONFLICT' if r.conflict else '—'}")
     counts = {t: sum(1 for r in rows if r.tier == t) for t in TIERS}
     unassessed = sum(1 for r in rows if r.tier is None)
@@ -141,17 +98,11 @@ def summary_geojson(rows: list[BuildingRow]) -> dict[str, Any]:
     return {"type": "FeatureCollection", "caution": CAUTION, "features": features}
 
 
-def run_summary(args: argparse.Namespace) -> int:
+def run(args: argparse.Namespace) -> int:
     """One row per building id, its latest survey, from the stored assessments."""
-    from triage.store import Store, StoreError
-    from triage.store.area import building_rows
-
+    st: SurveyReader = open_reader(args)
     try:
-        st = Store.open(args.db, create=False)
-    except StoreError as err:
-        raise UserError(str(err)) from None
-    try:
-        rows = building_rows(st)
+        rows = st.building_rows()
     finally:
         st.close()
     if args.format == "csv":

@@ -1,0 +1,154 @@
+"""`triage report FILE|ID -o OUT.pdf [--key KEYFILE]`: the report PDF, signed when a key is given.
+
+Heavy libraries (reportlab, cryptography, pypdf) are imported inside the functions, so the
+command line starts quickly.
+"""
+
+from __future__ import annotations
+
+import argparse
+import re
+import sys
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+from .common import read_survey_file, resolve_id
+from .errors import UserError
+from .keys import load_signing_key
+
+if TYPE_CHECKING:
+    from triage.assess import Assessment
+    from triage.assess.compare import Comparison
+    from triage.model import Survey
+    from triage.store.reader import ReportLog, SurveyReader
+
+
+def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg,unused-ignore]
+    """Register `report`."""
+    r = sub.add_parser("report", help="the report PDF, signed when a key is given")
+    r.add_argument("source", metavar="FILE|ID", help="a survey file, or a survey id in the "
+                   "database")
+    r.add_argument("-o", "--output", required=True, metavar="OUT.pdf",
+                   help="the PDF to write (replaced if it exists)")
+    r.add_argument("--key", metavar="KEYFILE", help="sign with this key")
+    r.set_defaults(func=run)
+
+
+def _is_id(text: str) -> bool:
+    """A survey id, or the start of one (as `triage list` shows them), rather than a path."""
+    return re.fullmatch(r"[0-9a-fA-F][0-9a-fA-F-]{3,35}", text) is not None
+
+
+def run(args: argparse.Namespace) -> int:
+    """Write the report of a survey file or of a survey in the database."""
+    from triage.assess import assess
+    from triage.report import write_report
+
+    out = Path(args.output)
+    if out.is_dir():
+        raise UserError(f"{args.output}: is a folder; give the PDF file to write")
+    if not out.parent.exists():
+        raise UserError(f"{args.output}: its folder does not exist")
+    src = Path(args.source)
+    if src.exists() and out.exists() and src.resolve() == out.resolve():
+        raise UserError(f"{args.output}: is the survey file itself; choose another name")
+    key = load_signing_key(args.key) if args.key else None
+
+    store: ReportLog | None = None
+    revision = None
+    photo_dir = None
+    if not src.exists() and not _is_id(args.source):
+        raise UserError(f"{args.source}: no such file (nor a survey id or the start of one)")
+    if src.exists():
+        survey = read_survey_file(args.source)
+        photo_dir = src.resolve().parent
+    else:
+        store, survey, revision = _from_store(args)
+        photo_dir = store.photo_dir(str(survey.survey_id))
+    try:
+        assessment = assess(survey)
+        comparison = _since_previous(survey, assessment, store, args)
+        try:
+            info = write_report(survey, assessment, out, key=key, revision=revision,
+                                photo_dir=photo_dir, comparison=comparison)
+        except ValueError as err:
+            raise UserError(str(err)) from None
+        if store is not None and revision is not None:
+            store.record_report(str(survey.survey_id), revision, str(out.resolve()),
+                                info.fingerprint)
+    finally:
+        if store is not None:
+            store.close()
+    signed = f"signed with key {info.fingerprint}" if info.signed else "UNSIGNED"
+    rev = f", store revision {revision}" if revision is not None else ""
+    sys.stdout.write(f"report written to {out} ({info.pages} pages, {signed}{rev}); "
+                     f"tier {assessment.tier}, indicative only\n")
+    return 0
+
+
+def _since_previous(survey: Survey, assessment: Assessment, store: SurveyReader | None,
+                    args: argparse.Namespace) -> Comparison | None:
+    """The "since the previous inspection" comparison, when the earlier survey is stored.
+
+    It is looked up in the open database, else in the `--db` (or default) database if one
+    exists; a survey file whose previous survey is nowhere here gets no such section.
+    """
+    from triage.assess import assess
+    from triage.assess.compare import since_previous
+
+    if survey.inspection.previous is None:
+        return None
+    own: SurveyReader | None = store
+    if own is None:
+        try:
+            from triage.store import Store, StoreError, default_db_path
+        except ImportError:
+            return None
+        db = Path(args.db) if getattr(args, "db", None) else default_db_path()
+        if not db.exists():
+            return None
+        try:
+            own = Store.open(db, create=False)
+        except StoreError:
+            return None
+
+    reader = own
+
+    def load(prev_id: str) -> tuple[Survey, Assessment] | None:
+        if not reader.has_survey(prev_id):
+            return None
+        old = reader.load_survey(prev_id)
+        return old, assess(old)
+
+    try:
+        return since_previous(survey, assessment, load)
+    finally:
+        if reader is not store:
+            reader.close()
+
+
+def _from_store(args: argparse.Namespace) -> tuple[ReportLog, Survey, int]:
+    """Open the database and load the survey with this id (refusals are one line)."""
+    try:
+        from triage.store import Store, StoreError, default_db_path
+    except ImportError:
+        raise UserError(f"{args.source}: no such file (and no survey database here)") from None
+    db = Path(args.db) if getattr(args, "db", None) else default_db_path()
+    if not db.exists():
+        raise UserError(f"{args.source}: no such file, and no database at {db}")
+    try:
+        store: ReportLog = Store.open(db, create=False)
+    except StoreError as err:
+        raise UserError(str(err)) from None
+
+    try:
+        sid = resolve_id(store, args.source)
+        survey = store.load_survey(sid)
+        revision = store.revision(sid)
+    except UserError:
+        store.close()
+        raise
+    except StoreError as err:
+        store.close()
+        raise UserError(f"{args.source}: {err}") from None
+    return store, survey, revision

@@ -1,4 +1,7 @@
-"""The survey: the interchange format `triage-survey/1` as pydantic models.
+"""The survey: the interchange format `triage-survey/2` as pydantic models.
+
+`triage-survey/2` is `triage-survey/1` plus optional keys; files of either format are read,
+and every survey is written as `/2` (see docs/formats.md).
 
 Data is validated once, here, at the edge (a form field, an imported file); the assessment
 trusts it. Every rule a user can break has a message naming the field path and the rule
@@ -25,7 +28,19 @@ from pydantic import (
 
 from triage import standards
 
-FORMAT = "triage-survey/1"
+FORMAT = "triage-survey/2"
+"""The format every survey is written as."""
+FORMATS: tuple[str, ...] = ("triage-survey/1", FORMAT)
+"""The formats this version reads (each a superset of the one before)."""
+
+# The optional keys `/2` added, by where they sit: a survey's derived id is taken over its
+# text as `/1` wrote it, so these are left out of that text when absent (ids do not change).
+_V2_KEYS: dict[str, tuple[str, ...]] = {
+    "building": ("year_built",),
+    "inspection": ("team", "event", "not_inspected", "weather"),
+    "reading": ("baseline_sd_mm", "baseline_sd_deg"),
+    "photo": ("sha256",),
+}
 
 # Ids absent from a file are derived as UUID 5 under this namespace of ours.
 ID_NAMESPACE = uuid.UUID("6f1c0c3e-2b9a-5d4e-9a61-7d2f0b8e4c11")
@@ -73,6 +88,9 @@ class Photo(_Model):
 
     path: str = Field(min_length=1, description="file path, relative to the survey file")
     caption: str = Field(default="", description="what the photo shows")
+    sha256: str | None = Field(
+        default=None, pattern=r"^[0-9a-f]{64}$",
+        description="SHA-256 of the image bytes, 64 lowercase hex digits (set when stored)")
 
 
 class Location(_Model):
@@ -98,6 +116,8 @@ class Building(_Model):
     location: Location | None = Field(default=None, description="map position, when known")
     use: str | None = Field(default=None, description="what the building is used for")
     system: Systems = Field(description="structural system per direction")
+    year_built: int | None = Field(
+        default=None, ge=1000, le=9999, description="year the building was completed")
 
 
 class Inspector(_Model):
@@ -114,6 +134,13 @@ class Inspection(_Model):
     at: AwareDatetime = Field(description="time of the inspection, ISO 8601 with offset")
     previous: uuid.UUID | None = Field(
         default=None, description="id of the earlier survey of the same building")
+    team: tuple[Inspector, ...] = Field(
+        default=(), description="others who inspected with the inspector")
+    event: str | None = Field(
+        default=None, description="the earthquake or aftershock this inspection follows")
+    not_inspected: str | None = Field(
+        default=None, description="what could not be inspected, and why")
+    weather: str | None = Field(default=None, description="weather at the time of inspection")
 
 
 class Reading(_Model):
@@ -129,6 +156,10 @@ class Reading(_Model):
     sd_deg: float | None = Field(default=None, gt=0, description="standard uncertainty of tilt")
     baseline_deg: float | None = Field(
         default=None, ge=-45, le=45, description="as-built tilt at this spot, degrees")
+    baseline_sd_mm: float | None = Field(
+        default=None, gt=0, description="standard uncertainty of baseline_mm, mm")
+    baseline_sd_deg: float | None = Field(
+        default=None, gt=0, description="standard uncertainty of baseline_deg, degrees")
     where: str | None = Field(default=None, description="where on the plan it was taken")
 
     @model_validator(mode="after")
@@ -141,10 +172,16 @@ class Reading(_Model):
             raise ValueError("a reading needs offset_mm with gauge_mm, or tilt_deg")
         if by_offset and (self.offset_mm is None or self.gauge_mm is None):
             raise ValueError("offset_mm and gauge_mm go together")
-        if by_offset and (self.sd_deg is not None or self.baseline_deg is not None):
-            raise ValueError("sd_deg and baseline_deg belong to a tilt reading")
-        if by_tilt and (self.sd_mm is not None or self.baseline_mm is not None):
-            raise ValueError("sd_mm and baseline_mm belong to an offset reading")
+        if by_offset and (self.sd_deg is not None or self.baseline_deg is not None
+                          or self.baseline_sd_deg is not None):
+            raise ValueError("sd_deg, baseline_deg and baseline_sd_deg belong to a tilt reading")
+        if by_tilt and (self.sd_mm is not None or self.baseline_mm is not None
+                        or self.baseline_sd_mm is not None):
+            raise ValueError("sd_mm, baseline_mm and baseline_sd_mm belong to an offset reading")
+        if self.baseline_sd_mm is not None and self.baseline_mm is None:
+            raise ValueError("baseline_sd_mm is the uncertainty of baseline_mm, which is absent")
+        if self.baseline_sd_deg is not None and self.baseline_deg is None:
+            raise ValueError("baseline_sd_deg is the uncertainty of baseline_deg, which is absent")
         limit = standards.load().assumptions.max_drift_ratio
         if abs(self.drift_ratio()) >= limit:
             raise ValueError(
@@ -242,7 +279,8 @@ class Hazard(_Model):
 class Survey(_Model):
     """One inspection of one building at one time."""
 
-    format: Literal["triage-survey/1"] = Field(description="always triage-survey/1")
+    format: Literal["triage-survey/1", "triage-survey/2"] = Field(
+        description="triage-survey/2 (triage-survey/1 files are read, and written as /2)")
     id: uuid.UUID | None = Field(default=None, description="survey id; derived when absent")
     building: Building
     inspection: Inspection
@@ -271,12 +309,43 @@ class Survey(_Model):
                 update={"id": uuid.uuid5(ID_NAMESPACE, "building:" + canonical_json(block))})
             object.__setattr__(self, "building", b)
         if self.id is None:
-            body = self.model_dump(mode="json", exclude={"id"})
-            derived = uuid.uuid5(ID_NAMESPACE, "survey:" + canonical_json(body))
+            derived = uuid.uuid5(ID_NAMESPACE, "survey:" + canonical_json(self._id_body()))
             object.__setattr__(self, "id", derived)
+        object.__setattr__(self, "format", FORMAT)
         if self.inspection.previous is not None and self.inspection.previous == self.id:
             raise ValueError("inspection.previous: a survey cannot follow itself")
         return self
+
+    def _id_body(self) -> dict[str, Any]:
+        """The text a derived survey id is taken over: the survey as `/1` wrote it.
+
+        Every field, absent ones as null, except the id and the keys `/2` added when they
+        are absent; the format always reads `triage-survey/1`. So a `/1` file keeps the id it
+        had, and the same survey gets the same id whichever format its file says.
+        """
+        body = self.model_dump(mode="json", exclude={"id"})
+        body["format"] = FORMATS[0]
+
+        def strip(block: dict[str, Any], keys: tuple[str, ...]) -> None:
+            for k in keys:
+                if block.get(k) in (None, [], ()):
+                    block.pop(k, None)
+
+        def photos(block: dict[str, Any]) -> None:
+            for ph in block.get("photos") or ():
+                strip(ph, _V2_KEYS["photo"])
+
+        strip(body["building"], _V2_KEYS["building"])
+        strip(body["inspection"], _V2_KEYS["inspection"])
+        for st in body["storeys"]:
+            photos(st)
+            for r in st["readings"]:
+                strip(r, _V2_KEYS["reading"])
+            for m in st["members"]:
+                photos(m)
+        for h in body["hazards"]:
+            photos(h)
+        return body
 
     @property
     def survey_id(self) -> uuid.UUID:
@@ -291,7 +360,7 @@ class Survey(_Model):
         return self.building.id
 
     def to_json_dict(self) -> dict[str, Any]:
-        """The survey as `triage-survey/1` JSON data, ids included, absent fields left out."""
+        """The survey as `triage-survey/2` JSON data, ids included, absent fields left out."""
         return self.model_dump(mode="json", exclude_none=True, exclude_defaults=False)
 
     def canonical(self) -> str:
@@ -374,8 +443,9 @@ def parse_survey(data: Any) -> Survey:
     if not isinstance(data, dict):
         raise SurveyError("(survey): a survey is a JSON object")
     fmt = data.get("format")
-    if fmt is not None and fmt != FORMAT:
-        raise SurveyError(f"format: {fmt!r} is not {FORMAT!r}")
+    if fmt is not None and fmt not in FORMATS:
+        raise SurveyError(f"format: {fmt!r} is not a survey format this version reads "
+                          f"({', '.join(FORMATS)}); a newer triage may read it")
     try:
         return Survey.model_validate(data)
     except ValidationError as err:
@@ -406,9 +476,9 @@ def survey_warnings(survey: Survey) -> list[str]:
 
 
 def json_schema() -> dict[str, Any]:
-    """The JSON Schema of `triage-survey/1`, generated from these models."""
+    """The JSON Schema of `triage-survey/2` (which `/1` files also meet), from these models."""
     schema = Survey.model_json_schema()
     schema["$schema"] = "https://json-schema.org/draft/2020-12/schema"
-    schema["$id"] = "urn:triage:triage-survey/1"
-    schema["title"] = "triage-survey/1"
+    schema["$id"] = f"urn:triage:{FORMAT}"
+    schema["title"] = FORMAT
     return schema

@@ -66,6 +66,6 @@ def test_wrong_command_line_exit_2():
 def test_schema_is_json_schema():
     out = triage("schema")
     schema = json.loads(out.stdout)
-    assert schema["title"] == "triage-survey/1"
+    assert schema["title"] == "triage-survey/2"
     assert schema["additionalProperties"] is False
     assert "rc_frame" in json.dumps(schema["$defs"]["Systems"])

@@ -14,7 +14,7 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
     p.add_argument("file", help="a triage-survey/1 JSON file")
     p.add_argument("--format", choices=("text", "json"), default="text")
     p.set_defaults(func=run)
-    s = sub.add_parser("schema", help="print the JSON Schema of triage-survey/1")
+    s = sub.add_parser("schema", help="print the JSON Schema of triage-survey/2")
     s.set_defaults(func=run_schema)
 
 

@@ -11,7 +11,7 @@ FORBIDDEN = ("textual", "rich", "reportlab", "sqlite_utils")
 
 
 @pytest.mark.parametrize("module", ["triage.model", "triage.standards", "triage.assess",
-                                    "triage.assess.text"])
+                                    "triage.assess.text", "triage.standards.vocabulary"])
 def test_core_module_imports_no_ui_pdf_or_database(module):
     code = (f"import sys, {module}\n"
             f"bad = [m for m in {FORBIDDEN!r} if m in sys.modules]\n"

@@ -27,6 +27,7 @@ from typing import Any, Literal
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
 from triage import standards
+from triage.errors import InputRefused
 from triage.model import MEMBER_KINDS, MemberKind
 from triage.resources import forms_dir
 from triage.standards import CLASSES
@@ -40,7 +41,7 @@ HazardGroupName = Literal[
     "ground and foundation", "structure", "falling objects", "exits and services", "neighbours"]
 
 
-class FormError(ValueError):
+class FormError(InputRefused, ValueError):
     """A form file broke a rule; `str()` is one line naming the file, the key and the rule."""
 
 

@@ -2,10 +2,11 @@
 
 from __future__ import annotations
 
+from triage.errors import TriageError
 
-class UserError(Exception):
+
+class UserError(TriageError):
     """Input refused or a check failed: one line naming the file or field and the rule."""
 
     def __init__(self, message: str, code: int = 1) -> None:
-        super().__init__(message)
-        self.code = code
+        super().__init__(message, code)

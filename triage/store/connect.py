@@ -12,14 +12,20 @@ from collections.abc import Iterator
 from contextlib import contextmanager, suppress
 from pathlib import Path
 
+from triage.errors import IOFailure, TriageError
+
 # PRAGMA application_id of a triage database: the bytes "TRIA".
 APPLICATION_ID = 0x54524941
 BUSY_TIMEOUT_MS = 15000
 _HEADER = b"SQLite format 3\x00"
 
 
-class StoreError(Exception):
+class StoreError(TriageError):
     """The store refused or could not do something; `str()` is one line saying what to do."""
+
+
+class StoreIOFailure(StoreError, IOFailure):
+    """The database could not be read or written: disk full, read-only, locked, no folder."""
 
 
 class SurveyConflict(StoreError):
@@ -81,16 +87,16 @@ def explain(err: sqlite3.Error, path: Path) -> StoreError:
     """A one-line message for an SQLite error, naming the file and what to do."""
     text = str(err).lower()
     if "full" in text:
-        return StoreError(f"{path}: the disk is full; this change was not saved and earlier data "
-                          "is whole; free some space and try again")
+        return StoreIOFailure(f"{path}: the disk is full; this change was not saved and "
+                              "earlier data is whole; free some space and try again")
     if "readonly" in text or "read-only" in text:
-        return StoreError(f"{path}: the database or its folder is read-only; nothing was "
+        return StoreIOFailure(f"{path}: the database or its folder is read-only; nothing was "
                           "changed; use a writable folder (triage --db PATH)")
     if "unable to open" in text or "cannot open" in text:
-        return StoreError(f"{path}: cannot open or create the database there (missing or "
+        return StoreIOFailure(f"{path}: cannot open or create the database there (missing or "
                           "read-only folder?); use triage --db PATH with a writable folder")
     if "locked" in text or "busy" in text:
-        return StoreError(f"{path}: the database stayed busy in another program for "
+        return StoreIOFailure(f"{path}: the database stayed busy in another program for "
                           f"{BUSY_TIMEOUT_MS // 1000} s; nothing was changed; try again")
     if "not a database" in text or "malformed" in text or "corrupt" in text:
         return StoreError(f"{path}: damaged database ({err}); it was left as it is; restore it "

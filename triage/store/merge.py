@@ -10,7 +10,12 @@ assessments and reports:
   left as it is; so merging the same sources again changes nothing;
 - a survey edited differently on both sides keeps both: the source's version is added under an
   id of its own (UUID 5 of the id and the source JSON, so a second merge finds it), linked to
-  the first by `conflict_of`; `list` and `summary` flag both until one of them is hidden.
+  the first by `conflict_of`; `list` and `summary` flag both until one of them is hidden;
+- two identical texts are never a conflict: a survey edited on both sides to the same text, or
+  to the text of a version kept already, takes the source's missing changes into its log and
+  the source's hidden flag when those changes hide, unhide or undo a hide (so an undo or a hide
+  made on a laptop reaches the centre); a conflict copy brought by a source (area -> laptop ->
+  area) whose text is the target's own version, or a copy kept already, is not added again.
 
 Sources are only read: through a read-only connection (`mode=ro`), or, when a `-wal` or
 `-journal` file lies beside it, through a copy of the file and that file made in a temporary
@@ -26,7 +31,9 @@ import shutil
 import sqlite3
 import tempfile
 import uuid
+from collections.abc import Callable
 from dataclasses import dataclass
+from datetime import UTC, datetime
 from pathlib import Path
 
 from triage.model import ID_NAMESPACE, canonical_json
@@ -161,6 +168,9 @@ def _merge_attached(store: Store, src: Path, result: MergeResult) -> None:
         c.execute("DELETE FROM temp.merge_new")
         c.execute("INSERT INTO temp.merge_new SELECT id FROM src.surveys "
                   "WHERE id NOT IN (SELECT id FROM main.surveys)")
+        echoes = _kept_already(c)
+        if echoes:
+            c.executemany("DELETE FROM temp.merge_new WHERE id = ?", [(x,) for x in echoes])
         result.added = c.execute("SELECT count(*) FROM temp.merge_new").fetchone()[0]
         if result.added:
             c.execute(f"INSERT INTO main.surveys (id, {cols}, source, source_db, conflict_of) "
@@ -190,7 +200,7 @@ def _merge_attached(store: Store, src: Path, result: MergeResult) -> None:
                 result.updated += 1
             elif outcome == "conflict":
                 result.conflicts += 1
-        result.unchanged = common - result.updated - result.conflicts
+        result.unchanged = common - result.updated - result.conflicts + len(echoes)
         # Reports issued on the source for a version the target holds too.
         c.execute(f"INSERT OR IGNORE INTO main.reports (survey_id, {_REPORT_COLS}) "
                   f"SELECT r.survey_id, {', '.join('r.' + x for x in _REPORT_COLS.split(', '))} "
@@ -221,11 +231,15 @@ def _merge_one(c: sqlite3.Connection, sid: str, source: str, source_db: str | No
                   f"SELECT survey_id, {_REPORT_COLS} FROM src.reports WHERE survey_id = ?",
                   (sid,))
         return "updated"
+    line = _copy_of_their_line(c, sid, theirs)
+    if line is not None:
+        return _forward_copy(c, line, sid, src_doc, my_doc, source, source_db)
     if src_doc == my_doc:
-        return "unchanged"
+        return _carry(c, sid, sid)
+    kept = _same_text_in_target(c, sid, src_doc)
+    if kept is not None:   # this version is kept already (an earlier merge, or elsewhere)
+        return _carry(c, kept, sid)
     cid = conflict_id(sid, src_doc)
-    if c.execute("SELECT 1 FROM main.surveys WHERE id = ?", (cid,)).fetchone():
-        return "unchanged"   # this version was kept already by an earlier merge
     doc = json.loads(src_doc)
     doc["id"] = cid
     cols = ", ".join(x for x in _COPIED if x not in ("doc", "assessed_revision"))
@@ -240,9 +254,125 @@ def _merge_one(c: sqlite3.Connection, sid: str, source: str, source_db: str | No
     return "conflict"
 
 
-def merge_into(store: Store, sources: list[Path]) -> list[MergeResult]:
-    """Merge each source in turn (one transaction each); refresh what came in stale."""
-    results = [merge_source(store, Path(s)) for s in sources]
+def _copy_of_their_line(c: sqlite3.Connection, sid: str, theirs: set[str]) -> str | None:
+    """A conflict copy of `sid` kept here whose log is an earlier part of the source's log.
+
+    That copy is the source's own earlier version (kept when both sides had edited); the
+    source has moved on from it (a further edit, an undo), so the copy moves on too.
+    """
+    for (cid,) in c.execute("SELECT id FROM main.surveys WHERE conflict_of = ? ORDER BY id",
+                            (sid,)).fetchall():
+        log = {r[0] for r in c.execute("SELECT uid FROM main.changes WHERE survey_id = ?",
+                                       (cid,))}
+        if log and log < theirs:
+            return str(cid)
+    return None
+
+
+def _forward_copy(c: sqlite3.Connection, cid: str, sid: str, src_doc: str, my_doc: str,
+                  source: str, source_db: str | None) -> str:
+    """Bring the copy `cid` to the source's version; hide it when that is the target's own."""
+    from .store import new_uid
+
+    doc = json.loads(src_doc)
+    doc["id"] = cid
+    cols = [x for x in _COPIED if x not in ("doc", "assessed_revision", "hidden")]
+    sets = ", ".join(f"{x} = s.{x}" for x in cols)
+    c.execute(f"UPDATE main.surveys SET {sets}, doc = ?, assessed_revision = NULL, "
+              "hidden = s.hidden, source = ?, source_db = ? "
+              "FROM (SELECT * FROM src.surveys WHERE id = ?) AS s WHERE main.surveys.id = ?",
+              (canonical_json(doc), source, source_db, sid, cid))
+    c.execute(f"INSERT INTO main.changes (survey_id, {_CHANGE_COLS}) "
+              f"SELECT ?, {_CHANGE_COLS} FROM src.changes WHERE survey_id = ? "
+              "AND uid NOT IN (SELECT uid FROM main.changes WHERE survey_id = ?) ORDER BY seq",
+              (cid, sid, cid))
+    if _as_id(src_doc, sid) == _as_id(my_doc, sid):
+        # the source came back to the target's own text: no conflict is left to show
+        _carry(c, sid, sid)
+        row = c.execute("SELECT revision, hidden FROM main.surveys WHERE id = ?",
+                        (cid,)).fetchone()
+        if not row[1]:
+            c.execute("UPDATE main.surveys SET hidden = 1 WHERE id = ?", (cid,))
+            c.execute("INSERT INTO main.changes (uid, survey_id, revision, op, path, old, new, "
+                      "at, who) VALUES (?, ?, ?, 'hide', 'hidden', 'false', 'true', ?, "
+                      "'merge')", (new_uid(), cid, row[0],
+                                   datetime.now(UTC).isoformat(timespec="milliseconds")))
+    return "updated"
+
+
+def _as_id(doc_text: str, sid: str) -> str:
+    """The survey JSON text with its id replaced (to compare versions kept under two ids)."""
+    doc = json.loads(doc_text)
+    doc["id"] = sid
+    return canonical_json(doc)
+
+
+def _same_text_in_target(c: sqlite3.Connection, sid: str, src_doc: str) -> str | None:
+    """The id of a version of survey `sid` in the target whose text is `src_doc`'s, if any."""
+    want = _as_id(src_doc, sid)
+    for oid, doc in c.execute("SELECT id, doc FROM main.surveys WHERE id = ? OR conflict_of = ?",
+                              (sid, sid)):
+        if doc == src_doc or _as_id(doc, sid) == want:
+            return str(oid)
+    return None
+
+
+def _kept_already(c: sqlite3.Connection) -> list[str]:
+    """New conflict copies from the source whose text the target keeps already."""
+    out = []
+    for cid, of, doc in c.execute(
+            "SELECT s.id, s.conflict_of, s.doc FROM src.surveys s JOIN temp.merge_new n "
+            "ON n.id = s.id WHERE s.conflict_of IS NOT NULL").fetchall():
+        kept = _same_text_in_target(c, of, doc)
+        if kept is not None:
+            _carry(c, kept, cid)
+            out.append(cid)
+    return out
+
+
+_HIDING = ("hide", "unhide")
+
+
+def _carry(c: sqlite3.Connection, target_id: str, source_id: str) -> str:
+    """Same text on both sides: take the source's missing changes, and its retractions.
+
+    The source's changes the target's log lacks are added to it (so a later merge knows
+    them); when they hide, unhide or undo a hide, the target takes the source's hidden flag.
+    Returns "unchanged", or "updated" when the hidden flag changed.
+    """
+    missing = c.execute(
+        f"SELECT {_CHANGE_COLS} FROM src.changes WHERE survey_id = ? AND uid NOT IN "
+        "(SELECT uid FROM main.changes WHERE survey_id = ?) ORDER BY seq",
+        (source_id, target_id)).fetchall()
+    if not missing:
+        return "unchanged"
+    c.executemany(f"INSERT INTO main.changes (survey_id, {_CHANGE_COLS}) "
+                  f"VALUES (?, {', '.join('?' * len(_CHANGE_COLS.split(', ')))})",
+                  [(target_id, *row) for row in missing])
+    # a hide, an unhide, or the undo of one (logged as op "undo" on the path "hidden")
+    if not any(m[2] in _HIDING or (m[2] == "undo" and m[3] == "hidden") for m in missing):
+        return "unchanged"
+    hidden = c.execute("SELECT hidden FROM src.surveys WHERE id = ?", (source_id,)).fetchone()
+    mine = c.execute("SELECT hidden FROM main.surveys WHERE id = ?", (target_id,)).fetchone()
+    if hidden is None or mine is None or hidden[0] == mine[0]:
+        return "unchanged"
+    c.execute("UPDATE main.surveys SET hidden = ? WHERE id = ?", (hidden[0], target_id))
+    return "updated"
+
+
+def merge_into(store: Store, sources: list[Path],
+               each: Callable[[MergeResult], None] | None = None) -> list[MergeResult]:
+    """Merge each source in turn (one transaction each); refresh what came in stale.
+
+    `each` is called with a source's result as soon as its transaction has committed (the
+    command prints it then, so a merge stopped half-way has said what it did).
+    """
+    results = []
+    for s in sources:
+        r = merge_source(store, Path(s))
+        results.append(r)
+        if each is not None:
+            each(r)
     store.forget_cache()
     store.refresh_stale()
     return results

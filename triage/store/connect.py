@@ -91,13 +91,13 @@ def explain(err: sqlite3.Error, path: Path) -> StoreError:
                               "earlier data is whole; free some space and try again")
     if "readonly" in text or "read-only" in text:
         return StoreIOFailure(f"{path}: the database or its folder is read-only; nothing was "
-                          "changed; use a writable folder (triage --db PATH)")
+                              "changed; use a writable folder (triage --db PATH)")
     if "unable to open" in text or "cannot open" in text:
         return StoreIOFailure(f"{path}: cannot open or create the database there (missing or "
-                          "read-only folder?); use triage --db PATH with a writable folder")
+                              "read-only folder?); use triage --db PATH with a writable folder")
     if "locked" in text or "busy" in text:
         return StoreIOFailure(f"{path}: the database stayed busy in another program for "
-                          f"{BUSY_TIMEOUT_MS // 1000} s; nothing was changed; try again")
+                              f"{BUSY_TIMEOUT_MS // 1000} s; nothing was changed; try again")
     if "not a database" in text or "malformed" in text or "corrupt" in text:
         return StoreError(f"{path}: damaged database ({err}); it was left as it is; restore it "
                           "from a backup (triage backup) or use another --db")

@@ -5,7 +5,7 @@
 - store_write_ratio: one field edit of a 10-storey survey (4 readings per storey and direction,
   10 member groups per storey) through `Store.set_value` (validation, the survey row and its
   change-log row in one durable transaction), over bare sqlite3 writing the same two rows in one
-  BEGIN IMMEDIATE transaction with the same pragmas on the same schema. Target: at most 1.5.
+  BEGIN IMMEDIATE transaction with the same pragmas on the same schema. Target: at most 2.0.
   store_write_overhead_ms: the same edit's time beyond the bare write, milliseconds (the
   ratio depends on what a flush costs on the disk: where fsync is nearly free, as on some
   virtual disks, this Python work shows; on a laptop SSD the flush dominates).

@@ -13,7 +13,7 @@ from __future__ import annotations
 import json
 import math
 import uuid
-from typing import Annotated, Any, Literal
+from typing import Annotated, Any, Literal, get_args
 
 from pydantic import (
     AfterValidator,
@@ -47,7 +47,7 @@ ID_NAMESPACE = uuid.UUID("6f1c0c3e-2b9a-5d4e-9a61-7d2f0b8e4c11")
 
 Dir = Literal["x", "y"]
 MemberKind = Literal["column", "wall", "beam", "brace", "connection", "slab", "infill"]
-MEMBER_KINDS: tuple[str, ...] = ("column", "wall", "beam", "brace", "connection", "slab", "infill")
+MEMBER_KINDS: tuple[str, ...] = get_args(MemberKind)   # the same kinds, as a tuple to iterate
 DamageClass = standards.DamageClass
 Access = Literal["full", "partial", "none"]
 

@@ -10,7 +10,7 @@ from hypothesis import strategies as st
 
 from tests.store.conftest import sample, sample_dict
 from triage.model import canonical_json, parse_survey
-from triage.store import EditRefused, Store, StoreError, edits
+from triage.store import EditRefused, Store, StoreError, canonical, edits
 
 
 def _doc(store: Store, sid: str) -> str:
@@ -179,7 +179,7 @@ EDITS = st.sampled_from([
 @given(st.lists(st.tuples(EDITS, st.integers(0, 2), st.data()), min_size=1, max_size=12))
 def test_partial_validation_matches_full_validation(steps):
     doc = sample().to_json_dict()
-    text = edits.CanonicalText()
+    text = canonical.CanonicalText()
     for (op, path, values), s, data in steps:
         value = data.draw(values)
         p = path.format(s=s)

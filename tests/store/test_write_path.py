@@ -1,89 +1,46 @@
-"""What the store writes with every edit, made the cheap way: change id, time stamp, JSON text."""
+"""What the store writes with every edit: a version 4 change id, a UTC time stamp, the JSON text."""
 
 from __future__ import annotations
 
-import multiprocessing
 import re
 import sqlite3
 import uuid
-from datetime import UTC, datetime, timedelta
-from multiprocessing.connection import Connection
+from datetime import UTC, datetime
 
-import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from triage.store import store as store_module
-from triage.store.store import _RUNS, _doc_pieces, _update_doc_sql, _UtcStamp, new_uid
+from tests.store.conftest import sample
+from triage.store import Store
+from triage.store.writes import _RUNS, _doc_pieces, _update_doc_sql
 
 
-def _uids(n: int) -> list[str]:
-    return [new_uid() for _ in range(n)]
-
-
-def _send_uids(conn: Connection, n: int) -> None:
-    conn.send(_uids(n))
-    conn.close()
-
-
-def test_change_ids_are_distinct_version_4_uuids():
-    ids = _uids(20_000)
-    assert len(set(ids)) == len(ids)
-    for u in ids[:500]:
+def test_change_ids_are_distinct_version_4_uuids(stored):
+    store, sid = stored
+    for i in range(50):
+        store.set_value(sid, "storeys[0].readings[0].offset_mm", 1.0 + i / 10)
+    store.undo_last(sid)
+    store.hide_survey(sid)
+    ids = [c.uid for c in store.change_log(sid) if c.op != "import"]
+    assert len(ids) == 52 and len(set(ids)) == len(ids)
+    for u in ids:
         parsed = uuid.UUID(u)
         assert parsed.version == 4
         assert parsed.variant == uuid.RFC_4122
         assert str(parsed) == u
 
 
-def test_forked_children_do_not_repeat_each_others_change_ids():
-    # Two processes forked from one parent start from its generator state; the generator is
-    # reseeded in every child, so their ids differ (a crash test and the UI's workers fork).
-    ctx = multiprocessing.get_context("fork")
-    got = []
-    for _ in range(2):
-        mine_end, child_end = ctx.Pipe()
-        child = ctx.Process(target=_send_uids, args=(child_end, 200))
-        child.start()
-        got.append(mine_end.recv())
-        child.join()
-    a, b = got
-    mine = _uids(200)
-    assert not set(a) & set(b)
-    assert not (set(a) | set(b)) & set(mine)
-
-
-def _expected(ns: int) -> str:
-    t = datetime(1970, 1, 1, tzinfo=UTC) + timedelta(microseconds=ns // 1000)
-    return t.isoformat(timespec="milliseconds")
-
-
-@pytest.mark.parametrize("ns", [
-    0,
-    1_796_000_000_999_999_999,          # the last millisecond of a second ...
-    1_796_000_001_000_000_000,          # ... and the first of the next
-    1_796_000_001_000_999_999,
-    1_830_297_599_123_456_789,          # 2027-12-31T23:59:59.123
-    1_830_297_600_000_000_001,          # a new year
-])
-def test_the_stamp_reads_as_datetime_isoformat_does(monkeypatch, ns):
-    stamp = _UtcStamp()
-    monkeypatch.setattr(store_module.time, "time_ns", lambda: ns)
-    assert stamp() == _expected(ns)
-    # The date part is kept per second: a step back and forth still reads right.
-    monkeypatch.setattr(store_module.time, "time_ns", lambda: ns + 1_500_000_000)
-    assert stamp() == _expected(ns + 1_500_000_000)
-    monkeypatch.setattr(store_module.time, "time_ns", lambda: ns)
-    assert stamp() == _expected(ns)
-
-
-def test_the_stamp_is_now_in_utc():
-    stamp = _UtcStamp()
+def test_the_stamp_is_now_in_utc(db):
     before = datetime.now(UTC).replace(microsecond=0)
-    text = stamp()
+    with Store.open(db) as store:       # the store's own clock
+        s = sample()
+        store.add_survey(s)
+        store.set_value(str(s.survey_id), "storeys[0].readings[0].offset_mm", 2.5)
+        texts = [c.at for c in store.change_log(str(s.survey_id))]
     after = datetime.now(UTC)
-    assert re.fullmatch(r"\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}\+00:00", text)
-    assert before <= datetime.fromisoformat(text) <= after
+    for text in texts:
+        assert re.fullmatch(r"\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}\+00:00", text)
+        assert before <= datetime.fromisoformat(text) <= after
 
 
 _STOREY = st.one_of(st.text(alphabet="abc{}:,", max_size=6), st.text(max_size=6))

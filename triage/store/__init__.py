@@ -32,12 +32,17 @@ process moved the survey on, the JSON is reloaded under the write lock and the e
 that. One `Store` per thread.
 
 Modules: `connect` (checked opening, pragmas, transactions, one-line errors), `schema`
-(tables, version, migrations), `edits` (paths, applying an edit, partial validation), `store`
-(the `Store`), `backup` (consistent copies), `merge` (gathering databases), `area` (the
-one-row-per-building summary), `paths` (the default database).
+(tables, version, migrations), `edits` (paths, applying an edit, partial validation); the
+`Store` in layers, one concern each: `core` (connection, write transaction, time stamp, who),
+`reads`, `assessments`, `writes` (new surveys, edits), `history` (change log, undo, hide),
+`store` (opening, reports, settings, backup); `rows` (the records handed out), `reader` (the
+`SurveyReader` protocol the reading commands use), `backup` (consistent copies), `merge`
+(gathering databases), `area` (the one-row-per-building summary), `paths` (the default
+database).
 """
 
 from .connect import StoreError, SurveyConflict
+from .core import default_who
 from .edits import EditRefused
 from .paths import default_db_path
 from .rows import Change, SurveyRow
@@ -45,4 +50,4 @@ from .schema import SCHEMA_VERSION
 from .store import Store
 
 __all__ = ["SCHEMA_VERSION", "Change", "EditRefused", "Store", "StoreError", "SurveyConflict",
-           "SurveyRow", "default_db_path"]
+           "SurveyRow", "default_db_path", "default_who"]

@@ -11,7 +11,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:
-    from .store import Store
+    from .core import StoreCore
 
 
 @dataclass(frozen=True)
@@ -59,7 +59,7 @@ WHERE c.conflict_of IS NOT NULL AND c.hidden = 0 AND o.hidden = 0
 """
 
 
-def building_rows(store: Store) -> list[BuildingRow]:
+def building_rows(store: StoreCore) -> list[BuildingRow]:
     """One row per building id: its latest visible survey (by inspection time, UTC)."""
     conflicted = {r[0] for r in store.conn.execute(_IN_CONFLICT)}
     out = []

@@ -46,7 +46,7 @@ class TriageApp(App[None]):
         super().__init__()
         self.db_path = Path(db_path)
         self.data: Any = None  # triage.ui.data.FieldData, once the database is open
-        self.verdicts: Any = None  # triage.ui.data.VerdictThread
+        self.verdicts: Any = None  # triage.ui.verdicts.VerdictThread
         self.clock = clock
         self.blink = blink
         self.open_survey = open_survey
@@ -91,7 +91,9 @@ class TriageApp(App[None]):
 
     def database_ready(self) -> None:
         """Open the database on the UI thread and fill the first screen."""
-        from triage.ui.data import FieldData, Refused, VerdictThread, default_who
+        from triage.store import default_who
+        from triage.ui.data import FieldData, Refused
+        from triage.ui.verdicts import VerdictThread
 
         try:
             self.data = FieldData(self.db_path, clock=self.clock)

@@ -1,23 +1,19 @@
-"""The one place the screens talk to the store, the engine and the report writer.
+"""The one place the screens talk to the store: `FieldData`, the facade over `triage.store`.
 
 Screens never write SQL and never open the database themselves: they call `FieldData`, which
 wraps `triage.store.Store`. Every edit is one durable transaction in the store; a value the
 store (or the survey model behind it) refuses raises `Refused` with the rule in one line, and
 nothing is written.
 
-A `sqlite3` connection belongs to the thread that opened it, so work done in a thread worker
-(the verdict, the report) opens its own short-lived store with `worker_store`.
+Beside it: `triage.ui.verdicts` (the verdict and report workers, each thread with its own
+store) and `triage.ui.choices` (what the field forms offer to pick from).
 """
 
 from __future__ import annotations
 
-import contextlib
-import getpass
 import re
 import uuid
-from collections.abc import Callable, Iterator
-from contextlib import contextmanager
-from dataclasses import dataclass
+from collections.abc import Callable
 from datetime import datetime
 from pathlib import Path
 from typing import Any
@@ -40,46 +36,11 @@ def rule_of(message: str) -> str:
     return message
 
 
-@dataclass(frozen=True)
-class Verdict:
-    """A survey as stored at one revision and its assessment, made in a worker thread."""
-
-    survey: Survey
-    assessment: Any  # triage.assess.Assessment (imported in the worker)
-    revision: int
-
-
 def now_local(clock: Clock | None = None) -> datetime:
     """The time now, with the laptop's offset (or the test clock's)."""
     if clock is not None:
         return clock()
     return datetime.now().astimezone().replace(microsecond=0)
-
-
-def default_who() -> str:
-    """Who edits when no inspector is known yet: the login name."""
-    try:
-        return getpass.getuser()
-    except Exception:  # no login name in some containers
-        return "inspector"
-
-
-def storey_labels(above: int, below: int) -> list[str]:
-    """Storey labels bottom to top: B2, B1 below ground, then G, 1, 2, … above."""
-    labels = [f"B{i}" for i in range(below, 0, -1)]
-    labels += ["G" if i == 0 else str(i) for i in range(above)]
-    return labels
-
-
-def next_label(existing: list[str]) -> str:
-    """A label for a storey added on top: one more than the highest number, or G first."""
-    if "G" not in existing and not any(x.isdigit() for x in existing):
-        return "G"
-    nums = [int(x) for x in existing if x.isdigit()]
-    n = (max(nums) + 1) if nums else 1
-    while str(n) in existing:
-        n += 1
-    return str(n)
 
 
 class FieldData:
@@ -225,125 +186,3 @@ class FieldData:
         """Note that a report of this revision was written."""
         self.store.record_report(survey_id, revision, path, fingerprint)
 
-
-@contextmanager
-def worker_store(db_path: Path) -> Iterator[Store]:
-    """A store opened and closed in the calling (worker) thread."""
-    # The app checked the file when it opened it; a worker's store skips the whole-file read.
-    st = Store.open(Path(db_path), create=False, refresh=False, check=False)
-    try:
-        yield st
-    finally:
-        st.close()
-
-
-def verdict_of(st: Store, survey_id: str) -> Verdict:
-    """Assess the stored survey at its current revision and store the assessment."""
-    from triage.assess import assess
-
-    revision = int(st.revision(survey_id))
-    survey = st.load_survey(survey_id)
-    assessment = assess(survey)
-    st.save_assessment(survey_id, revision, assessment)
-    return Verdict(survey, assessment, revision)
-
-
-class VerdictThread:
-    """One background thread that assesses, with its own store kept open between runs.
-
-    Opening and closing a connection for every verdict costs more than the assessment of a
-    small survey; this thread keeps one. `submit` returns a future.
-    """
-
-    def __init__(self, db_path: Path) -> None:
-        from concurrent.futures import ThreadPoolExecutor
-
-        self.db_path = Path(db_path)
-        self.pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="verdict")
-        self._store: Store | None = None
-
-    def _run(self, survey_id: str) -> Verdict:
-        if self._store is None:
-            self._store = Store.open(self.db_path, create=False, refresh=False)
-        return verdict_of(self._store, survey_id)
-
-    def submit(self, survey_id: str) -> Any:
-        """Assess a survey in the thread; a concurrent.futures.Future of its `Verdict`."""
-        return self.pool.submit(self._run, survey_id)
-
-    def close(self) -> None:
-        """Close the thread's store and end the thread."""
-        def shut() -> None:
-            if self._store is not None:
-                self._store.close()
-                self._store = None
-        with contextlib.suppress(Exception):  # the thread may be gone already
-            self.pool.submit(shut).result(timeout=5)
-        self.pool.shutdown(wait=False)
-
-
-# --- the field forms (forms/): what to look for, per storey systems -------------------------
-
-
-def _forms(systems: tuple[str, ...]) -> list[Any]:
-    from triage.forms import FormError, load_form
-
-    out = []
-    for s in dict.fromkeys(systems):
-        try:
-            out.append(load_form(s))
-        except (FormError, KeyError, OSError):
-            continue
-    return out
-
-
-def member_kinds(systems: tuple[str, ...]) -> list[str]:
-    """Member kinds the forms of these systems count first, then every other kind."""
-    from triage.model import MEMBER_KINDS
-
-    kinds: list[str] = []
-    for f in _forms(systems):
-        kinds += [k for k in f.member_kinds if k not in kinds]
-    return kinds + [k for k in MEMBER_KINDS if k not in kinds]
-
-
-def sign_choices(systems: tuple[str, ...], kind: str) -> list[tuple[str, str]]:
-    """(sign key, where to look) for a member kind, from the forms of the storey's systems.
-
-    Signs of the sign table for that kind that no form lists come after, with their
-    description as the hint.
-    """
-    from triage import standards
-
-    out: dict[str, str] = {}
-    for f in _forms(systems):
-        try:
-            for key, hint in f.signs_for(kind):
-                out.setdefault(key, hint)
-        except KeyError:
-            continue
-    for key, sign in standards.load().signs.items():
-        if kind in sign.kinds and key not in out:
-            out[key] = sign.description
-    return list(out.items())
-
-
-def hazard_choices(systems: tuple[str, ...]) -> list[tuple[str, str, str]]:
-    """(group, hazard key, where to look) from the forms' check lists, in walking order."""
-    from triage import standards
-
-    seen: dict[str, tuple[str, str, str]] = {}
-    for f in _forms(systems):
-        for group, items in f.hazard_groups:
-            for key, hint in items:
-                seen.setdefault(key, (group, key, hint))
-    for key, h in standards.load().hazards.items():
-        seen.setdefault(key, (h.group, key, h.description))
-    return list(seen.values())
-
-
-def class_texts(systems: tuple[str, ...]) -> dict[str, str]:
-    """What each damage class looks like, in the first form's words."""
-    for f in _forms(systems):
-        return dict(f.class_text)
-    return {}

@@ -11,7 +11,8 @@ from textual.screen import Screen
 from textual.widgets import Button, Footer, Input, Static
 
 from triage import standards
-from triage.ui.data import Refused, rule_of, storey_labels
+from triage.ui.choices import storey_labels
+from triage.ui.data import Refused, rule_of
 from triage.ui.messages import FieldAccepted
 from triage.ui.widgets.field import Choice, Field
 

@@ -20,8 +20,9 @@ from textual.screen import Screen
 from textual.widgets import Button, Footer, Static
 from textual.worker import Worker, WorkerState
 
-from triage.ui.data import Refused, rule_of, verdict_of, worker_store
+from triage.ui.data import Refused, rule_of
 from triage.ui.messages import CAUTION_SHORT, UNSIGNED, FieldAccepted
+from triage.ui.verdicts import verdict_of, worker_store
 from triage.ui.widgets.field import Field
 
 

@@ -19,8 +19,10 @@ from textual.widgets import Footer, OptionList, Static, TabbedContent, TabPane
 from textual.widgets.option_list import Option
 from textual.worker import Worker, WorkerState
 
-from triage.ui.data import Refused, Verdict, next_label, rule_of
+from triage.ui.choices import next_label
+from triage.ui.data import Refused, rule_of
 from triage.ui.messages import FieldAccepted
+from triage.ui.verdicts import Verdict
 from triage.ui.widgets.field import Field, set_text
 from triage.ui.widgets.hazards import HazardsPane
 from triage.ui.widgets.members import MembersPane

@@ -7,7 +7,7 @@ from typing import Any
 from textual.app import ComposeResult
 
 from triage.assess import tier_words
-from triage.ui.data import hazard_choices
+from triage.ui.choices import hazard_choices
 from triage.ui.widgets.field import Choice, Field, set_text
 from triage.ui.widgets.pane import ItemPane, values_of
 

@@ -9,7 +9,7 @@ from textual.containers import Horizontal
 from textual.widgets import Label, SelectionList, Static
 
 from triage.standards import CLASSES
-from triage.ui.data import class_texts, member_kinds, sign_choices
+from triage.ui.choices import class_texts, member_kinds, sign_choices
 from triage.ui.messages import FieldAccepted
 from triage.ui.widgets.field import Choice, Field, _Saving, set_text
 from triage.ui.widgets.pane import ItemPane, values_of

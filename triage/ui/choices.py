@@ -1,0 +1,93 @@
+"""What the screens offer to pick from: storey labels, and what the field forms list.
+
+From the forms (forms/) of a storey's systems: the member kinds, damage signs, hazards and
+class descriptions (the lists completed from the standard tables).
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+
+def storey_labels(above: int, below: int) -> list[str]:
+    """Storey labels bottom to top: B2, B1 below ground, then G, 1, 2, … above."""
+    labels = [f"B{i}" for i in range(below, 0, -1)]
+    labels += ["G" if i == 0 else str(i) for i in range(above)]
+    return labels
+
+
+def next_label(existing: list[str]) -> str:
+    """A label for a storey added on top: one more than the highest number, or G first."""
+    if "G" not in existing and not any(x.isdigit() for x in existing):
+        return "G"
+    nums = [int(x) for x in existing if x.isdigit()]
+    n = (max(nums) + 1) if nums else 1
+    while str(n) in existing:
+        n += 1
+    return str(n)
+
+
+
+def _forms(systems: tuple[str, ...]) -> list[Any]:
+    from triage.forms import FormError, load_form
+
+    out = []
+    for s in dict.fromkeys(systems):
+        try:
+            out.append(load_form(s))
+        except (FormError, KeyError, OSError):
+            continue
+    return out
+
+
+def member_kinds(systems: tuple[str, ...]) -> list[str]:
+    """Member kinds the forms of these systems count first, then every other kind."""
+    from triage.model import MEMBER_KINDS
+
+    kinds: list[str] = []
+    for f in _forms(systems):
+        kinds += [k for k in f.member_kinds if k not in kinds]
+    return kinds + [k for k in MEMBER_KINDS if k not in kinds]
+
+
+def sign_choices(systems: tuple[str, ...], kind: str) -> list[tuple[str, str]]:
+    """(sign key, where to look) for a member kind, from the forms of the storey's systems.
+
+    Signs of the sign table for that kind that no form lists come after, with their
+    description as the hint.
+    """
+    from triage import standards
+
+    out: dict[str, str] = {}
+    for f in _forms(systems):
+        try:
+            for key, hint in f.signs_for(kind):
+                out.setdefault(key, hint)
+        except KeyError:
+            continue
+    for key, sign in standards.load().signs.items():
+        if kind in sign.kinds and key not in out:
+            out[key] = sign.description
+    return list(out.items())
+
+
+def hazard_choices(systems: tuple[str, ...]) -> list[tuple[str, str, str]]:
+    """(group, hazard key, where to look) from the forms' check lists, in walking order."""
+    from triage import standards
+
+    seen: dict[str, tuple[str, str, str]] = {}
+    for f in _forms(systems):
+        for group, items in f.hazard_groups:
+            for key, hint in items:
+                seen.setdefault(key, (group, key, hint))
+    for key, h in standards.load().hazards.items():
+        seen.setdefault(key, (h.group, key, h.description))
+    return list(seen.values())
+
+
+def class_texts(systems: tuple[str, ...]) -> dict[str, str]:
+    """What each damage class looks like, in the first form's words."""
+    for f in _forms(systems):
+        return dict(f.class_text)
+    return {}
+

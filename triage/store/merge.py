@@ -272,8 +272,6 @@ def _copy_of_their_line(c: sqlite3.Connection, sid: str, theirs: set[str]) -> st
 def _forward_copy(c: sqlite3.Connection, cid: str, sid: str, src_doc: str, my_doc: str,
                   source: str, source_db: str | None) -> str:
     """Bring the copy `cid` to the source's version; hide it when that is the target's own."""
-    from .store import new_uid
-
     doc = json.loads(src_doc)
     doc["id"] = cid
     cols = [x for x in _COPIED if x not in ("doc", "assessed_revision", "hidden")]
@@ -295,7 +293,7 @@ def _forward_copy(c: sqlite3.Connection, cid: str, sid: str, src_doc: str, my_do
             c.execute("UPDATE main.surveys SET hidden = 1 WHERE id = ?", (cid,))
             c.execute("INSERT INTO main.changes (uid, survey_id, revision, op, path, old, new, "
                       "at, who) VALUES (?, ?, ?, 'hide', 'hidden', 'false', 'true', ?, "
-                      "'merge')", (new_uid(), cid, row[0],
+                      "'merge')", (str(uuid.uuid4()), cid, row[0],
                                    datetime.now(UTC).isoformat(timespec="milliseconds")))
     return "updated"
 

@@ -30,7 +30,8 @@ def brute_force(survey, samples: int = 10_000, seed: int = 1) -> dict[str, float
     rng = np.random.default_rng(seed)
     level = np.zeros(samples, dtype=int)
     figs = {}
-    from triage.assess.drift import figures, reading_value
+    from triage.assess.drift import figures
+    from triage.assess.spots import storey_spots
     for d in ("x", "y"):
         figs[d] = figures(getattr(survey.building.system, d), std, a)
     rc = dmg.rc_dirs(survey, std)
@@ -38,11 +39,10 @@ def brute_force(survey, samples: int = 10_000, seed: int = 1) -> dict[str, float
         for d in ("x", "y"):
             drift = np.zeros(samples)
             f = figs[d]
-            for ri, r in enumerate(st.readings):
-                if r.dir != d:
+            for v in storey_spots(st.readings, si, st.label, a)[0]:
+                if v.dir != d:
                     continue
-                v = reading_value(r, si, ri, a)
-                drift = np.maximum(drift, np.abs(v.ratio + v.sd * rng.standard_normal(samples)))
+                drift = np.maximum(drift, np.abs(v.value + v.u * rng.standard_normal(samples)))
             level = np.maximum(level, np.searchsorted([f.IO, f.LS, f.CP], drift, side="left"))
         classes = []
         for m in st.members:

@@ -17,7 +17,7 @@ from triage.model import Survey, survey_warnings
 from triage.standards import LEVELS, Assumptions, Grade, Standards, load
 
 from . import damage as dmg
-from .drift import ReadingValue, figures, level_index, pct, storey_readings
+from .drift import figures, level_index, pct
 from .repair import repairability
 from .result import (
     FORMAT,
@@ -33,6 +33,7 @@ from .result import (
     PerDir,
     StoreyResult,
 )
+from .spots import Spot, spots_of_survey
 from .stats import sig6, sig6_opt
 from .uncertainty import SAMPLES, MemberModel, drift_cdfs, member_cdf
 
@@ -110,25 +111,27 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
     candidates: list[_Candidate] = []
     work: list[_StoreyWork] = []
 
-    # --- drift -----------------------------------------------------------------------------
-    values = storey_readings(survey, a)
-    by_sd: dict[tuple[int, str], list[ReadingValue]] = {}
+    # --- drift: readings to spots --------------------------------------------------------
+    found = spots_of_survey(survey, a)
+    values = list(found.spots)
+    notes += found.notes
+    by_sd: dict[tuple[int, str], list[Spot]] = {}
     for v in values:
         by_sd.setdefault((v.storey, v.dir), []).append(v)
-        if v.defaulted:
-            r = survey.storeys[v.storey].readings[v.index]
-            at = f" ({v.where})" if v.where else ""
-            if r.by_tilt:
-                defaulted.append(f"storey {survey.storeys[v.storey].label}, {v.dir}, reading "
-                                 f"{v.index + 1}{at}: sd_deg {a.sd_tilt_deg:g}° (instrument "
-                                 "default, common practice)")
-            else:
-                defaulted.append(f"storey {survey.storeys[v.storey].label}, {v.dir}, reading "
-                                 f"{v.index + 1}{at}: sd_mm {a.sd_offset_mm:g} mm (instrument "
-                                 "default, common practice)")
+    for st in survey.storeys:
+        for ri, r in enumerate(st.readings):
+            at = f" ({r.where})" if r.where else ""
+            head = f"storey {st.label}, {r.dir}, reading {ri + 1}{at}"
+            if r.by_tilt and r.sd_deg is None:
+                defaulted.append(f"{head}: sd_deg {a.sd_tilt_deg:g}° (instrument default, "
+                                 "common practice)")
+            elif not r.by_tilt and r.sd_mm is None:
+                defaulted.append(f"{head}: sd_mm {a.sd_offset_mm:g} mm (instrument default, "
+                                 "common practice)")
     group_keys = list(by_sd)
     gindex = {k: i for i, k in enumerate(group_keys)}
-    cdf_drift = drift_cdfs(values, [gindex[(v.storey, v.dir)] for v in values], len(group_keys),
+    cdf_drift = drift_cdfs([v.value for v in values], [v.u for v in values],
+                           [gindex[(v.storey, v.dir)] for v in values], len(group_keys),
                            [figs[v.dir] for v in values])
 
     member_cdfs: list[np.ndarray] = []
@@ -137,21 +140,21 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
         w = _StoreyWork(label=st.label)
         for d in ("x", "y"):
             vals = by_sd.get((si, d), [])
-            w.nread[d] = len(vals)
+            w.nread[d] = sum(len(v.readings) for v in vals)
             if not vals:
                 w.drift[d] = w.mean[d] = w.sd[d] = None
                 w.drift_level[d] = None
                 continue
-            top = max(vals, key=lambda v: abs(v.ratio))
-            w.drift[d] = abs(top.ratio)
-            w.mean[d] = sum(abs(v.ratio) for v in vals) / len(vals)
-            w.sd[d] = top.sd
-            lv = level_index(abs(top.ratio), figs[d])
+            top = max(vals, key=lambda v: abs(v.value))
+            w.drift[d] = abs(top.value)
+            w.mean[d] = sum(abs(v.value) for v in vals) / len(vals)
+            w.sd[d] = top.u
+            lv = level_index(abs(top.value), figs[d])
             w.drift_level[d] = lv
             candidates.append(_Candidate(lv, si, f"drift-{d}", d,
-                                         _drift_reason(st.label, d, abs(top.ratio), figs[d], lv)))
-            if abs(top.ratio) <= a.plumbness_band and not any(v.has_baseline for v in vals):
-                notes.append(f"storey {st.label}, {d}: {pct(abs(top.ratio))} lies within the "
+                                         _drift_reason(st.label, d, abs(top.value), figs[d], lv)))
+            if abs(top.value) <= a.plumbness_band and not any(v.has_baseline for v in vals):
+                notes.append(f"storey {st.label}, {d}: {pct(abs(top.value))} lies within the "
                              f"as-built plumbness band ({pct(a.plumbness_band)})")
 
         # --- members: class, eta, R, grade, floor -------------------------------------------
@@ -363,7 +366,7 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
             members=_MEMBERS.validate_python(w.members))
         for w, st in zip(work, survey.storeys, strict=True))
 
-    largest = max((abs(v.ratio) for v in values), default=None)
+    largest = max((abs(v.value) for v in values), default=None)
     if largest is None:
         notes.append("repairability: no residual drift measured, so no probability is given")
     return Assessment(
@@ -380,13 +383,13 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
 
 
 def _measure_next(survey: Survey, work: list[_StoreyWork],
-                  by_sd: dict[tuple[int, str], list[ReadingValue]],
+                  by_sd: dict[tuple[int, str], list[Spot]],
                   figs: dict[str, Figures]) -> MeasureNext | None:
     """The spot where one more reading helps most.
 
     First an above-grade, accessible storey direction with no reading at all (lowest first);
-    else the reading nearest, in units of its own uncertainty, a level figure that it could
-    cross to change its storey's level (a figure above the other readings of that storey and
+    else the spot nearest, in units of its own uncertainty, a level figure that it could
+    cross to change its storey's level (a figure above the other spots of that storey and
     direction).
     """
     for w, st in zip(work, survey.storeys, strict=True):
@@ -402,18 +405,18 @@ def _measure_next(survey: Survey, work: list[_StoreyWork],
     for (si, d), vals in by_sd.items():
         f = figs[d]
         for v in vals:
-            others = max((abs(o.ratio) for o in vals if o is not v), default=0.0)
+            others = max((abs(o.value) for o in vals if o is not v), default=0.0)
             for name in ("IO", "LS", "CP"):
                 t = getattr(f, name)
                 if t <= others:
                     continue
-                z = abs(t - abs(v.ratio)) / v.sd
-                key = (round(z, 9), si, 0 if d == "x" else 1, v.index)
+                z = abs(t - abs(v.value)) / v.u
+                key = (round(z, 9), si, 0 if d == "x" else 1, v.readings[0])
                 if best is None or key < best:
                     best = key
-                    side = "under" if abs(v.ratio) <= t else "over"
+                    side = "under" if abs(v.value) <= t else "over"
                     pick = MeasureNext(
                         storey=survey.storeys[si].label, dir=d,
-                        why=f"{pct(abs(v.ratio))} is {z:.1f} sd {side} the {name} value "
+                        why=f"{pct(abs(v.value))} is {z:.1f} sd {side} the {name} value "
                             f"{pct(t)}", where=v.where)
     return pick

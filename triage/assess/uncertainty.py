@@ -1,7 +1,7 @@
 """What the stated measurement uncertainties alone allow: level distributions per component.
 
 A *component* is a part of the survey whose level is independent of every other part's:
-- the residual drift of one storey in one direction (its readings, independent normals):
+- the residual drift of one storey in one direction (its spots, independent normals):
   P(max_i |d_i| <= t) = prod_i [Phi((t - mu_i)/s_i) - Phi((-t - mu_i)/s_i)], exact;
 - the members of one storey (cracks shared by both directions of R and by the damage floor):
   exact enumeration of the groups whose class is in doubt when they are few, else Monte Carlo
@@ -21,7 +21,6 @@ from dataclasses import dataclass
 import numpy as np
 
 from .damage import EPS, CapacityTerms
-from .drift import ReadingValue
 from .result import Figures
 from .stats import norm_cdf
 
@@ -29,18 +28,20 @@ ENUMERATE_LIMIT = 4096
 SAMPLES = 40_000
 
 
-def drift_cdfs(values: Sequence[ReadingValue], groups: Sequence[int], n_groups: int,
-               figs: Sequence[Figures]) -> np.ndarray:
+def drift_cdfs(values: Sequence[float], us: Sequence[float], groups: Sequence[int],
+               n_groups: int, figs: Sequence[Figures]) -> np.ndarray:
     """P(level <= L), L = IO, LS, CP, beyond-CP, for each drift group (shape (n_groups, 4)).
 
-    `groups[i]` is the group of reading i, `figs[i]` the figures of its direction's system.
+    `values[i]` and `us[i]` are spot i's signed drift ratio and standard uncertainty,
+    `groups[i]` its group (storey and direction), `figs[i]` the figures of its direction's
+    system. Spots are separate places, independent: the group's CDF is their product.
     """
     out = np.ones((n_groups, 4))
     if not values:
         return out
     # P(|d| <= t) depends on |mu| only; using |mu| keeps the tail term small (no cancellation).
-    mu = np.abs(np.array([v.ratio for v in values]))[:, None]
-    sd = np.array([v.sd for v in values])[:, None]
+    mu = np.abs(np.array(values, dtype=float))[:, None]
+    sd = np.array(us, dtype=float)[:, None]
     t = np.array([[f.IO, f.LS, f.CP] for f in figs])
     p = norm_cdf((t - mu) / sd) - norm_cdf((-t - mu) / sd)
     p = np.clip(p, 0.0, 1.0)

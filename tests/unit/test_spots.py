@@ -102,6 +102,20 @@ def test_baseline_uncertainty_is_added_once_per_spot():
     assert sp.has_baseline
 
 
+def test_baseline_sd_given():
+    # Offset 6 mm, baseline 2 mm with baseline_sd_mm 3, sd 1 over 2000:
+    # value 4 mm = 0.002; u = sqrt(1 + 9) = 3.162278 mm = 0.00158114.
+    sp = spots([reading("x", 6.0, baseline_mm=2.0, baseline_sd_mm=3.0, where="B")]).spots[0]
+    assert sp.value == pytest.approx(0.002)
+    assert sp.u == pytest.approx(0.00158114, rel=1e-5)
+    # Tilt 0.5 deg, baseline -0.1 deg with baseline_sd_deg 0.2, sd 0.05: angle 0.6 deg,
+    # 1/cos^2(0.6 deg) = 1.00010967; u = radians(sqrt(0.05^2 + 0.2^2)) * 1.00010967
+    # = radians(0.206155) * 1.00010967 = 0.00359808 * 1.00010967 = 0.00359848.
+    sp = spots([tilt("x", 0.5, baseline_deg=-0.1, baseline_sd_deg=0.2, where="B")]).spots[0]
+    assert sp.value == pytest.approx(math.tan(math.radians(0.6)), rel=1e-12)
+    assert sp.u == pytest.approx(0.00359848, rel=1e-5)
+
+
 def test_no_baseline_adds_nothing():
     sp = spots([reading("x", 5.0, where="B")]).spots[0]
     assert (sp.u_baseline, sp.u, sp.has_baseline) == (0.0, pytest.approx(0.0005), False)

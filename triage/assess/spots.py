@@ -87,8 +87,7 @@ def reading_value(r: Reading, index: int, a: Assumptions) -> ReadingValue:
     baseline_sd_mm / gauge. Tilt: ratio = tan(tilt - baseline); d ratio / d angle =
     1 / cos^2(tilt - baseline), so u = radians(sd_deg) / cos^2 and likewise for the baseline.
     """
-    base_sd_mm = getattr(r, "baseline_sd_mm", None)
-    base_sd_deg = getattr(r, "baseline_sd_deg", None)
+    base_sd_mm, base_sd_deg = r.baseline_sd_mm, r.baseline_sd_deg
     if r.tilt_deg is not None:
         base = r.baseline_deg
         angle = math.radians(r.tilt_deg - (base or 0.0))

@@ -7,7 +7,7 @@ import sys
 
 import pytest
 
-FORBIDDEN = ("textual", "rich", "reportlab", "sqlite_utils")
+FORBIDDEN = ("textual", "rich", "reportlab", "sqlite_utils", "psycopg")
 
 
 @pytest.mark.parametrize("module", ["triage.model", "triage.standards", "triage.assess",

@@ -18,8 +18,8 @@ from collections.abc import Sequence
 from .errors import UserError
 
 # Command modules, in the order `triage --help` lists them.
-MODULES = ("assess", "surveys", "keys", "report", "verify", "compare", "merge", "summary", "form",
-           "screens")
+MODULES = ("assess", "surveys", "keys", "report", "verify", "compare", "merge", "summary",
+           "centre", "form", "screens")
 
 
 class _Parser(argparse.ArgumentParser):

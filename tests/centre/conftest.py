@@ -1,0 +1,193 @@
+"""A real throwaway PostgreSQL cluster for the centre tests (no mock), and laptops to sync.
+
+The cluster is started once per session (initdb in a temporary folder, 127.0.0.1 on a free
+port; as root the server runs as the `postgres` system user) and stopped after. Each test gets
+its own database, initialised by `triage centre init`. Logins: `admin` (the cluster's
+superuser), `field1`..`field10` in triage_field, `reader` in triage_read, each with a password
+of its own (PASSWORD below, different per login).
+"""
+
+from __future__ import annotations
+
+import atexit
+import itertools
+import json
+import os
+import shutil
+import subprocess
+import sys
+import tempfile
+import uuid
+from collections.abc import Callable, Iterator
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+import pytest
+
+from triage.centre.cluster import Cluster, find_bindir
+from triage.model import canonical_json, parse_survey_text
+from triage.resources import samples_dir
+from triage.store import Store
+from triage.store.store import import_uid
+
+ROOT = Path(__file__).resolve().parents[2]
+SECRET = "Sw0rdf1sh-kowhai-7731"   # a distinctive part of every test password
+
+
+def password(login: str) -> str:
+    return f"{SECRET}-{login}"
+
+
+@pytest.fixture(scope="session")
+def pg() -> Iterator[Cluster]:
+    if find_bindir() is None:   # CI installs PostgreSQL (.ci/run); never skipped silently
+        pytest.fail("PostgreSQL server binaries (initdb) not found: install postgresql "
+                    "(.ci/run does)", pytrace=False)
+    # fsync off: these tests kill clients, never the server, and need no durability.
+    with Cluster.start({"fsync": "off", "synchronous_commit": "off",
+                        "full_page_writes": "off"}) as cluster:
+        cluster.createdb("template_centre")
+        from triage.centre.schema import init
+
+        init(cluster.url("template_centre"))   # and the roles triage_field and triage_read
+        for i in range(1, 11):
+            cluster.sql(f"CREATE ROLE field{i} LOGIN PASSWORD '{password(f'field{i}')}' "
+                        "IN ROLE triage_field")
+        cluster.sql(f"CREATE ROLE reader LOGIN PASSWORD '{password('reader')}' "
+                    "IN ROLE triage_read")
+        cluster.sql(f"CREATE ROLE owner LOGIN CREATEROLE PASSWORD '{password('owner')}'")
+        yield cluster
+
+
+_names = itertools.count(1)
+
+
+@dataclass
+class Centre:
+    """One initialised database of the session's cluster."""
+
+    pg: Cluster
+    name: str
+
+    @property
+    def admin(self) -> str:
+        return self.pg.url(self.name)
+
+    def url(self, login: str) -> str:
+        return self.pg.url(self.name, login, password(login))
+
+    @property
+    def field(self) -> str:
+        return self.url("field1")
+
+    @property
+    def reader(self) -> str:
+        return self.url("reader")
+
+    def sql(self, statement: str) -> str:
+        return self.pg.sql(statement, self.name)
+
+    def rows(self, statement: str) -> list[tuple[Any, ...]]:
+        import psycopg
+
+        with psycopg.connect(self.admin) as c:
+            return [tuple(r) for r in c.execute(statement)]  # type: ignore[arg-type]
+
+
+@pytest.fixture
+def centre(pg: Cluster) -> Centre:
+    """A database as `triage centre init` leaves it (a copy of one made so, for speed)."""
+    name = f"c{next(_names)}"
+    pg.sql(f"CREATE DATABASE {name} TEMPLATE template_centre "
+           "STRATEGY FILE_COPY")
+    return Centre(pg, name)
+
+
+def samples() -> list[str]:
+    """The demo surveys' texts."""
+    return [p.read_text(encoding="utf-8") for p in sorted(samples_dir().glob("*.json"))]
+
+
+_made: dict[tuple[int, str, str], tuple[Path, list[str]]] = {}
+_KEEP = Path(tempfile.mkdtemp(prefix="triage-laptops-"))
+atexit.register(shutil.rmtree, _KEEP, True)
+
+
+def laptop(path: Path, n: int = 8, seed: str = "", who: str = "Tess Tester") -> list[str]:
+    """`make_laptop`, copied from the first one made alike in this session (same db_id)."""
+    key = (n, seed, who)
+    if key in _made and _made[key][0].exists():
+        shutil.copyfile(_made[key][0], path)
+        return list(_made[key][1])
+    ids = make_laptop(path, n, seed, who)
+    keep = _KEEP / f"{len(_made)}.db"
+    shutil.copyfile(path, keep)
+    _made[key] = (keep, ids)
+    return ids
+
+
+def make_laptop(path: Path, n: int = 8, seed: str = "", who: str = "Tess Tester") -> list[str]:
+    """A laptop database of `n` demo-size surveys (the samples, then copies with new ids).
+
+    The samples go through `add_survey` (and the engine); each copy is a sample's rows with
+    its ids and building name changed and its assessment carried over, so hundreds take well
+    under a second. The same `seed` gives the same ids, JSON and import change ids on every
+    laptop (as when two laptops import the same files). Returns the survey ids.
+    """
+    st = Store.open(path, who=who)
+    base = []
+    for text in samples()[:n]:
+        s = parse_survey_text(text)
+        st.add_survey(s, source="sample")
+        base.append(str(s.survey_id))
+    c = st.conn
+    names = [r[1] for r in c.execute("PRAGMA table_info(surveys)")]
+    ids = list(base[:n])
+    c.execute("BEGIN IMMEDIATE")
+    for i in range(len(base), n):
+        src = base[i % len(base)]
+        row = dict(zip(names, c.execute("SELECT * FROM surveys WHERE id = ?", (src,)).fetchone(),
+                       strict=True))
+        doc = json.loads(row["doc"])
+        sid = str(uuid.uuid5(uuid.NAMESPACE_URL, f"laptop:{seed}:{i}"))
+        doc["id"] = sid
+        doc["building"]["id"] = str(uuid.uuid5(uuid.NAMESPACE_URL, f"building:{seed}:{i}"))
+        doc["building"]["name"] = f"{doc['building']['name']} ({seed}{i})"
+        text = canonical_json(doc)
+        row.update(id=sid, doc=text, building_id=doc["building"]["id"],
+                   building=doc["building"]["name"])
+        c.execute(f"INSERT INTO surveys ({', '.join(names)}) VALUES "
+                  f"({', '.join('?' for _ in names)})", [row[k] for k in names])
+        ch = c.execute("SELECT op, at, who FROM changes WHERE survey_id = ?", (src,)).fetchone()
+        c.execute("INSERT INTO changes (uid, survey_id, revision, op, path, old, new, at, who) "
+                  "VALUES (?, ?, 1, ?, '', NULL, ?, ?, ?)",
+                  (import_uid(sid, text), sid, ch[0], text, ch[1], ch[2]))
+        a = json.loads(c.execute("SELECT json FROM assessments WHERE survey_id = ?",
+                                 (src,)).fetchone()[0])
+        a.update(survey=sid, building=doc["building"]["id"])
+        c.execute("INSERT INTO assessments (survey_id, revision, json) VALUES (?, 1, ?)",
+                  (sid, json.dumps(a)))
+        ids.append(sid)
+    c.execute("COMMIT")
+    st.close()
+    return ids
+
+
+def triage(*argv: str, env: dict[str, str] | None = None,
+           timeout: float = 120) -> subprocess.CompletedProcess[str]:
+    """The `triage` command in a process of its own."""
+    return subprocess.run([sys.executable, "-m", "triage", *argv], capture_output=True,
+                          text=True, cwd=ROOT, timeout=timeout,
+                          env={**os.environ, **(env or {})}, check=False)
+
+
+@pytest.fixture
+def cli(capsys: pytest.CaptureFixture[str]) -> Callable[..., tuple[int, str, str]]:
+    from triage.cli import main
+
+    def run(*argv: str) -> tuple[int, str, str]:
+        code = main(list(argv))
+        out, err = capsys.readouterr()
+        return code, out, err
+    return run

@@ -1,0 +1,146 @@
+"""`triage centre init`: versioned schema, two roles, append-only by the grants, the map view."""
+
+from __future__ import annotations
+
+import psycopg
+import pytest
+
+from tests.centre.conftest import Centre, laptop, password
+from triage.centre.schema import KEYS, SENT, TABLES, current_version
+from triage.centre.sync import sync
+from triage.store import Store
+
+DATA_TABLES = list(TABLES)
+
+
+def _synced(centre: Centre, tmp_path, n: int = 8) -> None:
+    laptop(tmp_path / "lap.db", n)
+    with Store.open(tmp_path / "lap.db") as st:
+        assert sync(st, centre.field).versions == n
+
+
+def test_init_again_is_harmless_and_says_so(centre, cli, tmp_path):
+    _synced(centre, tmp_path)
+    before = centre.rows("SELECT count(*) FROM triage.versions")
+    code, out, err = cli("centre", "init", centre.admin)
+    assert code == 0, err
+    assert "schema already current" in out and "roles triage_field and triage_read present" in out
+    assert centre.rows("SELECT version FROM triage.schema_version") == [(current_version(),)]
+    assert centre.rows("SELECT count(*) FROM triage.versions") == before == [(8,)]
+
+
+def test_a_fresh_database_gets_the_schema_and_a_newer_one_is_refused(pg, cli):
+    pg.createdb("fresh")
+    code, out, err = cli("centre", "init", pg.url("fresh"))
+    assert code == 0, err
+    assert f"schema upgraded to version {current_version()}" in out
+    assert pg.sql("SELECT count(*) FROM triage.schema_version", "fresh") == "1"
+    pg.sql("INSERT INTO triage.schema_version (version, what) VALUES (99, 'future')", "fresh")
+    code, out, err = cli("centre", "init", pg.url("fresh"))
+    assert code == 1 and out == ""
+    assert "newer than this triage knows" in err and len(err.splitlines()) == 1
+
+
+def _refused(url: str, statement: str) -> str:
+    with (psycopg.connect(url, autocommit=True) as c,
+          pytest.raises(psycopg.errors.InsufficientPrivilege) as got):
+        c.execute(statement)  # type: ignore[arg-type]
+    return str(got.value)
+
+
+def test_the_field_role_can_neither_update_delete_nor_truncate(centre, tmp_path):
+    _synced(centre, tmp_path)
+    for table in [*DATA_TABLES, "schema_version"]:
+        col = "version" if table == "schema_version" else SENT[table][-1]
+        for statement in (f"UPDATE triage.{table} SET {col} = {col}",
+                          f"DELETE FROM triage.{table}",
+                          f"TRUNCATE triage.{table}"):
+            assert "permission denied" in _refused(centre.field, statement), statement
+    for table in DATA_TABLES:
+        # Only the key columns are readable; never the survey or the blob itself.
+        keys = ", ".join(KEYS[table])
+        with psycopg.connect(centre.field) as c:
+            c.execute(f"SELECT {keys} FROM triage.{table}")  # type: ignore[arg-type]
+        for other in (c for c in SENT[table] if c not in KEYS[table]):
+            assert "permission denied" in _refused(
+                centre.field, f"SELECT {other} FROM triage.{table}")
+    for view in ("survey_list", "buildings", "conflicts", "current_versions", "building_map"):
+        assert "permission denied" in _refused(centre.field, f"SELECT * FROM triage.{view}")
+    # Nothing changed by any of it.
+    assert centre.rows("SELECT count(*) FROM triage.versions") == [(8,)]
+
+
+def test_the_field_role_cannot_forge_what_the_server_records(centre):
+    statement = ("INSERT INTO triage.reports (survey_id, revision, at, who, origin, sent_by) "
+                 "VALUES ('x', 1, 'now', 'me', 'o', 'someone else')")
+    assert "permission denied" in _refused(centre.field, statement)
+
+
+def test_the_read_role_cannot_insert(centre, tmp_path):
+    _synced(centre, tmp_path)
+    for table in DATA_TABLES:
+        cols = SENT[table]
+        assert "permission denied" in _refused(
+            centre.reader, f"INSERT INTO triage.{table} ({', '.join(cols)}) SELECT "
+            f"{', '.join(cols)} FROM triage.{table} LIMIT 1")
+        col = cols[-1]
+        for statement in (f"UPDATE triage.{table} SET {col} = {col}",
+                          f"DELETE FROM triage.{table}", f"TRUNCATE triage.{table}"):
+            assert "permission denied" in _refused(centre.reader, statement)
+        with psycopg.connect(centre.reader) as c:
+            n = c.execute(f"SELECT count(*) FROM triage.{table}").fetchone()  # type: ignore
+            assert n is not None and (n[0] > 0 or table in ("reports", "photos"))
+    with psycopg.connect(centre.reader) as c:
+        assert c.execute("SELECT count(*) FROM triage.survey_list").fetchone() == (8,)
+    assert centre.rows("SELECT count(*) FROM triage.versions") == [(8,)]
+
+
+def test_a_login_in_no_role_is_told_in_one_line(centre, pg, tmp_path, cli):
+    pg.sql(f"CREATE ROLE stranger LOGIN PASSWORD '{password('stranger')}'")
+    laptop(tmp_path / "lap.db", 2)
+    code, out, err = cli("--db", str(tmp_path / "lap.db"), "sync", "--to",
+                         centre.url("stranger"))
+    assert code == 1 and out == ""
+    assert "may not use the triage schema" in err and len(err.splitlines()) == 1
+
+
+def test_the_map_view_is_a_postgis_layer_with_a_spatial_index(centre, tmp_path):
+    _synced(centre, tmp_path)
+    cols = dict(centre.rows("SELECT attname, format_type(atttypid, atttypmod) FROM "
+                            "pg_attribute WHERE attrelid = 'triage.building_map'::regclass "
+                            "AND attnum > 0"))
+    assert cols["geom"] == "geometry(Point,4326)"
+    for c in ("tier", "performance_level", "provisional", "conflict", "inspected_at",
+              "inspector"):
+        assert c in cols
+    idx = centre.rows("SELECT indexdef FROM pg_indexes WHERE tablename = 'building_map'")
+    assert any("USING gist (geom)" in r[0] for r in idx)
+    # A GIS finds it as a layer, and a box query uses the index.
+    assert centre.rows("SELECT type, srid FROM geometry_columns WHERE f_table_schema = "
+                       "'triage' AND f_table_name = 'building_map'") == [("POINT", 4326)]
+    rows = centre.rows("SELECT building, ST_X(geom), ST_Y(geom), lon, lat "
+                       "FROM triage.building_map")
+    assert len(rows) == 7   # eight surveys, two of them of one building (Mariner Court)
+    assert all(abs(x - lon) < 1e-9 and abs(y - lat) < 1e-9 for _, x, y, lon, lat in rows)
+    with psycopg.connect(centre.reader) as c:
+        c.execute("SET enable_seqscan = off")
+        plan = c.execute("EXPLAIN SELECT building FROM triage.building_map WHERE geom && "
+                         "ST_MakeEnvelope(174.1, -41.3, 174.2, -41.2, 4326)").fetchall()
+    assert any("building_map_geom" in r[0] for r in plan)
+
+
+def test_without_postgis_the_map_view_has_lat_lon(pg, tmp_path, cli):
+    # The database's owner may not create extensions: PostGIS stays off, init says why.
+    pg.sql("CREATE DATABASE plain OWNER owner")
+    code, out, err = cli("centre", "init", pg.url("plain", "owner", password("owner")))
+    assert code == 0, err
+    assert "with lat/lon" in out and "PostGIS" in err and password("owner") not in out + err
+    cols = {r for r in pg.sql("SELECT attname FROM pg_attribute WHERE attrelid = "
+                              "'triage.building_map'::regclass AND attnum > 0",
+                              "plain").split()}
+    assert {"lat", "lon", "tier", "conflict"} <= cols and "geom" not in cols
+    assert pg.sql("SELECT count(*) FROM pg_extension WHERE extname = 'postgis'", "plain") == "0"
+    laptop(tmp_path / "lap.db", 8)
+    with Store.open(tmp_path / "lap.db") as st:
+        sync(st, pg.url("plain", "field2", password("field2")))
+    assert pg.sql("SELECT count(*) FROM triage.building_map", "plain") == "7"

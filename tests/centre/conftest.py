@@ -29,7 +29,7 @@ from triage.centre.cluster import Cluster, find_bindir
 from triage.model import canonical_json, parse_survey_text
 from triage.resources import samples_dir
 from triage.store import Store
-from triage.store.store import import_uid
+from triage.store.writes import import_uid
 
 ROOT = Path(__file__).resolve().parents[2]
 SECRET = "Sw0rdf1sh-kowhai-7731"   # a distinctive part of every test password

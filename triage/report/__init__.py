@@ -50,32 +50,56 @@ def render_report(survey: Survey, assessment: Assessment, *, key: SigningKey | N
                   signed_at: datetime | None = None) -> bytes:
     """The report PDF as bytes (signed when `key` is given); see `write_report`."""
     from .draw import render
+    from .keys import ED25519
     from .model import Signer, build_report_model
     from .pdfparts import ASSESSMENT_FILE, SIGNER_FILE, SURVEY_FILE
-    from .signing import file_digest, fill_slot, find_slot, payload
+    from .signing import content_digests, file_digest, fill_slot, find_slot, payload
 
     if assessment.survey != str(survey.survey_id):
         raise ValueError(f"the assessment is of survey {assessment.survey}, "
                          f"not of {survey.survey_id}")
-    signer = Signer(key.name, key.id, key.fingerprint) if key is not None else None
-    model = build_report_model(survey, assessment, revision=revision, signer=signer,
-                               comparison=comparison, photo_dir=photo_dir)
     stext = survey_text(survey)
     atext = assessment.to_json()
     files = [(SURVEY_FILE, stext.encode("utf-8"), "the survey (triage-survey/1)"),
              (ASSESSMENT_FILE, atext.encode("utf-8"), "the assessment (triage-assessment/1)")]
+    signer = None
+    first_way = key is not None and key.algorithm == ED25519
+    when = (signed_at or datetime.now(UTC)).astimezone(UTC).replace(microsecond=0)
     if key is not None:
-        at = (signed_at or datetime.now(UTC)).replace(microsecond=0).isoformat()
-        signer_data = {**key.public.to_json_dict(), "format": "triage-signer/1",
-                       "signed_at": at}
+        signer_data: dict[str, Any] = {**key.public.to_json_dict(), "signed_at": when.isoformat()}
+        if first_way:
+            signer_data["format"] = "triage-signer/1"
+            covers = ("every byte of this file but the signature slot, with the embedded "
+                      "survey and assessment (Ed25519, the first-round scheme, checked by "
+                      "triage verify)")
+        else:
+            signer_data.update({"format": "triage-signer/2", "scheme": "PAdES B-B",
+                                "canonical": "RFC 8785"})
+            signer_data.pop("certificate")  # the signature itself carries the certificate
+            signer_data.update(content_digests(json.loads(stext), json.loads(atext)))
+            covers = ("every byte of this file but the signature value: the pages and the "
+                      "embedded survey, assessment and signer files (a standard PDF signature, "
+                      "PAdES B-B with ECDSA P-256, which PDF readers list)")
         files.append((SIGNER_FILE, (json.dumps(signer_data, ensure_ascii=False, indent=2)
                                     + "\n").encode("utf-8"), "who signed this report"))
-    data = render(model, files, signed=key is not None)
-    if key is not None:
+        ins = survey.inspection.inspector
+        other = ins.name.strip() != key.name or bool(ins.id and ins.id.strip() != key.id)
+        signer = Signer(key.name, key.id, key.fingerprint,
+                        signed_at=when.strftime("%Y-%m-%d %H:%M:%S UTC"), covers=covers,
+                        not_inspector=(ins.name + (f" (id {ins.id})" if ins.id else "")
+                                       if other else ""))
+    model = build_report_model(survey, assessment, revision=revision, signer=signer,
+                               comparison=comparison, photo_dir=photo_dir)
+    data = render(model, files, signed=first_way)
+    if key is not None and first_way:
         start, end = find_slot(data)
         digest = file_digest(data, start, end)
         msg = payload(json.loads(stext), json.loads(atext), digest)
         data = fill_slot(data, key.sign(msg))
+    elif key is not None:
+        from .pades import sign
+
+        data = sign(data, key, when)
     return data
 
 
@@ -102,7 +126,8 @@ def write_report(survey: Survey, assessment: Assessment, out: Path, *,
         raise ValueError(f"{out}: cannot be written ({err.strerror})") from None
     return ReportInfo(path=out, signed=key is not None,
                       fingerprint=key.fingerprint if key is not None else None,
-                      pages=data.count(b"/Type /Page\n"), size=len(data))
+                      pages=data[:data.find(b"%%EOF")].count(b"/Type /Page\n"),
+                      size=len(data))  # pages of the first revision: signing adds one
 
 
 def read_embedded_files(pdf: Path | bytes) -> dict[str, bytes]:

@@ -157,6 +157,12 @@ def _page_one(m: ReportModel, body_height: float) -> tuple[list[Any], list[Any]]
     probs.append(_p("measure next: " + m.measure_next))
     signature: list[Any] = [_h2("Digital signature"),
                             _p(m.signer_text, "strong" if m.signer is None else "body")]
+    if m.signer is not None:
+        signature += [_p(f"signed at {m.signer.signed_at or 'an unrecorded time'}; covers "
+                         f"{m.signer.covers}", "small")]
+        if m.signer.not_inspector:
+            signature += [_p(f"Note: the signer is not the inspector of this survey "
+                             f"({m.signer.not_inspector}).", "strong")]
     block = Table([
         [_p("The binding decision, made under local codes and with the local building "
             "authority, is the engineer of record's. Sign by hand below.", "small"), ""],

@@ -37,6 +37,9 @@ class Signer:
     name: str
     id: str
     fingerprint: str
+    signed_at: str = ""  # as printed, e.g. "2026-12-01 20:00:00 UTC"
+    covers: str = ""  # what the signature covers, in words
+    not_inspector: str = ""  # the inspector ("name (id …)") when the signer is someone else
 
 
 @dataclass(frozen=True)

@@ -1,23 +1,39 @@
-"""Check a report: intact, signed by an accepted key, and still what this engine computes.
+"""Check a report: intact, signed by an accepted signer, and still what this engine computes.
 
 `verify_report(pdf, expect=None)` returns a `VerifyResult` whose `code` is the exit status of
 DESIGN.md: 0 intact, accepted and re-assessed to the same tier and level (probabilities within
-0.01); 1 changed (or not readable); 3 unsigned; 4 intact but the signer is not accepted (not
-the key `expect` names, or, without it, not among this laptop's trusted keys); 5 intact and
-accepted, but this engine re-assesses the survey to another tier or level (both named).
-The file's bytes are checked before anything in it is parsed.
+0.01); 1 changed or damaged (or not readable); 3 unsigned; 4 intact but the signer is not
+accepted; 5 intact and accepted, but this engine re-assesses the survey to another tier or
+level (both named). The file's bytes are checked before anything in it is parsed.
+
+Two kinds of signature are checked (`triage.report.signing`): the standard PDF signature of
+P-256 keys (PAdES B-B, `triage.report.pades`) and the first way of Ed25519 keys. A signer is
+accepted when its key is the one `expect` names or, without it, a key trusted on this laptop,
+and when the name and id the report prints are those recorded with that key (and, for a
+standard signature, those of its certificate); otherwise 4, naming both.
+
+`import_verdict(pdf)` is the same check as `triage import` applies it to a report PDF.
 """
 
 from __future__ import annotations
 
 import json
+import unicodedata
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from .keys import PublicKey, normalise_fingerprint, trusted_keys
+from .keys import P256, PublicKey, normalise_fingerprint, trusted_keys
 from .pdfparts import ASSESSMENT_FILE, SIGNER_FILE, SURVEY_FILE
-from .signing import SlotError, file_digest, find_slot, looks_signed, payload
+from .signing import (
+    SIGNER_MARK,
+    SlotError,
+    content_digests,
+    file_digest,
+    find_slot,
+    looks_signed,
+    payload,
+)
 
 PROBABILITY_TOLERANCE = 0.01
 
@@ -33,6 +49,7 @@ class VerifyResult:
     fingerprint: str | None = None
     signed_at: str | None = None
     notes: tuple[str, ...] = field(default=())
+    scheme: str | None = None  # "PAdES B-B" or "Ed25519 (first way)" when signed
 
 
 def _changed(why: str) -> VerifyResult:
@@ -53,27 +70,48 @@ def verify_report(pdf: Path, expect: str | None = None,
     return r if r.message.startswith(prefix) else replace(r, message=prefix + r.message)
 
 
-def _verify(pdf: Path, expect: str | None, trusted: list[PublicKey] | None) -> VerifyResult:
-    from cryptography.exceptions import InvalidSignature
+@dataclass(frozen=True)
+class _Signed:
+    """A report whose signature holds: the signer as the signature proves it, and the content."""
 
-    from . import read_embedded_files
+    key: PublicKey  # name and id: as the report prints them (signer.json)
+    at: str | None
+    scheme: str
+    survey: Any
+    assessment: Any
+    conflict: str | None = None  # the report's name and id disagree with its certificate's
+
+
+def _verify(pdf: Path, expect: str | None, trusted: list[PublicKey] | None) -> VerifyResult:
+    from .pades import has_standard_signature
 
     expected = normalise_fingerprint(expect) if expect is not None else None
     try:
         data = Path(pdf).read_bytes()
     except FileNotFoundError:
         return VerifyResult(1, "no such file")
+    except IsADirectoryError:
+        return VerifyResult(1, "is a folder, not a report")
     except OSError as err:
         return VerifyResult(1, f"cannot be read ({err.strerror})")
-    if not looks_signed(data):
-        if not data.startswith(b"%PDF-"):
-            return VerifyResult(1, "not a PDF")
+    if not data.startswith(b"%PDF-"):
+        return VerifyResult(1, "not a PDF")
+    standard, first = has_standard_signature(data), looks_signed(data)
+    if standard and first:
+        return _changed("the report carries both kinds of signature")
+    if not standard and not first:
+        if SIGNER_MARK in data:
+            return _changed("the report names a signer but carries no signature")
         return VerifyResult(3, "unsigned: the report carries no signature")
-    try:
-        start, end = find_slot(data)
-    except SlotError as err:
-        return _changed(str(err))
-    digest = file_digest(data, start, end)
+    got = _check_standard(data) if standard else _check_first_way(data)
+    if isinstance(got, VerifyResult):
+        return got
+    return _accept(got, data, expected, trusted)
+
+
+def _embedded(data: bytes) -> tuple[Any, Any, dict[str, Any]] | VerifyResult:
+    from . import read_embedded_files
+
     try:
         files = read_embedded_files(data)
     except ValueError:
@@ -82,26 +120,102 @@ def _verify(pdf: Path, expect: str | None, trusted: list[PublicKey] | None) -> V
     if missing:
         return _changed(f"embedded {', '.join(missing)} missing")
     try:
-        survey_data = json.loads(files[SURVEY_FILE].decode("utf-8"))
-        assess_data = json.loads(files[ASSESSMENT_FILE].decode("utf-8"))
-        signer_data = json.loads(files[SIGNER_FILE].decode("utf-8"))
+        survey = json.loads(files[SURVEY_FILE].decode("utf-8"))
+        assessment = json.loads(files[ASSESSMENT_FILE].decode("utf-8"))
+        signer = json.loads(files[SIGNER_FILE].decode("utf-8"))
+    except (UnicodeDecodeError, json.JSONDecodeError, RecursionError):
+        return _changed("the embedded data cannot be read")
+    if not isinstance(signer, dict):
+        return _changed("the embedded signer.json is damaged")
+    return survey, assessment, signer
+
+
+def _check_first_way(data: bytes) -> _Signed | VerifyResult:
+    """The first way (Ed25519): the slot, the digest around it, the signed payload."""
+    from cryptography.exceptions import InvalidSignature
+
+    try:
+        start, end = find_slot(data)
+    except SlotError as err:
+        return _changed(str(err))
+    digest = file_digest(data, start, end)
+    got = _embedded(data)
+    if isinstance(got, VerifyResult):
+        return got
+    survey, assessment, signer_data = got
+    try:
         signer = PublicKey.from_json_dict({**signer_data, "format": "triage-public-key/1"},
                                           SIGNER_FILE)
-    except (UnicodeDecodeError, json.JSONDecodeError, ValueError, TypeError):
-        return _changed("the embedded data cannot be read")
+    except (ValueError, TypeError):
+        return _changed("the embedded signer.json cannot be read")
     signature = bytes.fromhex(data[start:end].decode("ascii"))
     try:
-        signer.verifier().verify(signature, payload(survey_data, assess_data, digest))
+        signer.verifier().verify(signature, payload(survey, assessment, digest))
     except InvalidSignature:
         return _changed("the signature does not match the file")
     at = str(signer_data.get("signed_at", "")) or None
+    return _Signed(signer, at, "Ed25519 (first way)", survey, assessment)
+
+
+def _check_standard(data: bytes) -> _Signed | VerifyResult:
+    """The standard PDF signature, then the signed digests of the embedded content."""
+    from . import certs
+    from .pades import BrokenSignature, check
+
+    try:
+        checked = check(data)
+    except BrokenSignature as err:
+        return _changed(str(err))
+    got = _embedded(data)
+    if isinstance(got, VerifyResult):
+        return got
+    survey, assessment, signer_data = got
+    try:
+        digests = content_digests(survey, assessment)
+    except ValueError as err:
+        return _changed(f"the embedded data has {err}")
+    for label, what in (("survey_sha256", SURVEY_FILE), ("assessment_sha256", ASSESSMENT_FILE)):
+        if signer_data.get(label) != digests[label]:
+            return _changed(f"the embedded {what} is not the one signed ({label})")
+    cert = certs.load_certificate(checked.certificate)
+    cn, sn = certs.certificate_subject(cert)
+    try:
+        point = certs.certificate_point(cert)
+    except ValueError:
+        return VerifyResult(4, f"intact, but signed with a key of another kind than this tool "
+                            f"makes (certificate of {cn}, id {sn})")
+    name, ident = signer_data.get("name"), signer_data.get("id")
+    if not isinstance(name, str) or not isinstance(ident, str):
+        return _changed("the embedded signer.json names no signer")
+    key = PublicKey(name, ident, point, P256, checked.certificate)
+    conflict = None
+    if (cn, sn) != (name, ident):
+        conflict = (f"the report names the signer {name} (id {ident}), but the signature's "
+                    f"certificate was made for {cn} (id {sn})")
+    elif signer_data.get("public_key") != point.hex():
+        conflict = (f"the report names key {signer_data.get('fingerprint')}, but is signed by "
+                    f"key {key.fingerprint}")
+    at = checked.signed_at.isoformat() if checked.signed_at else (
+        str(signer_data.get("signed_at", "")) or None)
+    return _Signed(key, at, "PAdES B-B", survey, assessment, conflict)
+
+
+def _accept(s: _Signed, data: bytes, expected: str | None,
+            trusted: list[PublicKey] | None) -> VerifyResult:
+    """Accept the signer (or exit 4 naming why), then re-assess the embedded survey."""
+    signer = s.key
     line = (f"signed by {signer.name} (id {signer.id}), key {signer.fingerprint}, "
-            f"at {at or 'an unrecorded time'}")
+            f"at {s.at or 'an unrecorded time'}")
 
     def result(code: int, message: str, notes: tuple[str, ...] = ()) -> VerifyResult:
-        return VerifyResult(code, message, signer.name, signer.id, signer.fingerprint, at,
-                            notes)
+        return VerifyResult(code, message, signer.name, signer.id, signer.fingerprint, s.at,
+                            notes, s.scheme)
 
+    if s.conflict:
+        return result(4, f"intact, but {s.conflict}")
+    printed = _page_one_names(data, signer)
+    if printed is not None:
+        return result(4, f"intact, {line}, but {printed}")
     if expected is not None:
         if signer.fingerprint != expected:
             return result(4, f"intact, but {line}, not by the expected key {expected}")
@@ -114,10 +228,34 @@ def _verify(pdf: Path, expect: str | None, trusted: list[PublicKey] | None) -> V
             return result(4, f"intact, {line}, but that key is not trusted on this laptop "
                           "(triage key trust PUBFILE, or --expect FINGERPRINT)")
         if (known.name, known.id) != (signer.name, signer.id):
-            line += f" (a key trusted here as {known.name}, id {known.id})"
+            return result(4, f"intact, but the report names the signer {signer.name} (id "
+                          f"{signer.id}), while key {signer.fingerprint} is trusted here as "
+                          f"{known.name} (id {known.id})")
 
-    code, detail, notes = _reassess(survey_data, assess_data)
+    code, detail, notes = _reassess(s.survey, s.assessment)
     return result(code, f"intact, {line}; {detail}", tuple(notes))
+
+
+def _norm(text: str) -> str:
+    return " ".join(unicodedata.normalize("NFC", text).split())
+
+
+def _page_one_names(data: bytes, signer: PublicKey) -> str | None:
+    """None when page one prints "signed by NAME (id ID)" of the signer; else why not."""
+    import io
+    import logging
+
+    from pypdf import PdfReader
+
+    logging.getLogger("pypdf").setLevel(logging.CRITICAL)
+    want = _norm(f"signed by {signer.name} (id {signer.id})")
+    try:
+        text = PdfReader(io.BytesIO(data)).pages[0].extract_text()
+    except Exception as err:  # a hostile page may break text extraction anywhere: one line
+        return f"its page one cannot be read ({type(err).__name__})"
+    if want not in _norm(text):
+        return f"page one does not print {want!r}"
+    return None
 
 
 def _trusted_or_none() -> list[PublicKey] | None:
@@ -166,3 +304,31 @@ def _reassess(survey_data: Any, assess_data: Any) -> tuple[int, str, list[str]]:
                    f"{worst:.3f} (more than {PROBABILITY_TOLERANCE})"), notes
     tail = f" ({'; '.join(notes)})" if notes else ""
     return 0, f"re-assessed to the same tier and level, {was}{tail}", notes
+
+
+@dataclass(frozen=True)
+class ImportVerdict:
+    """How `triage import` takes a report PDF: refused (one line), or taken with a warning."""
+
+    refused: str | None
+    warning: str | None
+    result: VerifyResult
+
+
+def import_verdict(pdf: Path, trusted: list[PublicKey] | None = None) -> ImportVerdict:
+    """Verify a report before its survey is imported (DESIGN: imports check signatures).
+
+    Changed or damaged (1): refused. Unsigned (3), signer not accepted (4), or intact but
+    re-assessed to another tier or level (5): imported, with a warning line naming why.
+    """
+    r = verify_report(Path(pdf), trusted=trusted)
+    prefix = f"{pdf}: "
+    why = r.message[len(prefix):] if r.message.startswith(prefix) else r.message
+    if r.code == 0:
+        return ImportVerdict(None, None, r)
+    if r.code == 1:
+        return ImportVerdict(f"{pdf}: refused, the report is {why}", None, r)
+    if r.code == 3:
+        why = ("unsigned: nothing shows who made this report or that it is unchanged; its "
+               "survey is imported as it reads")
+    return ImportVerdict(None, f"{pdf}: imported with a warning: {why}", r)

@@ -379,3 +379,18 @@ def test_page_one_must_print_the_signer(clinic_pair, tmp_path: Path, monkeypatch
     r = verify_report(out)
     assert r.code == 4, r.message
     assert "page one does not print 'signed by Aroha Ngāti (id R-77)'" in r.message
+
+
+def test_sign_and_verify_inside_a_running_event_loop(clinic_pair, tmp_path: Path):
+    """The screens run an asyncio loop; pyHanko's synchronous calls must still work there."""
+    import asyncio
+
+    s, a = clinic_pair
+    key, _ = new_key("Aroha Ngāti", "R-77", tmp_path / "p.key", None)
+    out = tmp_path / "loop.pdf"
+
+    async def inside() -> int:
+        write_report(s, a, out, key=key)
+        return verify_report(out).code
+
+    assert asyncio.run(inside()) == 0

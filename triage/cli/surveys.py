@@ -43,6 +43,7 @@ def run_import(args: argparse.Namespace) -> int:
     try:
         for path in args.files:
             try:
+                warning = _check_report(path)
                 survey = read_survey(path)
                 status = st.add_survey(survey, source=str(Path(path).resolve()))
             except UserError as err:
@@ -60,9 +61,26 @@ def run_import(args: argparse.Namespace) -> int:
                 sys.stdout.write(f"unchanged {survey.survey_id}  {name}  ({path}: the identical "
                                  "survey is stored already)\n")
             sys.stdout.flush()
+            if warning:
+                sys.stderr.write(f"triage import: warning: {warning}\n")
     finally:
         st.close()
     return 1 if failed else 0
+
+
+def _check_report(path: str) -> str | None:
+    """The warning for a report PDF verified before import; UserError when it was changed.
+
+    Unsigned, signed by a key not accepted here, or re-assessed to another tier: a warning.
+    """
+    if not path.lower().endswith(".pdf"):
+        return None
+    from triage.report.verify import import_verdict
+
+    verdict = import_verdict(Path(path))
+    if verdict.refused:
+        raise UserError(verdict.refused)
+    return verdict.warning
 
 
 def run_export(args: argparse.Namespace) -> int:

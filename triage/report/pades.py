@@ -20,11 +20,13 @@ import logging
 import re
 from dataclasses import dataclass
 from datetime import datetime
-from typing import TYPE_CHECKING, Any
+from collections.abc import Callable
+from typing import TYPE_CHECKING, Any, TypeVar
 
 if TYPE_CHECKING:
     from .keys import SigningKey
 
+T = TypeVar("T")
 FIELD_NAME = "InspectorSignature"
 REASON = "indicative triage report; the engineer of record decides"
 _HEX = re.compile(rb"(?:[0-9A-F]{2})+")  # as pyHanko writes it: upper case, whole bytes
@@ -40,6 +42,22 @@ class Checked:
 
     certificate: bytes
     signed_at: datetime | None
+
+
+def _outside_event_loop(fn: Callable[[], T]) -> T:
+    """Run `fn` here, or, when this thread runs an asyncio loop (the screens), in a thread of
+    its own: pyHanko's synchronous calls start a loop of their own, which a running one forbids.
+    """
+    import asyncio
+
+    try:
+        asyncio.get_running_loop()
+    except RuntimeError:
+        return fn()
+    from concurrent.futures import ThreadPoolExecutor
+
+    with ThreadPoolExecutor(max_workers=1) as pool:
+        return pool.submit(fn).result()
 
 
 def _quiet() -> None:
@@ -76,9 +94,11 @@ def sign(data: bytes, key: SigningKey, at: datetime) -> bytes:
             session.system_time = at
             return session
 
-    writer = IncrementalPdfFileWriter(io.BytesIO(data))
-    out = _AtTime(meta, signer=signer).sign_pdf(writer)
-    return bytes(out.getbuffer())
+    def run() -> bytes:
+        writer = IncrementalPdfFileWriter(io.BytesIO(data))
+        return bytes(_AtTime(meta, signer=signer).sign_pdf(writer).getbuffer())
+
+    return _outside_event_loop(run)
 
 
 def has_standard_signature(data: bytes) -> bool:
@@ -106,8 +126,8 @@ def check(data: bytes) -> Checked:
     _check_byte_range(data, sig.byte_range)
     try:
         cert = sig.signer_cert
-        status = validate_pdf_signature(
-            sig, ValidationContext(trust_roots=[cert], allow_fetching=False), skip_diff=True)
+        status = _outside_event_loop(lambda: validate_pdf_signature(
+            sig, ValidationContext(trust_roots=[cert], allow_fetching=False), skip_diff=True))
     except Exception as err:  # malformed CMS and the like
         raise BrokenSignature(f"the PDF signature cannot be read ({type(err).__name__})"
                               ) from None

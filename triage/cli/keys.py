@@ -22,7 +22,8 @@ def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-ar
     p = sub.add_parser("key", help="inspectors' signing keys and the keys this laptop trusts")
     ks = p.add_subparsers(dest="key_command", metavar="new|trust|list", required=True,
                           parser_class=type(p))
-    n = ks.add_parser("new", help="make an Ed25519 signing key (and trust it here)")
+    n = ks.add_parser("new", help="make an ECDSA P-256 signing key with its certificate "
+                      "(and trust it here)")
     n.add_argument("--name", required=True, help="the signer's name, as printed on reports")
     n.add_argument("--id", required=True, dest="signer_id",
                    help="the signer's registration or staff id")

@@ -18,9 +18,9 @@ from __future__ import annotations
 import io
 import logging
 import re
+from collections.abc import Callable
 from dataclasses import dataclass
 from datetime import datetime
-from collections.abc import Callable
 from typing import TYPE_CHECKING, Any, TypeVar
 
 if TYPE_CHECKING:
@@ -45,8 +45,10 @@ class Checked:
 
 
 def _outside_event_loop(fn: Callable[[], T]) -> T:
-    """Run `fn` here, or, when this thread runs an asyncio loop (the screens), in a thread of
-    its own: pyHanko's synchronous calls start a loop of their own, which a running one forbids.
+    """Run `fn` here, or in a thread of its own when this thread runs an asyncio loop.
+
+    pyHanko's synchronous calls start a loop of their own, which a running one (the screens)
+    forbids.
     """
     import asyncio
 

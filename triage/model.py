@@ -19,14 +19,19 @@ from pydantic import (
     AfterValidator,
     AwareDatetime,
     BaseModel,
+    BeforeValidator,
     ConfigDict,
     Field,
+    StringConstraints,
     ValidationError,
     WithJsonSchema,
     model_validator,
 )
 
+from triage import model_rules as rules
 from triage import standards
+from triage.errors import InputRefused
+from triage.model_rules import RuleBroken
 
 FORMAT = "triage-survey/2"
 """The format every survey is written as."""
@@ -70,6 +75,15 @@ def _hazard(value: str) -> str:
     return _known(standards.hazard_keys(), "hazard kind", value)
 
 
+# Numbers are finite, of at most 15 digits before the point, never true/false or text; text
+# holds no lone surrogate and has a length limit (triage.model_rules has the limits).
+Num = Annotated[float, BeforeValidator(rules.strict_number)]
+Int = Annotated[int, BeforeValidator(rules.strict_integer)]
+Text = Annotated[str, StringConstraints(max_length=rules.MAX_TEXT),
+                 BeforeValidator(rules.plain_text)]
+Notes = Annotated[str, StringConstraints(max_length=rules.MAX_NOTES),
+                  BeforeValidator(rules.plain_text)]
+
 # Keys checked against the tables of triage.standards (one table each; never redefined here).
 SystemKey = Annotated[str, AfterValidator(_system),
                       WithJsonSchema({"type": "string", "enum": list(standards.system_keys())})]
@@ -86,18 +100,21 @@ class _Model(BaseModel):
 class Photo(_Model):
     """A photograph taken on site."""
 
-    path: str = Field(min_length=1, description="file path, relative to the survey file")
-    caption: str = Field(default="", description="what the photo shows")
+    path: Text = Field(min_length=1, description="file path, relative to the survey file")
+    caption: Text = Field(default="", description="what the photo shows")
     sha256: str | None = Field(
         default=None, pattern=r"^[0-9a-f]{64}$",
         description="SHA-256 of the image bytes, 64 lowercase hex digits (set when stored)")
 
 
+Photos = Annotated[tuple[Photo, ...], Field(max_length=rules.MAX_PHOTOS)]
+
+
 class Location(_Model):
     """Where the building stands (WGS 84)."""
 
-    lat: float = Field(ge=-90, le=90, description="latitude, degrees")
-    lon: float = Field(ge=-180, le=180, description="longitude, degrees")
+    lat: Num = Field(ge=-90, le=90, description="latitude, degrees")
+    lon: Num = Field(ge=-180, le=180, description="longitude, degrees")
 
 
 class Systems(_Model):
@@ -111,56 +128,63 @@ class Building(_Model):
     """The building, kept across inspections by its building id."""
 
     id: uuid.UUID | None = Field(default=None, description="building id; derived when absent")
-    name: str = Field(min_length=1, description="the building's name as the inspector knows it")
-    address: str = Field(min_length=1, description="street address")
+    name: Text = Field(min_length=1, description="the building's name as the inspector knows it")
+    address: Text = Field(min_length=1, description="street address")
     location: Location | None = Field(default=None, description="map position, when known")
-    use: str | None = Field(default=None, description="what the building is used for")
+    use: Text | None = Field(default=None, description="what the building is used for")
     system: Systems = Field(description="structural system per direction")
-    year_built: int | None = Field(
-        default=None, ge=1000, le=9999, description="year the building was completed")
+    year_built: Int | None = Field(
+        default=None, ge=rules.FIRST_YEAR_BUILT, le=rules.LAST_YEAR,
+        description="year the building was completed (not after the inspection)")
 
 
 class Inspector(_Model):
     """Who inspected."""
 
-    name: str = Field(min_length=1, description="the inspector's name")
-    id: str | None = Field(default=None, description="the inspector's registration or staff id")
+    name: Text = Field(min_length=1, description="the inspector's name")
+    id: Text | None = Field(default=None, description="the inspector's registration or staff id")
 
 
 class Inspection(_Model):
     """Who inspected, when, and which earlier survey of the building this one follows."""
 
     inspector: Inspector
-    at: AwareDatetime = Field(description="time of the inspection, ISO 8601 with offset")
+    at: Annotated[AwareDatetime, AfterValidator(rules.inspection_time)] = Field(
+        description="time of the inspection, ISO 8601 with offset, years 1900-2100")
     previous: uuid.UUID | None = Field(
         default=None, description="id of the earlier survey of the same building")
     team: tuple[Inspector, ...] = Field(
         default=(), description="others who inspected with the inspector")
-    event: str | None = Field(
+    event: Text | None = Field(
         default=None, description="the earthquake or aftershock this inspection follows")
-    not_inspected: str | None = Field(
+    not_inspected: Text | None = Field(
         default=None, description="what could not be inspected, and why")
-    weather: str | None = Field(default=None, description="weather at the time of inspection")
+    weather: Text | None = Field(default=None, description="weather at the time of inspection")
 
 
 class Reading(_Model):
     """A residual drift measurement: offset over a gauge length, or a tilt, in one direction."""
 
     dir: Dir = Field(description="direction of the reading; signed toward +x or +y")
-    offset_mm: float | None = Field(default=None, description="plumb offset over the gauge, mm")
-    gauge_mm: float | None = Field(default=None, gt=0, description="gauge length, mm")
-    sd_mm: float | None = Field(default=None, gt=0, description="standard uncertainty of offset")
-    baseline_mm: float | None = Field(
+    offset_mm: Num | None = Field(default=None, description="plumb offset over the gauge, mm")
+    gauge_mm: Num | None = Field(
+        default=None, gt=0, description="gauge length, mm: at least 100, at most the storey "
+        "height plus 5%")
+    sd_mm: Num | None = Field(
+        default=None, gt=0, description="standard uncertainty of offset, mm; at most the gauge")
+    baseline_mm: Num | None = Field(
         default=None, description="as-built offset at this spot over the same gauge, mm")
-    tilt_deg: float | None = Field(default=None, ge=-45, le=45, description="tilt, degrees")
-    sd_deg: float | None = Field(default=None, gt=0, description="standard uncertainty of tilt")
-    baseline_deg: float | None = Field(
+    tilt_deg: Num | None = Field(default=None, ge=-45, le=45, description="tilt, degrees")
+    sd_deg: Num | None = Field(default=None, gt=0, le=rules.MAX_SD_DEG,
+                               description="standard uncertainty of tilt, degrees")
+    baseline_deg: Num | None = Field(
         default=None, ge=-45, le=45, description="as-built tilt at this spot, degrees")
-    baseline_sd_mm: float | None = Field(
+    baseline_sd_mm: Num | None = Field(
         default=None, gt=0, description="standard uncertainty of baseline_mm, mm")
-    baseline_sd_deg: float | None = Field(
-        default=None, gt=0, description="standard uncertainty of baseline_deg, degrees")
-    where: str | None = Field(default=None, description="where on the plan it was taken")
+    baseline_sd_deg: Num | None = Field(
+        default=None, gt=0, le=rules.MAX_SD_DEG,
+        description="standard uncertainty of baseline_deg, degrees")
+    where: Text | None = Field(default=None, description="where on the plan it was taken")
 
     @model_validator(mode="after")
     def _one_kind(self) -> Reading:
@@ -183,10 +207,9 @@ class Reading(_Model):
         if self.baseline_sd_deg is not None and self.baseline_deg is None:
             raise ValueError("baseline_sd_deg is the uncertainty of baseline_deg, which is absent")
         limit = standards.load().assumptions.max_drift_ratio
+        rules.reading_rules(self, limit)
         if abs(self.drift_ratio()) >= limit:
-            raise ValueError(
-                f"drift ratio {abs(self.drift_ratio()):.1%} is {limit:.0%} or more: "
-                "refused as a mis-entry (check offset and gauge units, mm)")
+            raise ValueError(rules.too_large_drift(self.drift_ratio(), limit))
         return self
 
     @property
@@ -206,38 +229,41 @@ class MemberGroup(_Model):
     """Members alike in a storey: kind, count, and what was seen on them."""
 
     kind: MemberKind = Field(description="member kind")
-    count: int = Field(ge=1, description="how many members the group holds")
+    count: Int = Field(ge=1, le=rules.MAX_COUNT, description="how many members the group holds")
     ductility: Literal["ductile", "brittle"] = Field(
         default="ductile", description="failure mode expected: brittle for short or shear columns")
-    crack_mm: float | None = Field(
+    crack_mm: Num | None = Field(
         default=None, ge=0, le=50, description="widest residual crack, mm; 0 or absent: none seen")
-    crack_sd_mm: float | None = Field(
-        default=None, gt=0, description="standard uncertainty of the crack width, mm")
+    crack_sd_mm: Num | None = Field(
+        default=None, gt=0, le=rules.MAX_CRACK_SD_MM,
+        description="standard uncertainty of the crack width, mm")
     signs: tuple[SignKey, ...] = Field(default=(), description="damage signs seen on the group")
     damage_class: DamageClass | None = Field(
         default=None, description="class set by the inspector; needs override_reason")
-    override_reason: str | None = Field(default=None, description="why the class was set by hand")
-    weight: float = Field(default=1.0, gt=0, le=1000,
+    override_reason: Text | None = Field(
+        default=None, description="why the class was set by hand")
+    weight: Num = Field(default=1.0, gt=0, le=1000,
                           description="share of storey capacity per member (1 when unknown)")
     dir: Dir | None = Field(default=None,
                             description="direction a wall acts in; absent: both directions")
-    ref: str | None = Field(default=None, description="grid or member mark, e.g. C3")
-    photos: tuple[Photo, ...] = Field(default=())
+    ref: Text | None = Field(
+        default=None, description="grid or member mark, e.g. C3; used once in a storey")
+    photos: Photos = Field(default=(), description="photos of the group")
 
     @model_validator(mode="after")
     def _rules(self) -> MemberGroup:
         if self.damage_class is not None and not (self.override_reason or "").strip():
             raise ValueError("damage_class set by hand needs an override_reason")
         if self.dir is not None and self.kind == "column":
-            raise ValueError("dir: a column counts in both directions; dir is for walls, "
+            raise RuleBroken(("dir",), "a column counts in both directions; dir is for walls, "
                              "braces and infill")
         table = standards.load().signs
         for s in self.signs:
             if self.kind not in table[s].kinds:
-                raise ValueError(f"signs: {s!r} is not a sign of a {self.kind} "
+                raise RuleBroken(("signs",), f"{s!r} is not a sign of a {self.kind} "
                                  f"(it applies to: {', '.join(table[s].kinds)})")
         if len(set(self.signs)) != len(self.signs):
-            raise ValueError("signs: each sign is listed once")
+            raise RuleBroken(("signs",), "each sign is listed once")
         return self
 
     @property
@@ -254,26 +280,41 @@ class MemberGroup(_Model):
 class Storey(_Model):
     """One storey, with its readings, member groups and notes; storeys run bottom to top."""
 
-    label: str = Field(min_length=1, description="storey label as marked on site, e.g. G, 1, B1")
-    height_m: float = Field(gt=0, le=20, description="storey height, m")
-    below_grade: bool = Field(default=False, description="a basement storey")
+    label: Text = Field(
+        min_length=1, description="storey label as marked on site, e.g. G, 1, B1")
+    height_m: Num = Field(gt=0, le=20, description="storey height, m")
+    below_grade: bool = Field(
+        default=False, description="a basement storey; below-grade storeys come first")
     access: Access = Field(default="full", description="how much of the storey could be entered")
-    readings: tuple[Reading, ...] = Field(default=())
-    members: tuple[MemberGroup, ...] = Field(default=())
-    notes: str | None = Field(default=None)
-    photos: tuple[Photo, ...] = Field(default=())
+    readings: tuple[Reading, ...] = Field(default=(), description="at most 200 readings")
+    members: tuple[MemberGroup, ...] = Field(
+        default=(), description="at most 500 member groups, count times weight at most 100,000")
+    notes: Notes | None = Field(default=None, description="the inspector's notes on the storey")
+    photos: Photos = Field(default=(), description="photos of the storey")
+
+    @model_validator(mode="before")
+    @classmethod
+    def _sizes(cls, data: Any) -> Any:
+        rules.storey_sizes(data)   # before the items are validated: bounded work
+        return data
+
+    @model_validator(mode="after")
+    def _storey_rules(self) -> Storey:
+        rules.storey_rules(self)
+        return self
 
 
 class Hazard(_Model):
     """A hazard seen at the building (ground, structure, falling objects, exits, neighbours)."""
 
     kind: HazardKey = Field(description="hazard kind")
-    where: str | None = Field(default=None, description="where it is")
-    storey: str | None = Field(default=None, description="label of the storey it is on")
-    height_above_ground_m: float | None = Field(
-        default=None, ge=0, le=500, description="height of a falling hazard, for its keep-out")
-    note: str | None = Field(default=None)
-    photos: tuple[Photo, ...] = Field(default=())
+    where: Text | None = Field(default=None, description="where it is")
+    storey: Text | None = Field(default=None, description="label of the storey it is on")
+    height_above_ground_m: Num | None = Field(
+        default=None, ge=0, le=rules.MAX_HEIGHT_ABOVE_GROUND_M,
+        description="height of a falling hazard, for its keep-out, m")
+    note: Notes | None = Field(default=None, description="the inspector's note on the hazard")
+    photos: Photos = Field(default=(), description="photos of the hazard")
 
 
 class Survey(_Model):
@@ -284,21 +325,18 @@ class Survey(_Model):
     id: uuid.UUID | None = Field(default=None, description="survey id; derived when absent")
     building: Building
     inspection: Inspection
-    storeys: tuple[Storey, ...] = Field(min_length=1, description="bottom to top")
-    hazards: tuple[Hazard, ...] = Field(default=())
+    storeys: tuple[Storey, ...] = Field(
+        min_length=1, description="bottom to top, at most 300")
+    hazards: tuple[Hazard, ...] = Field(default=(), description="at most 500")
+
+    @model_validator(mode="before")
+    @classmethod
+    def _sizes(cls, data: Any) -> Any:
+        rules.survey_sizes(data)   # before the storeys are validated: bounded work
+        return data
 
     @model_validator(mode="after")
     def _rules(self) -> Survey:
-        labels = [s.label for s in self.storeys]
-        seen: set[str] = set()
-        for i, lab in enumerate(labels):
-            if lab in seen:
-                raise ValueError(f"storeys[{i}].label: {lab!r} is used twice; labels are unique")
-            seen.add(lab)
-        for i, h in enumerate(self.hazards):
-            if h.storey is not None and h.storey not in seen:
-                raise ValueError(f"hazards[{i}].storey: {h.storey!r} names no storey "
-                                 f"(storeys: {', '.join(labels)})")
         # Derive the ids that the file left out (DESIGN.md), so the same file always gets the
         # same ids and a re-inspection keeps its building id.
         if self.building.id is None:
@@ -312,8 +350,7 @@ class Survey(_Model):
             derived = uuid.uuid5(ID_NAMESPACE, "survey:" + canonical_json(self._id_body()))
             object.__setattr__(self, "id", derived)
         object.__setattr__(self, "format", FORMAT)
-        if self.inspection.previous is not None and self.inspection.previous == self.id:
-            raise ValueError("inspection.previous: a survey cannot follow itself")
+        rules.survey_rules(self)
         return self
 
     def _id_body(self) -> dict[str, Any]:
@@ -373,7 +410,7 @@ def canonical_json(data: Any) -> str:
     return json.dumps(data, sort_keys=True, separators=(",", ":"), ensure_ascii=False)
 
 
-class SurveyError(ValueError):
+class SurveyError(InputRefused, ValueError):
     """A survey broke a rule; `str()` is one line naming the field path and the rule."""
 
     def __init__(self, message: str, all_messages: list[str] | None = None) -> None:
@@ -381,61 +418,70 @@ class SurveyError(ValueError):
         self.all_messages = all_messages or [message]
 
 
-def _path(loc: tuple[int | str, ...]) -> str:
-    out = ""
-    for part in loc:
-        if isinstance(part, int):
-            out += f"[{part}]"
-        elif part in ("function-after[_one_kind()]", "function-after[_rules()]") or (
-                isinstance(part, str) and part.startswith(("function-", "tagged-union"))):
-            continue
-        else:
-            out += ("." if out else "") + str(part)
-    return out or "(survey)"
+def _loc(loc: tuple[int | str, ...]) -> tuple[int | str, ...]:
+    """A pydantic location without the names of validators and unions."""
+    return tuple(p for p in loc if not (isinstance(p, str) and p.startswith(
+        ("function-", "tagged-union", "json-or-python", "lax-or-strict"))))
 
 
-def error_lines(err: ValidationError) -> list[str]:
-    """One line per pydantic error: `field.path: the rule`."""
+def _rule(e: Any) -> tuple[tuple[int | str, ...], str]:
+    """(path, rule) of one pydantic error, the rule in our words with its limit."""
+    loc = _loc(tuple(e.get("loc", ())))
+    kind = e.get("type", "")
+    ctx = e.get("ctx") or {}
+    cause = ctx.get("error")
+    if isinstance(cause, RuleBroken):
+        return loc + cause.path, cause.rule
+    if kind == "extra_forbidden":
+        return loc, f"unknown key {loc[-1]!r} (not part of {FORMAT})"
+    if kind == "missing":
+        return loc, "required field is missing"
+    if kind == "string_too_long":
+        n = len(e["input"]) if isinstance(e.get("input"), str) else 0
+        return loc, f"{n:,} characters; at most {ctx.get('max_length', 0):,}"
+    if kind == "too_long":
+        return loc, (f"{ctx.get('actual_length', 0):,} items; at most "
+                     f"{ctx.get('max_length', 0):,}")
+    msg = str(e.get("msg", ""))
+    for prefix in ("Value error, ", "Assertion failed, "):
+        if msg.startswith(prefix):
+            msg = msg[len(prefix):]
+    if msg.startswith("Input should"):
+        msg = "must" + msg[len("Input should"):]
+    return loc, (msg[0].lower() + msg[1:]) if msg else kind
+
+
+def error_lines(err: ValidationError, doc: Any = None,
+                prefix: tuple[int | str, ...] = ()) -> list[str]:
+    """One line per pydantic error: `field.path: the rule (the field in words)`.
+
+    `doc` is the whole survey's data, for naming storeys by label; `prefix` the path of the
+    part validated when it is not the whole survey (the store validates one item at a time).
+    """
     lines = []
     errors = err.errors(include_url=False)
-    locs = [tuple(e.get("loc", ())) for e in errors]
-    for e in errors:
-        loc = tuple(e.get("loc", ()))
+    locs = [_loc(tuple(e.get("loc", ()))) for e in errors]
+    for e, loc in zip(errors, locs, strict=True):
         # A list left short only because its items failed is a consequence, not a rule broken.
         if e.get("type") == "too_short" and any(
                 other[:len(loc)] == loc and len(other) > len(loc) for other in locs):
             continue
-        kind = e.get("type", "")
-        msg = str(e.get("msg", ""))
-        if kind == "extra_forbidden":
-            lines.append(f"{_path(loc)}: unknown key {loc[-1]!r} (not part of {FORMAT})")
-            continue
-        if kind == "missing":
-            lines.append(f"{_path(loc)}: required field is missing")
-            continue
-        for prefix in ("Value error, ", "Assertion failed, "):
-            if msg.startswith(prefix):
-                msg = msg[len(prefix):]
-        path = _path(loc)
-        # Rules checked across fields carry their own sub-path at the start of the message.
-        head, sep, rest = msg.partition(": ")
-        if sep and (head.startswith(("storeys[", "hazards[", "inspection.")) or head in (
-                "signs", "dir")):
-            sub = head if head.startswith(("storeys[", "hazards[", "inspection.")) else (
-                f"{path}.{head}" if path != "(survey)" else head)
-            lines.append(f"{sub}: {rest}")
-        else:
-            if msg.startswith("Input should"):
-                msg = "must" + msg[len("Input should"):]
-            lines.append(f"{path}: {msg[0].lower() + msg[1:] if msg else kind}")
+        path, rule = _rule(e)
+        lines.append(rules.line(prefix + path, rule, doc))
     return lines
 
 
-def format_error(err: ValidationError) -> str:
+def format_error(err: ValidationError, doc: Any = None,
+                 prefix: tuple[int | str, ...] = ()) -> str:
     """The first error as one line, with a count of the rest."""
-    lines = error_lines(err)
+    lines = error_lines(err, doc, prefix)
     more = f" (and {len(lines) - 1} more)" if len(lines) > 1 else ""
     return lines[0] + more
+
+
+def rule_error(err: RuleBroken, doc: Any = None, prefix: tuple[int | str, ...] = ()) -> str:
+    """A rule broken outside pydantic (the store's edit API calls the rules) as one line."""
+    return rules.line(prefix + err.path, err.rule, doc)
 
 
 def parse_survey(data: Any) -> Survey:
@@ -444,22 +490,42 @@ def parse_survey(data: Any) -> Survey:
         raise SurveyError("(survey): a survey is a JSON object")
     fmt = data.get("format")
     if fmt is not None and fmt not in FORMATS:
-        raise SurveyError(f"format: {fmt!r} is not a survey format this version reads "
+        shown = fmt if isinstance(fmt, str) and len(fmt) <= 40 and fmt.isprintable() else "it"
+        raise SurveyError(f"format: {shown!r} is not a survey format this version reads "
                           f"({', '.join(FORMATS)}); a newer triage may read it")
     try:
         return Survey.model_validate(data)
     except ValidationError as err:
-        raise SurveyError(format_error(err), error_lines(err)) from None
+        lines = error_lines(err, data)
+        more = f" (and {len(lines) - 1} more)" if len(lines) > 1 else ""
+        raise SurveyError(lines[0] + more, lines) from None
+    except RecursionError:   # only reachable by data built in Python: files are depth-checked
+        raise SurveyError(f"(survey): nested over {rules.MAX_DEPTH} levels deep") from None
+
+
+def load_json_text(text: str) -> Any:
+    """JSON data of a survey file's text, checked for depth and number size before parsing.
+
+    Raises `SurveyError` (one line, with line and column) for text that is not JSON, nests
+    over 20 levels or holds a number of over 15 digits before the point.
+    """
+    try:
+        rules.check_json_text(text)
+    except RuleBroken as err:
+        raise SurveyError(f"(file): {err.rule}") from None
+    try:
+        return json.loads(text)
+    except json.JSONDecodeError as err:
+        raise SurveyError(f"(file): not JSON: {err.msg} at line {err.lineno} column {err.colno}"
+                          ) from None
+    except (ValueError, RecursionError) as err:   # the scan above should leave none
+        raise SurveyError(f"(file): not JSON a survey may hold ({type(err).__name__})"
+                          ) from None
 
 
 def parse_survey_text(text: str) -> Survey:
     """Parse and validate a survey file's text."""
-    try:
-        data = json.loads(text)
-    except json.JSONDecodeError as err:
-        raise SurveyError(f"(file): not JSON: {err.msg} at line {err.lineno} column {err.colno}"
-                          ) from None
-    return parse_survey(data)
+    return parse_survey(load_json_text(text))
 
 
 def survey_warnings(survey: Survey) -> list[str]:
@@ -473,6 +539,11 @@ def survey_warnings(survey: Survey) -> list[str]:
                 out.append(f"storeys[{si}].readings[{ri}]: drift ratio {d:.1%} is over "
                            f"{limit:.0%}; kept, but check it is not a mis-entry")
     return out
+
+
+def gauge_notes(survey: Survey) -> list[str]:
+    """Notes (kept, not refused) on offset readings over a gauge under a quarter storey."""
+    return rules.short_gauge_notes(survey.storeys)
 
 
 def json_schema() -> dict[str, Any]:

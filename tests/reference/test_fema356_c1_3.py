@@ -71,7 +71,8 @@ def test_engine_places_drifts_either_side_of_each_figure(system, io_t, io_p, ls_
     expect = [(f.IO, "IO", "LS"), (f.LS, "LS", "CP"), (f.CP, "CP", "beyond-CP")]
     for figure, at, over in expect:
         for offset, want in ((figure * gauge, at), (figure * gauge * 1.01, over)):
-            s = make([storey("1", [reading("x", offset, gauge_mm=gauge), reading("y", 0.0)])],
+            s = make([storey("1", [reading("x", offset, gauge_mm=gauge), reading("y", 0.0)],
+                              height_m=10.0)],  # a 10 m gauge needs a storey that tall
                      sx=system, sy=system)
             got = assess(s).storeys[0].performance_level.x
             assert got == want, f"{system}: drift {offset / gauge:.4%} should be {want}"

@@ -80,7 +80,9 @@ def test_the_sign_of_an_offset_does_not_matter(d):
     assert a.model_dump() == b.model_dump()
 
 
-@given(surveys(), st.sampled_from([0.5, 2.0, 4.0]))
+# Powers of two keep the arithmetic exact; gauges scaled up would pass the storey height plus
+# 5% (refused), so they are scaled down (the shortest, 1000 mm, stays over the 100 mm floor).
+@given(surveys(), st.sampled_from([0.25, 0.5]))
 def test_scaling_offset_gauge_and_uncertainty_together_changes_nothing(d, k):
     scaled = copy.deepcopy(d)
     for s in scaled["storeys"]:

@@ -3,10 +3,11 @@
 A field edit of a large survey must not run the whole survey through pydantic: the edit is
 applied to the survey's JSON data, then only the unit it touched is validated (a reading, a
 member group, a hazard, a storey without its readings and members, the building block or the
-inspection block) together with the rules across fields that an edit can break (storey labels
-unique, a hazard's storey naming an existing storey, at least one storey, `inspection.previous`
-not the survey itself). The unit is replaced by its validated, normalised JSON, so the stored
-data is what `Survey.to_json_dict()` would give (a test checks this against full validation).
+inspection block) together with the rules across fields that an edit can break: those of the
+storey it touched and those of the whole survey, called from `triage.model_rules`, where the
+model's validators call them too (one rule, one place). The unit is replaced by its validated,
+normalised JSON, so the stored data is what `Survey.to_json_dict()` would give (a test checks
+this against full validation).
 
 Paths name fields the way the survey file does: `building.name`, `storeys[2].label`,
 `storeys[2].readings[1].offset_mm`, `hazards[0]`; indices count the visible items only.
@@ -22,6 +23,7 @@ from typing import Any, NamedTuple
 
 from pydantic import BaseModel, ValidationError
 
+from triage import model_rules
 from triage.model import (
     Building,
     Hazard,
@@ -29,7 +31,8 @@ from triage.model import (
     MemberGroup,
     Reading,
     Storey,
-    error_lines,
+    format_error,
+    rule_error,
 )
 
 from .connect import StoreError
@@ -171,22 +174,16 @@ def apply_remove(doc: dict[str, Any], path: str) -> Applied:
     return Applied(new_doc, "remove", path, old, None)
 
 
-def _lines(err: ValidationError, where: str) -> str:
-    lines = error_lines(err)
-    out = []
-    for line in lines:
-        if line.startswith("(survey)"):
-            out.append(where + line[len("(survey)"):])
-        else:
-            out.append(f"{where}.{line}" if where else line)
-    more = f" (and {len(out) - 1} more)" if len(out) > 1 else ""
-    return out[0] + more
+def _lines(err: ValidationError, where: str, doc: Any = None) -> str:
+    return format_error(err, doc, tuple(_parse(where)) if where else ())
 
 
-def _validate(model: type[BaseModel], data: Any, where: str | Callable[[], str]) -> dict[str, Any]:
+def _validate(model: type[BaseModel], data: Any, where: str | Callable[[], str],
+              doc: Any = None) -> dict[str, Any]:
     """`model.model_validate(data).model_dump(mode="json", exclude_none=True)`, or refuse.
 
-    `where` (the item's path, or a function giving it) is only formatted for a refusal.
+    `where` (the item's path, or a function giving it) is only formatted for a refusal, with
+    `doc` (the survey's data) for naming its storey.
     """
     def place() -> str:
         return where if isinstance(where, str) else where()
@@ -196,7 +193,7 @@ def _validate(model: type[BaseModel], data: Any, where: str | Callable[[], str])
     try:
         obj = model.__pydantic_validator__.validate_python(data)
     except ValidationError as err:
-        raise EditRefused(_lines(err, place())) from None
+        raise EditRefused(_lines(err, place(), doc)) from None
     out: dict[str, Any] = model.__pydantic_serializer__.to_python(obj, mode="json",
                                                                  exclude_none=True)
     return out
@@ -246,47 +243,44 @@ def validate_applied(applied: Applied) -> dict[str, Any]:
         data = _get(doc, unit)
         if unit[0] == "storeys" and len(unit) == 4:
             model: type[BaseModel] = Reading if unit[2] == "readings" else MemberGroup
-            _put(doc, unit, _validate(model, data, where))
+            _put(doc, unit, _validate(model, data, where, doc))
         elif unit[0] == "storeys":
             # A storey added or replaced, or a whole list of it set, is validated with its items.
             whole = len(tokens) == 2 or (len(tokens) == 3 and tokens[2] in ("readings", "members"))
             if whole:
-                _put(doc, unit, _validate(Storey, data, where))
+                _put(doc, unit, _validate(Storey, data, where, doc))
             else:
                 if not isinstance(data, dict):
                     raise EditRefused(f"{where}: must be a JSON object")
                 shallow = {k: v for k, v in data.items() if k not in ("readings", "members")}
-                out = _validate(Storey, shallow, where)
+                out = _validate(Storey, shallow, where, doc)
                 out["readings"] = data.get("readings", [])
                 out["members"] = data.get("members", [])
                 _put(doc, unit, out)
         elif unit[0] == "hazards":
-            _put(doc, unit, _validate(Hazard, data, where))
+            _put(doc, unit, _validate(Hazard, data, where, doc))
         else:
-            _put(doc, unit, _validate(_UNITS[str(unit[0])], data, where))
-    check_cross_rules(doc)
+            _put(doc, unit, _validate(_UNITS[str(unit[0])], data, where, doc))
+    touched = tokens[1] if len(tokens) >= 2 and tokens[0] == "storeys" else None
+    check_cross_rules(doc, touched if isinstance(touched, int) else None)
     return doc
 
 
-def check_cross_rules(doc: dict[str, Any]) -> None:
-    """The survey rules across fields that a single edit can break."""
-    storeys = doc.get("storeys")
-    if not isinstance(storeys, list) or not storeys:
-        raise EditRefused("storeys: a survey keeps at least one storey")
-    seen: set[str] = set()
-    for i, st in enumerate(storeys):
-        lab = st.get("label")
-        if lab in seen:
-            raise EditRefused(f"storeys[{i}].label: {lab!r} is used twice; labels are unique")
-        seen.add(lab)
-    for i, h in enumerate(doc.get("hazards") or []):
-        s = h.get("storey")
-        if s is not None and s not in seen:
-            raise EditRefused(f"hazards[{i}].storey: {s!r} names no storey "
-                              f"(storeys: {', '.join(str(x) for x in seen)})")
-    prev = (doc.get("inspection") or {}).get("previous")
-    if prev is not None and str(prev) == str(doc.get("id")):
-        raise EditRefused("inspection.previous: a survey cannot follow itself")
+def check_cross_rules(doc: dict[str, Any], storey: int | None = None) -> None:
+    """The rules across fields an edit can break: the touched storey's, then the survey's.
+
+    They are the model's own (`triage.model_rules`); a broken one is refused in its words.
+    """
+    prefix: tuple[str | int, ...] = ()
+    try:
+        storeys = doc.get("storeys")
+        if storey is not None and isinstance(storeys, list) and 0 <= storey < len(storeys):
+            prefix = ("storeys", storey)
+            model_rules.storey_rules(storeys[storey])
+            prefix = ()
+        model_rules.survey_rules(doc)
+    except model_rules.RuleBroken as err:
+        raise EditRefused(rule_error(err, doc, prefix)) from None
 
 
 def inverse(op: str, path: str, old: Any, new: Any) -> tuple[str, str, Any]:
@@ -307,9 +301,10 @@ _ITEM_MODELS: dict[str, type[BaseModel]] = {"readings": Reading, "members": Memb
 def apply_field(doc: dict[str, Any], path: str, value: Any) -> Applied | None:
     """The keystroke case, done directly: one plain field of a reading or a member group.
 
-    Such an edit can break only the rules of its own item (no label, hazard or storey count
-    changes), so the item alone is validated. None when the edit is not of this kind (the
-    general path then handles it, with the same result; a test checks both agree).
+    Such an edit can break only the rules of its own item and of its storey (no label, hazard
+    or storey count changes), so the item and its storey's rules are checked. None when the
+    edit is not of this kind (the general path then handles it, with the same result; a test
+    checks both agree).
     """
     try:
         t = _parse(path)
@@ -336,7 +331,7 @@ def apply_field(doc: dict[str, Any], path: str, value: Any) -> Applied | None:
         item.pop(field, None)
     else:
         item[field] = value
-    norm = _validate(model, item, lambda: f"storeys[{t[1]}].{kind}[{t[3]}]")
+    norm = _validate(model, item, lambda: f"storeys[{t[1]}].{kind}[{t[3]}]", doc)
     new_items = list(items)
     new_items[t[3]] = norm
     new_st = dict(st)
@@ -345,6 +340,10 @@ def apply_field(doc: dict[str, Any], path: str, value: Any) -> Applied | None:
     new_storeys[t[1]] = new_st
     new_doc = dict(doc)
     new_doc["storeys"] = new_storeys
+    try:   # a reading's gauge against its storey, a mark unique in it, the storey's capacity
+        model_rules.storey_rules(new_st)
+    except model_rules.RuleBroken as err:
+        raise EditRefused(rule_error(err, new_doc, ("storeys", t[1]))) from None
     return Applied(new_doc, "set", path, old, norm.get(field))
 
 

@@ -1,4 +1,4 @@
-"""Engine speed: the 60-storey survey of issue 2, and a plain brute-force Monte Carlo of it."""
+"""Engine speed: the 60-storey survey (DEVELOPERS.md, Benchmarks), and a plain brute-force Monte Carlo of it."""
 
 from __future__ import annotations
 

@@ -1,6 +1,6 @@
 """Report speed: the unsigned report of the 60-storey survey against a bare reportlab document.
 
-The promise (issue 4): the report of a 60-storey survey is written in at most twice the time
+The promise (DEVELOPERS.md, Benchmarks): the report of a 60-storey survey is written in at most twice the time
 reportlab takes for a bare document with the same number of table rows. The bare document is
 one platypus Table of that many rows (eight short text cells each, Helvetica, a header row
 repeated on each page), built into memory; the report is `render_report` (model and PDF, not

@@ -1,4 +1,4 @@
-"""Speed of the field screens (issue 5), each against its promise.
+"""Speed of the field screens, each against its promise.
 
     python -m bench.ui_bench
 

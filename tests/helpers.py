@@ -62,7 +62,7 @@ def make(storeys: list[dict[str, Any]], **kw: Any) -> Survey:
 
 
 def two_storey_frame() -> dict[str, Any]:
-    """The example of DESIGN.md: storey 2 y at 0.60% in a concrete frame, one cracked column."""
+    """The worked example of docs/method.md: storey 2 y at 0.60% in a concrete frame, one cracked column."""
     return survey_dict([
         storey("1", [reading("x", 1.0), reading("y", 1.6)], [{"kind": "column", "count": 20}]),
         storey("2", [reading("x", 2.0), reading("y", 12.0)],

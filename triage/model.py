@@ -337,8 +337,8 @@ class Survey(_Model):
 
     @model_validator(mode="after")
     def _rules(self) -> Survey:
-        # Derive the ids that the file left out (DESIGN.md), so the same file always gets the
-        # same ids and a re-inspection keeps its building id.
+        # Derive the ids that the file left out (docs/formats.md, "Derived ids"), so the same
+        # file always gets the same ids and a re-inspection keeps its building id.
         if self.building.id is None:
             block = {"name": self.building.name, "address": self.building.address,
                      "location": (self.building.location.model_dump(mode="json")

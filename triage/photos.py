@@ -31,7 +31,7 @@ from .errors import InputRefused, io_failure
 if TYPE_CHECKING:
     from triage.model import Photo, Survey
 
-MAX_BYTES = 20_000_000          # 20 MB (decimal), as DESIGN's "Numbers and sizes" gives it
+MAX_BYTES = 20_000_000          # 20 MB (decimal), as docs/formats.md ("Photos") gives it
 MAX_PIXELS = 40_000_000         # 40 megapixels, width times height
 FORMATS = ("JPEG", "PNG")
 

@@ -1,7 +1,7 @@
 """The demo surveys of Kōwhai Bay (invented town, invented Tūrama Fault earthquake).
 
 Each sample is assessed and its outcome pinned, so the demo data can never silently drift. The
-expected outcomes were worked by hand from the rules of DESIGN.md (see each case's comment).
+expected outcomes were worked by hand from the rules of docs/method.md (see each case's comment).
 """
 
 from __future__ import annotations

@@ -2,7 +2,7 @@
 Table C1-3 "Structural Performance Levels and Damage - Vertical Elements" (same values in
 FEMA 273 (1997) Table 2-4 and ASCE 41-06 Table C1-3).
 
-Status: from memory (REFERENCES.md section 1), consistent with a secondary source for the steel
+Status: from memory (docs/references.md, FEMA 356), consistent with a secondary source for the steel
 moment frame transient values. Checked here: every system's IO, LS and CP figures as the table
 gives them, the number used for "negligible" (our assumption, 0.2% capped at the IO transient
 figure), and that the engine places drifts just under and just over each figure on the right
@@ -51,7 +51,7 @@ def test_row_matches_fema356_table_c1_3(system, io_t, io_p, ls_t, ls_p, cp):
 def test_figures_used_for_levels(system, io_t, io_p, ls_t, ls_p, cp):
     std = load()
     f = figures(system, std, std.assumptions)
-    # "negligible" is our 0.2%, never more than the IO transient figure (REFERENCES.md s.1).
+    # "negligible" is our 0.2%, never more than the IO transient figure (docs/references.md).
     io = min(0.002, io_t / 100) if io_p == "negligible" else io_p / 100
     assert pytest.approx(io, abs=1e-12) == f.IO
     assert pytest.approx(ls_p / 100, abs=1e-12) == f.LS

@@ -2,7 +2,7 @@
 Buildings, as described by Nakano, Maeda, Kuramoto & Murakami (13WCEE 2004, paper 124) and
 Maeda et al. (16WCEE 2017).
 
-Status: from memory, matching one secondary source (REFERENCES.md section 3); these are the 2001
+Status: from memory, matching one secondary source (docs/references.md, JBDPA); these are the 2001
 factors. Checked here: the crack-width bounds of the damage classes, the seismic capacity
 reduction factors eta for ductile columns, brittle columns and walls, the damage-grade bounds of
 R, and R = sum(eta_i w_i) / sum(w_i) on hand-worked storeys. Tolerance 1e-9 on R.

@@ -1,4 +1,4 @@
-"""As-built plumbness tolerances (REFERENCES.md section 4).
+"""As-built plumbness tolerances (docs/references.md, as-built plumbness).
 
 - AISC 303-16 Code of Standard Practice, section 7.13.1.1: column out-of-plumb at most 1/500
   between working points = 0.2%. Status: checked.

@@ -1,7 +1,7 @@
 """Residual-drift repairability fragilities.
 
 - FEMA P-58-1 (2012, 2nd ed. 2018): irreparable damage, lognormal, median 1.0%, beta 0.3.
-  Status: from memory (REFERENCES.md section 2).
+  Status: from memory (docs/references.md, FEMA P-58).
 - Ramirez & Miranda (2012), Earthquake Engng Struct Dyn 41(11): demolition, lognormal, median
   1.5%, beta 0.3. Status: secondary.
 - McCormick, Aburano, Ikenaga & Nakashima (2008), 14WCEE: repair-or-rebuild threshold 0.5%
@@ -46,7 +46,7 @@ def test_fragilities_against_scipy_lognorm(offset_mm):
 
 
 def test_design_example_values():
-    # DESIGN.md's example: largest drift 0.60% gives 0.0443 and 0.00113.
+    # docs/method.md's worked example: largest drift 0.60% gives 0.0443 and 0.00113.
     s = make([storey("1", [reading("x", 12.0), reading("y", 0.0)])])
     rep = {r.key: r.probability for r in assess(s).repairability}
     assert rep["irreparable"] == pytest.approx(0.0443, abs=5e-5)

@@ -1,7 +1,7 @@
 """The tier probability of a single reading against scipy.stats.norm.
 
 Source: the normal distribution (standard statistics); the reading's stated standard
-uncertainty is its sigma (REFERENCES.md section 4c, common practice for the defaults). For one
+uncertainty is its sigma (docs/references.md, default uncertainties: common practice for the defaults). For one
 reading d ~ N(mu, s) in a concrete frame, P(occupy) = P(|d| <= IO) = Phi((IO-mu)/s) -
 Phi((-IO-mu)/s), and P(evacuate) = 1 - P(|d| <= LS). Tolerance 1e-6.
 """

@@ -1,5 +1,5 @@
 """Signed reports, both kinds: every changed byte is caught, signers are accepted or not, and
-the embedded survey is re-assessed (exit codes of DESIGN.md: 0, 1, 3, 4, 5).
+the embedded survey is re-assessed (exit codes of docs/index.md: 0, 1, 3, 4, 5).
 
 New keys (ECDSA P-256) make a standard PDF signature (PAdES B-B); Ed25519 keys of the first
 round keep signing the first way. Tests that hold for both run once per kind.

@@ -1,6 +1,6 @@
 """The engine's tier probabilities against a brute-force Monte Carlo of 200,000 samples.
 
-The brute force is written plainly here, from DESIGN.md's rules and the tables' numbers typed
+The brute force is written plainly here, from the rules of docs/method.md and the tables' numbers typed
 in again (FEMA 356 Table C1-3 and JBDPA 2001 eta, both from memory): every reading and every
 crack is drawn from its normal distribution, every sample is taken through the whole chain
 (drift level, crack class, R, grade, damage floor, tier). The engine must agree within 0.01 on

@@ -1,4 +1,4 @@
-"""The walls of DESIGN.md: the computing core loads no UI, PDF or database library."""
+"""The walls of DEVELOPERS.md: the computing core loads no UI, PDF or database library."""
 
 from __future__ import annotations
 

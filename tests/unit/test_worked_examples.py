@@ -10,7 +10,7 @@ from triage.model import parse_survey
 
 
 def test_concrete_frame_governed_by_drift():
-    # DESIGN.md's example. Storey 2 y: 12/2000 = 0.60% > 0.20% (negligible, IO) and <= 1.0% (LS)
+    # docs/method.md's worked example. Storey 2 y: 12/2000 = 0.60% > 0.20% (negligible, IO) and <= 1.0% (LS)
     # for concrete frames -> LS -> hold. Storey 2 R = (19 + 0.5)/20 = 0.975 -> slight -> IO.
     a = assess(parse_survey(two_storey_frame()))
     assert (a.tier, a.performance_level) == ("hold", "LS")

@@ -2,7 +2,7 @@
 
 No clock, no I/O, no UI; the only randomness is seeded from the survey id. Structural level =
 the worst over storeys, directions and bases of: drift level, capacity level (from the JBDPA
-grade), and the member-damage floor; hazards then raise the tier (DESIGN.md).
+grade), and the member-damage floor; hazards then raise the tier (docs/method.md).
 """
 
 from __future__ import annotations
@@ -91,7 +91,7 @@ def _drift_reason(label: str, d: str, v: float, f: Figures, lv: int) -> str:
 
 def assess(survey: Survey, assumptions: Assumptions | None = None,
            std: Standards | None = None) -> Assessment:
-    """Assess a validated survey; see DESIGN.md for every rule applied."""
+    """Assess a validated survey; docs/method.md states every rule applied."""
     std = std or load()
     a = assumptions or std.assumptions
     seed = seed_of(survey)

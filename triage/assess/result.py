@@ -20,7 +20,7 @@ TIERS: tuple[Tier, ...] = ("occupy", "hold", "evacuate")
 Basis = Literal["drift", "capacity", "damage", "hazard", "no-data"]
 Dir = Literal["x", "y"]
 
-# Our mark for each tier, always written beside the word (DESIGN.md: presentation is ours).
+# Our mark for each tier, always written beside the word (docs/glossary.md: presentation is ours).
 TIER_MARK: dict[str, str] = {"occupy": "○", "hold": "◐", "evacuate": "●"}
 
 CAUTION = ("Indicative only, not a safety certificate: the licensed engineer of record and the "

@@ -23,7 +23,7 @@ def norm_cdf1(z: float) -> float:
 
 
 def sig6(x: float) -> float:
-    """Round to 6 significant digits (DESIGN.md: output floats are so rounded)."""
+    """Round to 6 significant digits (docs/method.md: output floats are so rounded)."""
     if x == 0 or not math.isfinite(x):
         return 0.0 if x == 0 else x
     return float(f"{x:.6g}")

@@ -5,7 +5,7 @@ every subparser sets `func` to its own run function (`run`, or `run_NAME` where 
 registers several commands), which `main` calls. Shared helpers are in `common`. Heavy
 libraries are imported inside the run functions, so start-up stays quick.
 Every refusal is one line on standard error naming the file or field and the rule, with the
-exit status of DESIGN.md; never a traceback.
+exit status of docs/index.md; never a traceback.
 """
 
 from __future__ import annotations
@@ -47,7 +47,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv: Sequence[str] | None = None) -> int:
-    """Run the command; return its exit status (DESIGN.md)."""
+    """Run the command; return its exit status (docs/index.md, "Exit status")."""
     parser = build_parser()
     try:
         args = parser.parse_args(argv)
@@ -76,7 +76,7 @@ def main(argv: Sequence[str] | None = None) -> int:
 
 
 def _check_forms() -> None:
-    """Refuse to start on a malformed field-form file rather than guess (issue 6)."""
+    """Refuse to start on a malformed field-form file rather than guess."""
     from triage.forms import FormError, check_forms
 
     try:

@@ -19,7 +19,7 @@ def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-ar
 
 
 def run(args: argparse.Namespace) -> int:
-    """Verify a report: exit 0, 1, 3, 4 or 5 (DESIGN.md)."""
+    """Verify a report: exit 0, 1, 3, 4 or 5 (docs/index.md, "Exit status")."""
     from triage.report.verify import verify_report
 
     if args.expect is not None:

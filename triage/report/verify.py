@@ -1,10 +1,10 @@
 """Check a report: intact, signed by an accepted signer, and still what this engine computes.
 
 `verify_report(pdf, expect=None)` returns a `VerifyResult` whose `code` is the exit status of
-DESIGN.md: 0 intact, accepted and re-assessed to the same tier and level (probabilities within
-0.01); 1 changed or damaged (or not readable); 3 unsigned; 4 intact but the signer is not
-accepted; 5 intact and accepted, but this engine re-assesses the survey to another tier or
-level (both named). The file's bytes are checked before anything in it is parsed.
+docs/index.md ("Exit status"): 0 intact, accepted and re-assessed to the same tier and level
+(probabilities within 0.01); 1 changed or damaged (or not readable); 3 unsigned; 4 intact but
+the signer is not accepted; 5 intact and accepted, but this engine re-assesses the survey to
+another tier or level (both named). The file's bytes are checked before anything in it is parsed.
 
 Two kinds of signature are checked (`triage.report.signing`): the standard PDF signature of
 P-256 keys (PAdES B-B, `triage.report.pades`) and the first way of Ed25519 keys. A signer is

@@ -119,7 +119,7 @@ class Tolerance(_Frozen):
 
 
 class System(_Frozen):
-    """A structural system key of DESIGN.md, with our one-line description."""
+    """A system key of the survey format (docs/formats.md), with our one-line description."""
 
     key: str
     material: str

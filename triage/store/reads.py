@@ -50,7 +50,7 @@ class SurveyReads(StoreCore):
     def photo_dir(self, survey_id: str | uuid.UUID) -> Path | None:
         """The folder the survey's photo paths are relative to, when it is known.
 
-        Photo paths are relative to the survey file (DESIGN.md); the store keeps no files, so
+        Photo paths are relative to the survey file (docs/formats.md); the store keeps no files, so
         this is the folder of the survey file or report it was imported from, while that file
         is still there. None for a survey made in the app or merged from another database.
         """

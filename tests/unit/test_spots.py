@@ -1,4 +1,4 @@
-"""Readings to spots (DESIGN "Readings are taken at spots"), each value worked by hand below.
+"""Readings to spots (docs/method.md, "Readings, spots and repeats"), each value worked by hand below.
 
 Units: offsets over a 2000 mm gauge, so 1 mm is a drift ratio of 0.0005.
 """

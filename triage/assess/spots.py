@@ -35,7 +35,7 @@ from triage.standards import Assumptions
 Dir = Literal["x", "y"]
 Method = Literal["offset", "tilt"]
 
-# Repeats share a gauge within this fraction of the spot's first gauge (DESIGN: +/-10%).
+# Repeats share a gauge within this fraction of the spot's first gauge (docs/method.md: +/-10%).
 GAUGE_TOLERANCE = 0.10
 # The chi-square test of agreement between repeats is taken at this quantile.
 AGREEMENT_QUANTILE = 0.99

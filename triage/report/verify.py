@@ -316,7 +316,7 @@ class ImportVerdict:
 
 
 def import_verdict(pdf: Path, trusted: list[PublicKey] | None = None) -> ImportVerdict:
-    """Verify a report before its survey is imported (DESIGN: imports check signatures).
+    """Verify a report before its survey is imported (docs/formats.md: `triage import REPORT.pdf`).
 
     Changed or damaged (1): refused. Unsigned (3), signer not accepted (4), or intact but
     re-assessed to another tier or level (5): imported, with a warning line naming why.

@@ -503,6 +503,16 @@ def parse_survey(data: Any) -> Survey:
         raise SurveyError(f"(survey): nested over {rules.MAX_DEPTH} levels deep") from None
 
 
+def _object(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
+    """A JSON object whose keys are text (a lone surrogate in a key is refused, as in values)."""
+    for key, _ in pairs:
+        try:
+            rules.plain_text(key)
+        except ValueError as err:
+            raise SurveyError(f"(file): a key {err}") from None
+    return dict(pairs)
+
+
 def load_json_text(text: str) -> Any:
     """JSON data of a survey file's text, checked for depth and number size before parsing.
 
@@ -514,7 +524,9 @@ def load_json_text(text: str) -> Any:
     except RuleBroken as err:
         raise SurveyError(f"(file): {err.rule}") from None
     try:
-        return json.loads(text)
+        return json.loads(text, object_pairs_hook=_object)
+    except SurveyError:
+        raise
     except json.JSONDecodeError as err:
         raise SurveyError(f"(file): not JSON: {err.msg} at line {err.lineno} column {err.colno}"
                           ) from None

@@ -385,3 +385,9 @@ def test_gauge_under_a_quarter_storey_gets_a_note_not_a_refusal() -> None:
     assert len(notes) == 1
     assert notes[0].startswith("storey G, reading 1: gauge 799 mm is under a quarter")
     assert rules.short_gauge_notes(d["storeys"]) == notes   # JSON data reads the same
+
+
+def test_lone_surrogate_in_a_key_refused() -> None:
+    text = json.dumps(base()).replace('"use"', '"\\ud800"')
+    with pytest.raises(SurveyError, match=r"^\(file\): a key holds a lone surrogate \\ud800"):
+        parse_survey_text(text)

@@ -31,6 +31,7 @@ def brute_force(survey, samples: int = 10_000, seed: int = 1) -> dict[str, float
     level = np.zeros(samples, dtype=int)
     figs = {}
     from triage.assess.drift import figures
+    from triage.assess.floors import group_floor
     from triage.assess.spots import storey_spots
     for d in ("x", "y"):
         figs[d] = figures(getattr(survey.building.system, d), std, a)
@@ -65,9 +66,12 @@ def brute_force(survey, samples: int = 10_000, seed: int = 1) -> dict[str, float
             if den:
                 r = num / den
                 level = np.maximum(level, np.where(r >= 0.8, 0, np.where(r >= 0.6, 1, 2)))
+        vertical = [cls for m, cls in zip(st.members, classes, strict=True)
+                    if m.kind in ("column", "wall")]
         for m, cls in zip(st.members, classes, strict=True):
-            if m.kind in a.vertical_kinds:
-                level = np.maximum(level, np.where(cls == 5, 2, np.where(cls == 4, 1, 0)))
+            level = np.maximum(level, group_floor(m, survey.building.system, std, a).by_class[cls])
+        if sum(m.count for m in st.members if m.kind in ("column", "wall")) >= 2 and vertical:
+            level = np.where(np.all([c == 5 for c in vertical], axis=0), 3, level)
     tier = np.array([0, 1, 2, 2])[level]
     return {t: float(np.mean(tier == i)) for i, t in enumerate(("occupy", "hold", "evacuate"))}
 

@@ -20,9 +20,10 @@ from triage.resources import samples_dir
 # name: (tier, performance level, governing storey, governing dir, governing basis, provisional)
 EXPECTED = {
     # rc_wall x / rc_frame y; largest drift 0.10% (2 mm / 2 m) under the IO figure 0.20%;
-    # R = (14 + 0.75 + 0.75) / 16 = 96.9% in y (slight). Nothing above IO: G, drift x (ties go
-    # to the lowest storey, drift x first).
-    "clinic_tidewater_medical": ("occupy", "IO", "G", "x", "drift", False),
+    # R = (14 + 0.75 + 0.75) / 16 = 96.9% in y (slight). Nothing above IO. Governing: the largest
+    # |d| / F_IO: G y (grid A1) 0.10/0.20 = 0.5 ties storey 1 y (stair landing) 0.5; G x at most
+    # 0.075/0.20 = 0.375; the tie goes to the lowest storey: G, y.
+    "clinic_tidewater_medical": ("occupy", "IO", "G", "y", "drift", False),
     # rc_frame both ways; drift at most 0.15%. Ground storey R = (8 + 5 x 0.6 + 3 x 0.3) / 16
     # = 74.4% (brittle columns, classes II and III): grade moderate, LS, so hold; equal R in
     # both directions, so x.
@@ -39,8 +40,9 @@ EXPECTED = {
     # brick infill along the street: tilt 0.55 deg = 0.96% over the CP figure 0.6%: beyond CP.
     # Upper storey not entered and ground storey seen only in part: provisional.
     "shops_wharf_street": ("evacuate", "beyond-CP", "G", "x", "drift", True),
-    # wood stud walls: 0.08 deg = 0.14% within the IO figure 0.25%.
-    "house_driftwood_crescent": ("occupy", "IO", "G", "x", "drift", False),
+    # wood stud walls: the largest tilt, y 0.08 deg = 0.14%, within the IO figure 0.25%; by
+    # |d| / F_IO it beats x's 0.07 deg (0.12%): G, y.
+    "house_driftwood_crescent": ("occupy", "IO", "G", "y", "drift", False),
     # structure at IO (3.5 mm over a 2 m gauge = 0.175%, within 0.25%); the cracked
     # chimney (falling hazard, storey 1) raises the tier to hold and so governs.
     "house_kelp_street": ("hold", "IO", "1", None, "hazard", False),
@@ -65,6 +67,25 @@ def test_sample_outcome(name: str) -> None:
     assert (a.governing.storey, a.governing.dir, a.governing.basis) == (storey, d, basis)
     assert a.provisional is provisional
     assert a.reasons, "every outcome carries its reasons"
+
+
+def test_second_round_outcomes() -> None:
+    # The timber house: occupy, but the four tilts each taken as a separate place leave it
+    # borderline. IO 0.25% = 0.143239 deg; sd 0.05 deg each:
+    # P(|t| <= IO) = Phi((0.143239 - t)/0.05) - Phi((-0.143239 - t)/0.05):
+    # 0.05 -> 0.96884, 0.07 -> 0.92850, 0.08 -> 0.89702, 0.04 -> 0.98041; product 0.79112 < 0.8.
+    a = assess(_load("house_driftwood_crescent"))
+    assert a.tier_probability["occupy"] == pytest.approx(0.79112, abs=2e-5)
+    assert a.borderline is True
+    assert a.reasons[0].startswith("no permanent drift distinguishable from construction")
+    # The flats after the aftershock: evacuate by CP drift (0.85%) and a class V wall; nothing
+    # within 3 sd could change evacuate (LS 0.60% is (0.85 - 0.60)/0.05 = 5 sd away).
+    b = assess(_load("flats_mariner_court_2"))
+    assert b.measure_next is None and b.settled_by is not None
+    # The warehouse: the buckled brace (class IV, a member of the braced frame's lateral system)
+    # floors it at LS.
+    c = assess(_load("warehouse_anchor_quay"))
+    assert c.storeys[0].damage_floor == "LS"
 
 
 def test_samples_cover_the_brief() -> None:

@@ -77,7 +77,12 @@ def test_the_sign_of_an_offset_does_not_matter(d):
         for r in s["readings"]:
             r["offset_mm"] = -r["offset_mm"]
     a, b = run(d), run(flipped)
-    assert a.model_dump() == b.model_dump()
+    da, db = a.model_dump(), b.model_dump()
+    # The spots keep their signs: each flips, nothing else changes.
+    for sa, sb in zip(da["storeys"], db["storeys"], strict=True):
+        assert [s["value"] for s in sa["spots"]] == [-s["value"] for s in sb["spots"]]
+        sa["spots"] = sb["spots"] = None
+    assert da == db
 
 
 # Powers of two keep the arithmetic exact; gauges scaled up would pass the storey height plus
@@ -120,19 +125,5 @@ def test_an_offset_and_the_equivalent_tilt_agree(d):
 
 
 @given(surveys())
-def test_probabilities_sum_to_one(d):
-    tp = run(d).tier_probability
-    assert set(tp) == {"occupy", "hold", "evacuate"}
-    assert all(0.0 <= p <= 1.0 for p in tp.values())
-    assert abs(sum(tp.values()) - 1.0) < 1e-6
-
-
-@given(surveys())
 def test_the_same_survey_twice_gives_identical_output(d):
     assert run(d).to_json() == run(copy.deepcopy(d)).to_json()
-
-
-@given(surveys())
-def test_borderline_means_the_point_tier_is_less_likely_than_half(d):
-    a = run(d)
-    assert a.borderline == (a.tier_probability[a.tier] < 0.5)

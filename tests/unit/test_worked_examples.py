@@ -19,11 +19,17 @@ def test_concrete_frame_governed_by_drift():
     assert a.storey("2").residual_capacity == 0.975
     assert a.reasons[0].startswith("storey 2, y: residual drift 0.60% is over 0.20%")
     assert "FEMA 356 Table C1-3, from memory" in a.reasons[0]
-    # Storey 2 x: 2/2000 = 0.10% is (0.20-0.10)/0.05 = 2.0 sd under IO: the nearest threshold.
-    assert a.measure_next is not None
-    assert (a.measure_next.storey, a.measure_next.dir) == ("2", "x")
-    assert a.measure_next.why == "0.10% is 2.0 sd under the IO value 0.20%"
-    assert not a.provisional and not a.borderline
+    # Nothing measurable could change hold within 3 sd: to occupy, storey 2 y must fall under
+    # 0.20%, (0.60 - 0.20)/0.05 = 8 sd away; to evacuate, over LS 1.0%, 8 sd; storey 2 x set
+    # over IO (2.0 sd) leaves the tier at hold; C3's 1.4 mm crack is (1.4 - 1.0)/0.05 = 8 sd
+    # from its class bound. So measure_next is null and settled_by names the drift.
+    assert a.measure_next is None
+    assert a.settled_by is not None and "storey 2, y: residual drift 0.60%" in a.settled_by
+    assert a.governing_spot is not None and (a.governing_spot.storey, a.governing_spot.dir) == (
+        "2", "y")
+    # P(hold) = P(|y2| in (0.2%, 1.0%]) times the other parts: 1 - 2 Phi(-8) = 1 - 1.2e-15,
+    # so hold is not borderline.
+    assert not a.provisional and a.borderline is False
 
 
 def test_braced_steel_governed_by_member_damage_floor():
@@ -120,12 +126,33 @@ def test_nothing_logged_is_provisional_hold():
     assert (a3.tier, a3.governing.basis) == ("evacuate", "hazard")
 
 
-def test_ties_go_to_the_lowest_storey_then_drift_x():
-    # Both storeys LS in both directions by drift: storey 1, x governs.
+def test_governing_is_the_largest_ratio_to_the_level_figure():
+    # All four at LS in a concrete frame (LS figure 1.0%): storey 1 x 8/2000 = 0.40%, y 0.45%;
+    # storey 2 x 0.45%, y 0.40%. |d|/F_LS: 0.40, 0.45, 0.45, 0.40: storey 1 y and storey 2 x
+    # tie at 0.45; ties go to the lowest storey: 1, y.
     s = make([storey("1", [reading("x", 8.0), reading("y", 9.0)]),
               storey("2", [reading("x", 9.0), reading("y", 8.0)])])
     a = assess(s)
-    assert a.governing.model_dump() == {"storey": "1", "dir": "x", "basis": "drift"}
+    assert a.governing.model_dump() == {"storey": "1", "dir": "y", "basis": "drift"}
+    # In a tie of storey and ratio, x comes first: storey 1 x 9 mm as well.
+    s2 = make([storey("1", [reading("x", 9.0), reading("y", 9.0)])])
+    assert assess(s2).governing.model_dump() == {"storey": "1", "dir": "x", "basis": "drift"}
+
+
+def test_governing_compares_each_direction_against_its_own_figure():
+    # x: concrete walls, LS 0.5%; y: concrete frame, LS 1.0%. Storey 1 x 0.30% (8 - 2 = 6 mm,
+    # 6/2000), y 0.90% (18 mm): both LS. x: 0.30/0.5 = 0.60; y: 0.90/1.0 = 0.90 -> y governs,
+    # although the rule "lowest storey, x first" would have picked x.
+    s = make([storey("1", [reading("x", 6.0), reading("y", 18.0)])], sx="rc_wall", sy="rc_frame")
+    a = assess(s)
+    assert a.performance_level == "LS"
+    assert a.governing.model_dump() == {"storey": "1", "dir": "y", "basis": "drift"}
+    # Storey 2 x at 0.45% (9 mm): 0.45/0.5 = 0.90 ties y's 0.90 -> lowest storey (1, y) wins.
+    s2 = make([storey("1", [reading("x", 6.0), reading("y", 18.0)]),
+               storey("2", [reading("x", 9.0), reading("y", 1.0)])], sx="rc_wall", sy="rc_frame")
+    a2 = assess(s2)
+    assert a2.governing.model_dump() == {"storey": "1", "dir": "y", "basis": "drift"}
+    assert a2.governing_spot is not None and a2.governing_spot.reading == 1
 
 
 def test_drift_before_damage_in_a_tie_and_class_iv_crack():

@@ -7,6 +7,7 @@ Screens, JSON and the PDF are all drawn from one `Assessment` object. Floats are
 from __future__ import annotations
 
 import json
+import math
 from typing import Any, Literal
 
 from pydantic import BaseModel, ConfigDict, Field
@@ -26,6 +27,24 @@ TIER_MARK: dict[str, str] = {"occupy": "○", "hold": "◐", "evacuate": "●"}
 CAUTION = ("Indicative only, not a safety certificate: the licensed engineer of record and the "
            "local building authority decide, under local codes.")
 PROBABILITY_LABEL = "from measurement uncertainty only"
+PROVISIONAL_LABEL = "measured parts only"
+SPOTS_LABEL = "each spot taken as a separate place"
+
+
+def probability_text(p: float, se: float = 0.0) -> str:
+    """A tier probability as printed: never past its standard error, never past 3 decimals.
+
+    A sampled value is rounded to the place of its error's first significant digit (se 0.0023:
+    three decimals, se 0.04: two); an exact one (se 0) to three decimals. Under 0.001 prints
+    "< 0.001" and over 0.999 "> 0.999", 0 and 1 included (a float of 0 may be a tail too small
+    to hold).
+    """
+    if p < 0.001:
+        return "< 0.001"
+    if p > 0.999:
+        return "> 0.999"
+    places = 3 if se <= 0 else min(3, max(0, -math.floor(math.log10(se))))
+    return f"{p:.{places}f}"
 
 
 def tier_words(tier: str) -> str:
@@ -79,12 +98,55 @@ class Governing(_Out):
 
 
 class MeasureNext(_Out):
-    """Where one more reading helps most."""
+    """Where one more reading (or crack width) helps most."""
+
+    storey: str
+    dir: Dir | None = Field(description="null for a crack width")
+    why: str
+    where: str | None = None
+    what: Literal["reading", "spot", "crack"] = Field(
+        default="spot", description="a direction with no reading, a spot, or a crack width")
+    member: str | None = Field(default=None, description="the member group, for a crack")
+    z: float | None = Field(default=None, description="distance to the threshold in sd")
+
+    def text(self) -> str:
+        """The suggestion in words, e.g. 'storey 2, x (grid B2): ...'."""
+        if self.what == "crack":
+            return f"storey {self.storey}, {self.member}: {self.why}"
+        at = f" ({self.where})" if self.where else ""
+        return f"storey {self.storey}, {self.dir}{at}: {self.why}"
+
+
+class SpotRef(_Out):
+    """A spot named by storey, direction and `where` (null: a reading without one)."""
 
     storey: str
     dir: Dir
-    why: str
-    where: str | None = None
+    where: str | None
+    reading: int = Field(description="index of the spot's first reading in its storey")
+
+
+class PlumbnessSpot(_Out):
+    """A spot that sets or raises the tier while its drift lies in its plumbness band."""
+
+    storey: str
+    dir: Dir
+    where: str | None
+    drift: float = Field(description="the spot's absolute drift ratio")
+    band: float = Field(description="the as-built plumbness band of its material")
+
+
+class SpotResult(_Out):
+    """A spot of a storey: the signed drift ratio of its readings, averaged."""
+
+    dir: Dir
+    where: str | None
+    value: float = Field(description="signed drift ratio, baseline subtracted")
+    u: float = Field(description="standard uncertainty, the baseline's included")
+    readings: tuple[int, ...]
+    baseline: bool
+    disagree: bool = Field(description="the repeats disagreed: the largest was taken")
+    level: Level
 
 
 class MemberResult(_Out):
@@ -95,6 +157,8 @@ class MemberResult(_Out):
     kind: str
     count: int
     damage_class: DamageClass | None = Field(description="null: undamaged")
+    floor: Level | None = Field(default=None, description="the least level its class holds "
+                                "the structure to (damage floor, ours)")
     eta: float | None = Field(description="JBDPA eta; null where R does not apply")
     class_from: Literal["crack", "signs", "override"] | None
 
@@ -108,8 +172,9 @@ class StoreyResult(_Out):
     access: str
     drift_ratio: PerDir = Field(description="largest absolute reading per direction")
     drift_mean: PerDir = Field(description="mean of absolute readings per direction")
-    drift_sd: PerDir = Field(description="standard uncertainty of the governing reading")
+    drift_sd: PerDir = Field(description="standard uncertainty of the largest spot")
     readings: dict[str, int] = Field(description="number of readings per direction")
+    spots: tuple[SpotResult, ...] = ()
     performance_level: LevelPerDir = Field(description="level by drift, per direction")
     residual_capacity: float | None
     residual_capacity_by_dir: PerDir
@@ -158,7 +223,7 @@ class Assessment(_Out):
     performance_level: Level | None
     governing: Governing
     provisional: bool
-    borderline: bool
+    borderline: bool | None
     tier_probability: dict[Tier, float]
     measure_next: MeasureNext | None
     reasons: tuple[str, ...]
@@ -170,6 +235,14 @@ class Assessment(_Out):
     drift_figures: dict[Dir, Figures]
     engine: Engine
     sources: tuple[str, ...]
+    plumbness: tuple[PlumbnessSpot, ...] = ()
+    governing_spot: SpotRef | None = None
+    settled_by: str | None = None
+    tier_probability_se: dict[Tier, float] = Field(
+        default_factory=lambda: dict.fromkeys(TIERS, 0.0),
+        description="standard error of each sampled probability; 0 where exact")
+    residual_capacity_method: str | None = Field(
+        default=None, description="the published method behind R; null where none applies")
 
     def to_json(self) -> str:
         """The `triage-assessment/1` JSON text (sorted keys off: the schema's own order)."""

@@ -5,17 +5,88 @@ from __future__ import annotations
 from triage.model import Survey
 
 from .drift import pct
-from .result import CAUTION, PROBABILITY_LABEL, Assessment, tier_words
+from .result import (
+    CAUTION,
+    PROBABILITY_LABEL,
+    PROVISIONAL_LABEL,
+    SPOTS_LABEL,
+    TIERS,
+    Assessment,
+    probability_text,
+    tier_words,
+)
 
 
 def _pct(v: float | None) -> str:
     return "—" if v is None else pct(v)
 
 
+# The words below are shared by the text output, the screens and the report.
+
+def probabilities_words(a: Assessment) -> str:
+    """'occupy 0.841, hold 0.159, evacuate < 0.001', each printed no finer than its error."""
+    return ", ".join(f"{t} {probability_text(a.tier_probability[t], a.tier_probability_se[t])}"
+                     for t in TIERS)
+
+
+def probability_label(a: Assessment) -> str:
+    """What the probabilities rest on.
+
+    Measurement uncertainty only; on a provisional survey, the measured parts only; with
+    several spots, each taken as a separate place.
+    """
+    parts = [PROBABILITY_LABEL]
+    if a.provisional and a.performance_level is not None:
+        parts.append(PROVISIONAL_LABEL)
+    if sum(len(s.spots) for s in a.storeys) > 1:
+        parts.append(SPOTS_LABEL)
+    return "; ".join(parts)
+
+
+def borderline_words(a: Assessment) -> str:
+    """Whether the point tier is borderline, and which other tier has what chance."""
+    if a.borderline is None:
+        return "borderline: not assessed (no level)"
+    p = a.tier_probability[a.tier]
+    if not a.borderline:
+        return (f"not borderline: {a.tier} has {probability_text(p, a.tier_probability_se[a.tier])}"
+                " from measurement uncertainty")
+    others = [f"{t} {probability_text(a.tier_probability[t], a.tier_probability_se[t])}"
+              for t in TIERS if t != a.tier and a.tier_probability[t] > 0]
+    return (f"BORDERLINE: {a.tier} has only "
+            f"{probability_text(p, a.tier_probability_se[a.tier])}; "
+            + ", ".join(others))
+
+
+def governing_words(a: Assessment) -> str:
+    """What sets the tier, e.g. 'drift, storey 2, y (grid B2)'."""
+    g = a.governing
+    if g.basis == "no-data":
+        return "no data yet"
+    text = g.basis + (f", storey {g.storey}" if g.storey else "") + (f", {g.dir}" if g.dir else "")
+    if a.governing_spot is not None and a.governing_spot.where:
+        text += f" ({a.governing_spot.where})"
+    return text
+
+
+def measure_next_words(a: Assessment) -> str:
+    """The one measurement that could change the tier, or what settles it."""
+    if a.measure_next is not None:
+        return a.measure_next.text()
+    return "nothing to measure: " + (a.settled_by or "no reading or crack could change the tier")
+
+
+def plumbness_words(a: Assessment) -> list[str]:
+    """One line per spot that sets the tier inside its plumbness band."""
+    return [f"storey {p.storey}, {p.dir}" + (f" ({p.where})" if p.where else "")
+            + f": {pct(p.drift)} is within the as-built plumbness band ({pct(p.band)}) and sets "
+            "the tier; an as-built baseline at that spot (drawings, a lift shaft, facade lines) "
+            "or a second method would settle it" for p in a.plumbness]
+
+
 def summary(survey: Survey, a: Assessment) -> str:
     """A short readable summary that starts with the caution."""
     b = survey.building
-    g = a.governing
     lines = [
         f"CAUTION: {CAUTION}",
         "",
@@ -28,21 +99,18 @@ def summary(survey: Survey, a: Assessment) -> str:
         + ("   [provisional: the survey is incomplete]" if a.provisional else "")
         + ("   [borderline]" if a.borderline else ""),
         f"structural performance level: {a.performance_level or 'not assessed (no data)'}",
-        "governed by: " + (
-            {"no-data": "no data yet"}.get(g.basis)
-            or f"{g.basis}" + (f", storey {g.storey}" if g.storey else "")
-            + (f", {g.dir}" if g.dir else "")),
+        "governed by: " + governing_words(a),
         "",
         "reasons:",
         *[f"  - {r}" for r in a.reasons],
         "",
-        f"tier probabilities ({PROBABILITY_LABEL}): "
-        + ", ".join(f"{t} {p:.2f}" for t, p in a.tier_probability.items()),
+        f"tier probabilities ({probability_label(a)}): {probabilities_words(a)}",
+        borderline_words(a),
+        "measure next: " + measure_next_words(a),
     ]
-    if a.measure_next:
-        m = a.measure_next
-        at = f" ({m.where})" if m.where else ""
-        lines.append(f"measure next: storey {m.storey}, {m.dir}{at}: {m.why}")
+    if a.plumbness:
+        lines += ["", "plumbness (drift that cannot be told from construction lean):"]
+        lines += [f"  - {line}" for line in plumbness_words(a)]
     lines += ["", "storey   drift x   drift y   level x   level y   R        grade"]
     for s in reversed(a.storeys):
         r = "—" if s.residual_capacity is None else f"{s.residual_capacity:.1%}"

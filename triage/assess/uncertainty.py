@@ -59,15 +59,19 @@ def drift_cdfs(values: Sequence[float], us: Sequence[float], groups: Sequence[in
 
 @dataclass(frozen=True)
 class MemberModel:
-    """What decides a storey's member component: R per RC direction and the damage floor."""
+    """What decides a storey's member component.
+
+    R per RC direction, the damage floors and the all-class-V collapse rule.
+    """
 
     probs: np.ndarray  # (n_groups, 6): P(class index k) of each group
     point: np.ndarray  # (n_groups,): the point class of each group
     terms: dict[str, CapacityTerms]  # RC directions that have counted groups
-    vertical: np.ndarray  # (n_groups,) bool: counts toward the damage floor
-    floor_of_class: np.ndarray  # level index per class index 0..5
+    floors: np.ndarray  # (n_groups, 6): the level each class of each group holds the storey to
     grade_bounds: np.ndarray  # R lower bounds of slight, light, moderate (fractions)
     level_of_grade: np.ndarray  # level index per grade index 0..3 (slight..severe)
+    vertical: np.ndarray  # (n_groups,) bool: columns and walls, for the collapse rule
+    collapse_rule: bool  # enough vertical members logged for the all-class-V rule
 
     def level(self, k: np.ndarray) -> np.ndarray:
         """Component level index for class assignments `k` (shape (m, n_groups))."""
@@ -79,8 +83,10 @@ class MemberModel:
             grade = (r < self.grade_bounds[0]).astype(int) + (r < self.grade_bounds[1]) + (
                 r < self.grade_bounds[2])
             lv = np.maximum(lv, self.level_of_grade[grade])
-        if self.vertical.any():
-            lv = np.maximum(lv, self.floor_of_class[k[:, self.vertical]].max(axis=1))
+        if k.shape[1]:
+            lv = np.maximum(lv, self.floors[np.arange(k.shape[1])[None, :], k].max(axis=1))
+        if self.collapse_rule:
+            lv = np.where((k[:, self.vertical] == 5).all(axis=1), 3, lv)
         return lv
 
 
@@ -165,48 +171,74 @@ def member_cdf_exact(model: MemberModel, lo: int, hi: int) -> np.ndarray | None:
 
     Only levels lo <= L < hi are computed (under lo the probability is 0, from hi on 1).
     R >= b in a direction is, in integer units of 1/(20 s) of a weight, "total loss
-    sum((1 - eta) w) <= (1 - b) W": a sum of independent discrete losses. The damage floor is
-    handled by conditioning each vertical group on the classes the level allows. Columns and
-    walls without a direction count in both directions; walls with one count in it alone, and
-    the two directions then share the column part, which is summed over exactly.
+    sum((1 - eta) w) <= (1 - b) W": a sum of independent discrete losses. The damage floors
+    are handled by conditioning each group on the classes the level allows. Columns and walls
+    without a direction count in both directions; walls with one count in it alone, and the two
+    directions then share the column part, which is summed over exactly. The all-class-V rule
+    (level beyond-CP) is taken out by subtraction: P(A and not all V) = P(A) - P(all V) P(A | all
+    V), the second term computed the same way with every vertical group set to class V.
     """
-    terms = model.terms
     out = np.zeros(4)
     out[hi:] = 1.0
-    scale = 1
-    if terms:
-        w = np.concatenate([t.weights for t in terms.values()])
-        e20 = np.concatenate([t.etas.ravel() for t in terms.values()]) * 20
-        found = _grid_scale(w)
-        if found is None or _grid_scale(e20) != 1:
-            return None
-        scale = found
-    loss = {d: np.round((20 - 20 * t.etas) * t.weights[:, None] * scale).astype(np.int64)
-            for d, t in terms.items()}
-    rows = {d: {g: j for j, g in enumerate(t.groups)} for d, t in terms.items()}
-    dirs = list(terms)
-    shared = sorted(set.intersection(*(set(rows[d]) for d in dirs))) if dirs else []
-    for lv in range(lo, hi):
-        allowed = model.floor_of_class <= lv
-        probs = model.probs.copy()
-        vert = model.vertical
-        if vert.any():
-            pv = probs[vert] * allowed
-            pa = pv.sum(axis=1)
-            factor = float(np.prod(pa))
-            if factor <= TINY:
-                out[lv] = factor if factor > 0 else 0.0  # R's condition can only lower it
-                continue
-            probs[vert] = pv / pa[:, None]
-        else:
-            factor = 1.0
+    sums = _LossSums.of(model)
+    if sums is None:
+        return None
+    all_v = None
+    if model.collapse_rule:
+        pv = float(np.prod(model.probs[model.vertical, 5]))
+        if pv > 0.0:
+            given = model.probs.copy()
+            given[model.vertical] = 0.0
+            given[model.vertical, 5] = 1.0
+            all_v = (pv, given)
+    for lv in range(lo, min(hi, 3)):
+        p = sums.at_most(model, model.probs, lv)
+        if all_v is not None:
+            p -= all_v[0] * sums.at_most(model, all_v[1], lv)
+        out[lv] = p
+    return np.minimum(np.maximum.accumulate(np.clip(out, 0.0, 1.0)), 1.0)
+
+
+@dataclass(frozen=True)
+class _LossSums:
+    """R's conditions as integer loss sums per RC direction (see `member_cdf_exact`)."""
+
+    loss: dict[str, np.ndarray]
+    rows: dict[str, dict[int, int]]
+    scale: int
+
+    @classmethod
+    def of(cls, model: MemberModel) -> _LossSums | None:
+        terms = model.terms
+        scale = 1
+        if terms:
+            w = np.concatenate([t.weights for t in terms.values()])
+            e20 = np.concatenate([t.etas.ravel() for t in terms.values()]) * 20
+            found = _grid_scale(w)
+            if found is None or _grid_scale(e20) != 1:
+                return None
+            scale = found
+        loss = {d: np.round((20 - 20 * t.etas) * t.weights[:, None] * scale).astype(np.int64)
+                for d, t in terms.items()}
+        rows = {d: {g: j for j, g in enumerate(t.groups)} for d, t in terms.items()}
+        return cls(loss, rows, scale)
+
+    def at_most(self, model: MemberModel, probs: np.ndarray, lv: int) -> float:
+        """P(floors and R keep the component at level `lv` or better) under class `probs`."""
+        terms, rows, loss, scale = model.terms, self.rows, self.loss, self.scale
+        dirs = list(terms)
+        allowed = model.floors <= lv
+        pa_rows = probs * allowed
+        pa = pa_rows.sum(axis=1)
+        factor = float(np.prod(pa))
+        if factor <= TINY:
+            return factor if factor > 0 else 0.0  # R's condition can only lower it
+        probs = pa_rows / pa[:, None]
         ok = model.level_of_grade <= lv
         if not dirs or ok[3]:
-            out[lv] = factor  # severe R still meets this level: R sets no condition
-            continue
+            return factor  # severe R still meets this level: R sets no condition
         if not ok.any():
-            out[lv] = 0.0
-            continue
+            return 0.0
         b = model.grade_bounds[int(np.flatnonzero(ok).max())]
         caps = {d: int(np.floor((1.0 - b) * 20 * scale * terms[d].total + 1e-6)) for d in dirs}
         # Hoeffding's inequality settles most directions without the sums: a total loss whose
@@ -214,20 +246,18 @@ def member_cdf_exact(model: MemberModel, lo: int, hi: int) -> np.ndarray | None:
         # it with certainty to within HOEFFDING.
         verdicts = [_hoeffding(loss[d], probs[list(terms[d].groups)], caps[d]) for d in dirs]
         if any(v == 0 for v in verdicts):
-            out[lv] = 0.0
-            continue
+            return 0.0
         if all(v == 1 for v in verdicts):
-            out[lv] = factor
-            continue
+            return factor
 
-        def pmf(groups: list[int], d: str, cap: int, p: np.ndarray = probs) -> np.ndarray:
+        def pmf(groups: list[int], d: str, cap: int) -> np.ndarray:
             idx = [rows[d][g] for g in groups]
-            return _loss_pmf(loss[d][idx], p[groups], cap)
+            return _loss_pmf(loss[d][idx], probs[groups], cap)
 
+        shared = sorted(set.intersection(*(set(rows[d]) for d in dirs)))
         if len(dirs) == 1 or all(len(rows[d]) == len(shared) for d in dirs):
             d0 = min(dirs, key=lambda d: caps[d])
-            out[lv] = factor * float(pmf(sorted(rows[d0]), d0, caps[d0]).sum())
-            continue
+            return factor * float(pmf(sorted(rows[d0]), d0, caps[d0]).sum())
         dx, dy = dirs
         top = max(caps.values())
         pc = pmf(shared, dx, top)
@@ -236,8 +266,7 @@ def member_cdf_exact(model: MemberModel, lo: int, hi: int) -> np.ndarray | None:
         c = np.arange(top + 1)
         gx = np.where(c <= caps[dx], fx[np.clip(caps[dx] - c, 0, caps[dx])], 0.0)
         gy = np.where(c <= caps[dy], fy[np.clip(caps[dy] - c, 0, caps[dy])], 0.0)
-        out[lv] = factor * float((pc * gx * gy).sum())
-    return np.minimum(np.maximum.accumulate(np.clip(out, 0.0, 1.0)), 1.0)
+        return factor * float((pc * gx * gy).sum())
 
 
 def member_cdf(model: MemberModel, rng: np.random.Generator) -> tuple[np.ndarray, bool]:

@@ -423,7 +423,7 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
         reasons=list(a.reasons),
         probability_label=PROBABILITY_LABEL,
         probabilities=probs,
-        borderline=a.borderline,
+        borderline=bool(a.borderline),
         borderline_text=("BORDERLINE: the measurement uncertainty alone gives the point tier "
                          "less than an even chance" if a.borderline else "not borderline"),
         measure_next=measure_next,

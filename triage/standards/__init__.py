@@ -118,6 +118,30 @@ class Tolerance(_Frozen):
     drift_pct: float
 
 
+class FloorMatch(_Frozen):
+    """One way a member group falls in a row of the damage-floor table."""
+
+    kinds: tuple[str, ...] = ()
+    ductility: Literal["ductile", "brittle"] | None = None
+    materials: tuple[str, ...] = ()
+    systems: tuple[str, ...] = ()
+
+    def matches(self, kind: str, ductility: str, system: str, material: str) -> bool:
+        """Whether a group of this kind and ductility, acting in this system, matches."""
+        return ((not self.kinds or kind in self.kinds)
+                and (self.ductility is None or ductility == self.ductility)
+                and (not self.materials or material in self.materials)
+                and (not self.systems or system in self.systems))
+
+
+class FloorRow(_Frozen):
+    """A row of the damage-floor table (rule of ours): which groups take its floors."""
+
+    key: str
+    label: str
+    match: tuple[FloorMatch, ...]
+
+
 class System(_Frozen):
     """A system key of the survey format (docs/formats.md), with our one-line description."""
 
@@ -160,7 +184,9 @@ class Assumptions(_Frozen):
     """The values of the named assumptions an assessment runs with (overridable)."""
 
     negligible_permanent_drift: float = Field(gt=0, lt=0.05)
-    plumbness_band: float = Field(ge=0, lt=0.05)
+    plumbness_bands: dict[str, float]
+    borderline_below: float = Field(gt=0, le=1)
+    measure_next_max_z: float = Field(gt=0)
     large_drift_warning: float = Field(gt=0, lt=0.25)
     max_drift_ratio: float = Field(gt=0, le=1)
     keep_out_factor: float = Field(gt=0, le=5)
@@ -168,7 +194,8 @@ class Assumptions(_Frozen):
     sd_tilt_deg: float = Field(gt=0)
     sd_crack_mm: float = Field(gt=0)
     grade_to_level: dict[Grade, Level]
-    member_damage_floor: dict[DamageClass, Level]
+    damage_floors: dict[str, dict[DamageClass, Level]]
+    collapse_min_vertical_members: int = Field(ge=1)
     vertical_kinds: tuple[str, ...]
 
     def with_overrides(self, **changes: Any) -> Assumptions:
@@ -184,6 +211,8 @@ class Standards(_Frozen):
     damage_states: DamageStateTable
     repairability: tuple[Repairability, ...]
     plumbness: tuple[Tolerance, ...]
+    plumbness_sources: dict[str, str] = Field(description="how each material's band is cited")
+    floor_rows: tuple[FloorRow, ...]
     systems: dict[str, System]
     signs: dict[str, Sign]
     sign_rule: str
@@ -218,6 +247,7 @@ def load() -> Standards:
     ds = _read("fema_p58_residual.toml")
     rep = _read("repairability.toml")
     plumb = _read("plumbness.toml")
+    floors = _read("damage_floors.toml")
     systems = _read("systems.toml")["systems"]
     signs = _read("signs.toml")
     hazards = _read("hazards.toml")["hazards"]
@@ -234,6 +264,8 @@ def load() -> Standards:
             for a in rep["alternatives"]),
         plumbness=tuple(Tolerance(source=_source(t), rule=t["rule"], drift_pct=t["drift_pct"])
                         for t in plumb["tolerances"]),
+        plumbness_sources=plumb["bands"],
+        floor_rows=tuple(FloorRow(**r) for r in floors["rows"]),
         systems={k: System(key=k, **v) for k, v in systems.items()},
         signs={k: Sign(key=k, damage_class=v["class"], basis=v["basis"], kinds=tuple(v["kinds"]),
                        systems=tuple(v["systems"]), description=v["description"])

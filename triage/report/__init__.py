@@ -145,7 +145,7 @@ def read_embedded_files(pdf: Path | bytes) -> dict[str, bytes]:
     except FileNotFoundError:
         raise ValueError(f"{where}: no such file") from None
     except (PyPdfError, OSError, ValueError, KeyError, TypeError, AttributeError,
-            IndexError, AssertionError) as err:
+            IndexError, AssertionError, NotImplementedError) as err:
         raise ValueError(f"{where}: not a readable PDF ({type(err).__name__})") from None
     out: dict[str, bytes] = {}
     for name, contents in found.items():

@@ -144,3 +144,28 @@ def test_without_postgis_the_map_view_has_lat_lon(pg, tmp_path, cli):
     with Store.open(tmp_path / "lap.db") as st:
         sync(st, pg.url("plain", "field2", password("field2")))
     assert pg.sql("SELECT count(*) FROM triage.building_map", "plain") == "7"
+
+
+def test_an_older_schema_is_upgraded_in_place_keeping_every_row(pg, tmp_path, cli, monkeypatch):
+    from triage.centre import schema
+
+    pg.createdb("older")
+    url = pg.url("older")
+    first = schema.MIGRATIONS[:1]
+    with monkeypatch.context() as m:
+        m.setattr(schema, "MIGRATIONS", first)
+        schema.init(url)
+        laptop(tmp_path / "lap.db", 8)
+        with Store.open(tmp_path / "lap.db") as st:
+            assert sync(st, pg.url("older", "field3", password("field3"))).versions == 8
+    # This triage refuses to use it until it is upgraded, then upgrades it, rows kept.
+    code, out, err = cli("--db", str(tmp_path / "lap.db"), "sync", "--to",
+                         pg.url("older", "field3", password("field3")))
+    assert code == 1 and "run 'triage centre init URL' there to upgrade" in err
+    code, out, err = cli("centre", "init", url)
+    assert code == 0 and f"schema upgraded to version {current_version()}" in out, err
+    assert pg.sql("SELECT count(*) FROM triage.versions", "older") == "8"
+    assert pg.sql("SELECT count(*) FROM triage.building_map", "older") == "7"
+    code, out, err = cli("--db", str(tmp_path / "lap.db"), "sync", "--to",
+                         pg.url("older", "field3", password("field3")))
+    assert code == 0 and "nothing to send" in out, err

@@ -10,3 +10,13 @@ throwaway server for the tests and the benchmark. Depends on `store` (the local 
 `model`; nothing below it knows it exists. psycopg is imported inside functions, so the
 command starts without it. How to run a centre: `docs/centre.md`.
 """
+
+SCHEMES = ("postgresql://", "postgres://")
+
+# The commands that may read from a centre (`triage --db URL COMMAND`); none of them writes there.
+READ_COMMANDS = ("list", "export", "report", "compare", "summary")
+
+
+def is_url(text: object) -> bool:
+    """Whether `--db` names a centre (by the URL's scheme) rather than a database file."""
+    return isinstance(text, str) and text.lower().startswith(SCHEMES)

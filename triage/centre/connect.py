@@ -15,19 +15,16 @@ from urllib.parse import parse_qsl, quote, unquote, urlencode, urlsplit, urlunsp
 
 from triage.store import StoreError
 
+from . import SCHEMES, is_url
+
 if TYPE_CHECKING:
     import psycopg
 
-SCHEMES = ("postgresql://", "postgres://")
+__all__ = ["SCHEMES", "CentreError", "clean", "connect", "first_line", "is_url", "redact"]
 
 
 class CentreError(StoreError):
     """A refusal about the centre: one line naming the server (never its password)."""
-
-
-def is_url(text: str | None) -> bool:
-    """Whether `--db` names a centre (by its scheme) rather than a file."""
-    return bool(text) and str(text).lower().startswith(SCHEMES)
 
 
 def _password(url: str) -> str | None:

@@ -226,6 +226,72 @@ ORDER BY building_id, at_utc DESC, (conflict_of IS NULL) DESC, id;
 """
 
 
+# Version 2: the views again. `buildings` picks each building's latest survey in byte order
+# of the text (COLLATE "C", as the local store does, whatever the database's collation);
+# current versions of one survey with the same JSON take the hidden flag of the one sent last
+# (a hide or an undo made on a laptop after another laptop reached the same text).
+VIEWS_V2 = """
+DROP VIEW triage.buildings CASCADE;
+DROP VIEW triage.conflicts;
+DROP VIEW triage.survey_list;
+CREATE VIEW triage.survey_list AS
+WITH cur AS (
+  SELECT v.*, last_value(v.hidden) OVER (PARTITION BY v.survey_id, v.doc_sha256 ORDER BY v.seq
+         ROWS BETWEEN UNBOUNDED PRECEDING AND UNBOUNDED FOLLOWING) AS hidden_last
+  FROM triage.current_versions v
+), firsts AS (
+  SELECT DISTINCT ON (survey_id, doc_sha256) *
+  FROM cur ORDER BY survey_id, doc_sha256, seq
+), counted AS (
+  SELECT f.*, count(*) OVER (PARTITION BY f.survey_id) AS n FROM firsts f
+), ranked AS (
+  SELECT c.*, row_number() OVER (PARTITION BY c.survey_id ORDER BY
+      CASE WHEN c.n > 1 THEN (SELECT min(w.seq) FROM triage.versions w
+                              WHERE w.survey_id = c.survey_id AND c.changes @> w.changes)
+           ELSE c.seq END, c.seq) AS rank
+  FROM counted c
+), heads AS (
+  SELECT CASE WHEN r.rank = 1 THEN r.survey_id ELSE r.alt_id END AS id,
+         r.survey_id AS first_id, r.rank,
+         CASE WHEN r.rank = 1 THEN r.conflict_of ELSE r.survey_id END AS conflict_of,
+         r.seq, r.state, r.doc_sha256, r.revision, r.hidden_last AS hidden, r.building_id,
+         r.building, r.address, r.lat, r.lon, r.inspector, r.at, r.at_utc, r.source, r.origin,
+         r.created_at, r.updated_at
+  FROM ranked r
+), latest_assessment AS (
+  SELECT DISTINCT ON (survey_id, doc_sha256) survey_id, doc_sha256, tier, level, gov_storey,
+         gov_dir, gov_basis, provisional, engine, seq
+  FROM triage.assessments ORDER BY survey_id, doc_sha256, seq DESC
+), visible AS (
+  SELECT id, conflict_of FROM heads WHERE NOT hidden
+)
+SELECT h.*,
+       a.tier, a.level, a.gov_storey, a.gov_dir, a.gov_basis, a.provisional, a.engine,
+       CASE WHEN a.survey_id IS NULL THEN NULL ELSE h.revision END AS assessed_revision,
+       coalesce(h.conflict_of IN (SELECT id FROM visible), false) AS conflict_up,
+       (coalesce(h.conflict_of IN (SELECT id FROM visible), false)
+        OR h.id IN (SELECT conflict_of FROM visible WHERE conflict_of IS NOT NULL)) AS conflict,
+       CASE WHEN h.rank = 1 THEN (SELECT max(r.revision) FROM triage.reports r
+                                  WHERE r.survey_id = h.id) END AS reported_revision
+FROM heads h
+LEFT JOIN latest_assessment a ON a.survey_id = h.first_id AND a.doc_sha256 = h.doc_sha256;
+
+CREATE VIEW triage.conflicts AS
+SELECT id, conflict_of, building_id, building, address, inspector, at, origin, hidden
+FROM triage.survey_list WHERE conflict;
+
+CREATE VIEW triage.buildings AS
+WITH v AS (SELECT * FROM triage.survey_list WHERE NOT hidden)
+SELECT DISTINCT ON (building_id)
+       building_id, building, address, lat, lon, at AS inspected_at, inspector, tier, level,
+       gov_storey, provisional, id AS survey_id,
+       count(*) OVER (PARTITION BY building_id) AS surveys,
+       bool_or(conflict_up) OVER (PARTITION BY building_id) AS conflict
+FROM v
+ORDER BY building_id, at_utc COLLATE "C" DESC, (conflict_of IS NULL) DESC, id COLLATE "C";
+"""
+
+
 @dataclass(frozen=True)
 class Migration:
     """One step of the schema: SQL run in one transaction with its version row."""
@@ -239,7 +305,14 @@ def _v1(conn: psycopg.Connection) -> None:
     conn.execute(SCHEMA_V1)
 
 
-MIGRATIONS: list[Migration] = [Migration(1, "tables, current versions, conflicts, buildings", _v1)]
+def _v2(conn: psycopg.Connection) -> None:
+    conn.execute(VIEWS_V2)
+
+
+MIGRATIONS: list[Migration] = [
+    Migration(1, "tables, current versions, conflicts, buildings", _v1),
+    Migration(2, "views: byte order of text, hidden flag of the same text sent last", _v2),
+]
 
 
 def current_version() -> int:

@@ -37,7 +37,8 @@ def build_parser() -> argparse.ArgumentParser:
         "an indicative occupancy tier. Indicative only: the licensed engineer of record and "
         "the local building authority decide."))
     parser.add_argument("--db", metavar="PATH", help="the survey database (default: under the "
-                        "user's data folder)")
+                        "user's data folder); or a centre's postgresql:// URL, read-only, for "
+                        "list, export, report, compare and summary")
     from triage import __version__
     parser.add_argument("--version", action="version", version=f"triage {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
@@ -58,6 +59,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         from . import screens
         args.func = screens.run_default
     try:
+        _check_centre_url(args)
         if args.command in ("ui", "demo", "form"):
             _check_forms()
         return int(args.func(args) or 0)
@@ -73,6 +75,15 @@ def main(argv: Sequence[str] | None = None) -> int:
         sys.stderr.write(f"triage {args.command}: internal error: {type(err).__name__}: {err} "
                          "(nothing was changed; please report it)\n")
         return 1
+
+
+def _check_centre_url(args: argparse.Namespace) -> None:
+    """`--db postgresql://…` only for the commands that read from a centre (never a file)."""
+    from triage.centre import READ_COMMANDS, is_url
+
+    if is_url(getattr(args, "db", None)) and args.command not in READ_COMMANDS:
+        raise UserError(f"--db: a centre's URL serves only {', '.join(READ_COMMANDS)}; "
+                        "laptops send to it with 'triage sync --to URL'")
 
 
 def _check_forms() -> None:

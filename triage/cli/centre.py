@@ -104,13 +104,10 @@ def _reassess(args: argparse.Namespace) -> int:
 
 
 def _sync(args: argparse.Namespace) -> int:
-    from triage.centre.connect import is_url
     from triage.centre.sync import sync
 
     from .common import open_store
 
-    if is_url(args.db):
-        raise UserError("sync sends a local database: give --db PATH (a file), not a URL")
     if args.batch < 1:
         raise UserError(f"--batch {args.batch}: must be at least 1")
     st = open_store(args, create=False)

@@ -74,7 +74,12 @@ def read_survey(path: str) -> Survey:
 def open_store(args: argparse.Namespace, *, create: bool = True,
                refresh: bool = True) -> Store:
     """The database of `--db` (default: under the user's data folder), or a one-line refusal."""
+    from triage.centre import is_url
     from triage.store import Store, StoreError
+
+    if is_url(args.db):
+        raise UserError("--db: a centre's URL serves only list, export, report, compare and "
+                        "summary; laptops send to it with 'triage sync --to URL'")
 
     try:
         return Store.open(args.db, create=create, refresh=refresh)
@@ -83,7 +88,20 @@ def open_store(args: argparse.Namespace, *, create: bool = True,
 
 
 def open_reader(args: argparse.Namespace, *, refresh: bool = True) -> SurveyReader:
-    """The surveys to read (`--db`, which must exist), for the commands that only read them."""
+    """The surveys to read (`--db`, which must exist), for the commands that only read them.
+
+    A `postgresql://` URL reads from a coordination centre (read-only; never written).
+    """
+    from triage.centre import is_url
+
+    if is_url(args.db):
+        from triage.centre.connect import CentreError
+        from triage.centre.reader import CentreReader
+
+        try:
+            return CentreReader.open(args.db)
+        except CentreError as err:
+            raise UserError(str(err)) from None
     return open_store(args, create=False, refresh=refresh)
 
 

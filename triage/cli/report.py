@@ -12,15 +12,22 @@ import sys
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from .common import read_survey_file, resolve_id
+from .common import open_reader, read_survey_file, resolve_id
 from .errors import UserError
 from .keys import load_signing_key
+
+
+def is_url(text: object) -> bool:
+    """Whether `--db` names a coordination centre (`triage.centre.is_url`)."""
+    from triage.centre import is_url as centre_url
+
+    return centre_url(text)
 
 if TYPE_CHECKING:
     from triage.assess import Assessment
     from triage.assess.compare import Comparison
     from triage.model import Survey
-    from triage.store.reader import ReportLog, SurveyReader
+    from triage.store.reader import SurveyReader
 
 
 def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg,unused-ignore]
@@ -54,7 +61,7 @@ def run(args: argparse.Namespace) -> int:
         raise UserError(f"{args.output}: is the survey file itself; choose another name")
     key = load_signing_key(args.key) if args.key else None
 
-    store: ReportLog | None = None
+    store: SurveyReader | None = None
     revision = None
     photo_dir = None
     if not src.exists() and not _is_id(args.source):
@@ -73,7 +80,9 @@ def run(args: argparse.Namespace) -> int:
                                 photo_dir=photo_dir, comparison=comparison)
         except ValueError as err:
             raise UserError(str(err)) from None
-        if store is not None and revision is not None:
+        from triage.store.reader import ReportLog
+
+        if isinstance(store, ReportLog) and revision is not None:   # a centre records nothing
             store.record_report(str(survey.survey_id), revision, str(out.resolve()),
                                 info.fingerprint)
     finally:
@@ -99,6 +108,8 @@ def _since_previous(survey: Survey, assessment: Assessment, store: SurveyReader 
     if survey.inspection.previous is None:
         return None
     own: SurveyReader | None = store
+    if own is None and is_url(getattr(args, "db", None)):
+        own = open_reader(args)
     if own is None:
         try:
             from triage.store import Store, StoreError, default_db_path
@@ -127,8 +138,14 @@ def _since_previous(survey: Survey, assessment: Assessment, store: SurveyReader 
             reader.close()
 
 
-def _from_store(args: argparse.Namespace) -> tuple[ReportLog, Survey, int]:
-    """Open the database and load the survey with this id (refusals are one line)."""
+def _from_store(args: argparse.Namespace) -> tuple[SurveyReader, Survey, int]:
+    """Open the database and load the survey with this id (refusals are one line).
+
+    From a centre (`--db postgresql://…`) the reader records nothing: the centre is never
+    written by `report`; only the PDF is.
+    """
+    if is_url(getattr(args, "db", None)):
+        return _load(open_reader(args), args)
     try:
         from triage.store import Store, StoreError, default_db_path
     except ImportError:
@@ -137,9 +154,16 @@ def _from_store(args: argparse.Namespace) -> tuple[ReportLog, Survey, int]:
     if not db.exists():
         raise UserError(f"{args.source}: no such file, and no database at {db}")
     try:
-        store: ReportLog = Store.open(db, create=False)
+        store: SurveyReader = Store.open(db, create=False)
     except StoreError as err:
         raise UserError(str(err)) from None
+
+    return _load(store, args)
+
+
+def _load(store: SurveyReader, args: argparse.Namespace) -> tuple[SurveyReader, Survey, int]:
+    """The survey the id names, with its revision; the reader closed on a refusal."""
+    from triage.store import StoreError
 
     try:
         sid = resolve_id(store, args.source)

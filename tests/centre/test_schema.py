@@ -25,7 +25,8 @@ def test_init_again_is_harmless_and_says_so(centre, cli, tmp_path):
     code, out, err = cli("centre", "init", centre.admin)
     assert code == 0, err
     assert "schema already current" in out and "roles triage_field and triage_read present" in out
-    assert centre.rows("SELECT version FROM triage.schema_version") == [(current_version(),)]
+    assert centre.rows("SELECT max(version), count(*) FROM triage.schema_version") == [
+        (current_version(), current_version())]
     assert centre.rows("SELECT count(*) FROM triage.versions") == before == [(8,)]
 
 
@@ -34,7 +35,7 @@ def test_a_fresh_database_gets_the_schema_and_a_newer_one_is_refused(pg, cli):
     code, out, err = cli("centre", "init", pg.url("fresh"))
     assert code == 0, err
     assert f"schema upgraded to version {current_version()}" in out
-    assert pg.sql("SELECT count(*) FROM triage.schema_version", "fresh") == "1"
+    assert pg.sql("SELECT count(*) FROM triage.schema_version", "fresh") == str(current_version())
     pg.sql("INSERT INTO triage.schema_version (version, what) VALUES (99, 'future')", "fresh")
     code, out, err = cli("centre", "init", pg.url("fresh"))
     assert code == 1 and out == ""

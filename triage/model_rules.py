@@ -17,6 +17,7 @@ from datetime import UTC, datetime
 from typing import Any
 
 from triage.errors import InputRefused
+from triage.safetext import visible_line
 from triage.standards import vocabulary
 
 # --- the limits (docs/formats.md, "Limits") ------------------------------------------------
@@ -76,12 +77,14 @@ def format_path(path: Iterable[str | int]) -> str:
 
 
 def line(path: tuple[str | int, ...], rule: str, doc: Any = None) -> str:
-    """One refusal: `key.path: rule (the field in words)`."""
+    """One refusal: `key.path: rule (the field in words)`, on one line."""
     if not path:
-        return f"(survey): {rule}"
+        return visible_line(f"(survey): {rule}")
     where = format_path(path)
     named = vocabulary.field_words(where, doc)
-    return f"{where}: {rule}" + (f" ({named})" if named != where else "")
+    # Labels and marks come from the file: shown with their control characters escaped, so
+    # the line stays one line and cannot drive the terminal it is printed on.
+    return visible_line(f"{where}: {rule}" + (f" ({named})" if named != where else ""))
 
 
 # --- numbers and text (used by the model's field types) -----------------------------------

@@ -391,3 +391,14 @@ def test_lone_surrogate_in_a_key_refused() -> None:
     text = json.dumps(base()).replace('"use"', '"\\ud800"')
     with pytest.raises(SurveyError, match=r"^\(file\): a key holds a lone surrogate \\ud800"):
         parse_survey_text(text)
+
+
+def test_a_label_cannot_drive_the_terminal_or_break_the_line() -> None:
+    d = base()
+    d["storeys"][0]["label"] = "G\x1b[2J\u202e\nX"
+    d["storeys"][0]["readings"][0]["gauge_mm"] = 50.0
+    with pytest.raises(SurveyError) as e:
+        parse_survey(d)
+    msg = str(e.value)
+    assert "\n" not in msg and "\x1b" not in msg and "\u202e" not in msg
+    assert "(storey G\\u001b[2J\\u202e\\u000aX, reading 1, gauge (mm))" in msg

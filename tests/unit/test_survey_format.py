@@ -118,3 +118,15 @@ def test_schema_lists_v2_keys_with_descriptions():
                        ("Reading", "baseline_sd_deg"), ("Photo", "sha256")]:
         assert defs[model]["properties"][key]["description"], (model, key)
     assert set(schema["properties"]["format"]["enum"]) == {"triage-survey/1", "triage-survey/2"}
+
+
+def test_schema_bounds_are_json_schema_keywords():
+    schema = json_schema()
+    text = json.dumps(schema)
+    for raw in ('"gt":', '"ge":', '"lt":', '"le":'):
+        assert raw not in text
+    gauge = schema["$defs"]["Reading"]["properties"]["gauge_mm"]["anyOf"][0]
+    assert gauge == {"type": "number", "exclusiveMinimum": 0}
+    sd_deg = schema["$defs"]["Reading"]["properties"]["sd_deg"]["anyOf"][0]
+    assert (sd_deg["exclusiveMinimum"], sd_deg["maximum"]) == (0, 5.0)
+    assert schema["$defs"]["Location"]["properties"]["lat"]["minimum"] == -90

@@ -73,7 +73,7 @@ def show_text(value: Any) -> str:
     return str(value)
 
 
-class _Saving:
+class Saving:
     """The saved / refused status shared by the field widgets."""
 
     status: Static
@@ -105,7 +105,7 @@ class _Saving:
         return str(self.status.render())
 
 
-class Field(_Saving, Horizontal):
+class Field(Saving, Horizontal):
     """A labelled text or number input."""
 
     DEFAULT_CSS = """
@@ -191,7 +191,7 @@ class Field(_Saving, Horizontal):
         self.input.focus()
 
 
-class Choice(_Saving, Horizontal):
+class Choice(Saving, Horizontal):
     """A labelled pick from a list of (text, value)."""
 
     DEFAULT_CSS = """
@@ -257,7 +257,7 @@ class Choice(_Saving, Horizontal):
         self.post_message(FieldAccepted(self, self.path or "", v))
 
 
-class Tick(_Saving, Horizontal):
+class Tick(Saving, Horizontal):
     """A labelled yes/no."""
 
     DEFAULT_CSS = """

@@ -11,14 +11,14 @@ from textual.widgets import Label, SelectionList, Static
 from triage.standards import CLASSES
 from triage.ui.choices import class_texts, member_kinds, sign_choices
 from triage.ui.messages import FieldAccepted
-from triage.ui.widgets.field import Choice, Field, _Saving, set_text
+from triage.ui.widgets.field import Choice, Field, Saving, set_text
 from triage.ui.widgets.pane import ItemPane, values_of
 
 KEYS = ["kind", "count", "ductility", "crack_mm", "crack_sd_mm", "ref", "dir",
         "override_reason", "damage_class"]
 
 
-class SignChecks(_Saving, Horizontal):
+class SignChecks(Saving, Horizontal):
     """The signs check list for a member kind (from the forms of the storey's systems)."""
 
     DEFAULT_CSS = """

@@ -402,3 +402,15 @@ def test_a_label_cannot_drive_the_terminal_or_break_the_line() -> None:
     msg = str(e.value)
     assert "\n" not in msg and "\x1b" not in msg and "\u202e" not in msg
     assert "(storey G\\u001b[2J\\u202e\\u000aX, reading 1, gauge (mm))" in msg
+
+
+def test_the_assessment_carries_the_short_gauge_note() -> None:
+    from triage.assess import assess
+
+    d = base()
+    d["storeys"][0]["readings"][0]["gauge_mm"] = 600.0
+    notes = assess(parse_survey(d)).notes
+    assert sum("gauge 600 mm is under a quarter of the storey height (3.2 m)" in n
+               for n in notes) == 1
+    d["storeys"][0]["readings"][0]["gauge_mm"] = 800.0
+    assert not any("under a quarter" in n for n in assess(parse_survey(d)).notes)

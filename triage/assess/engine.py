@@ -24,7 +24,7 @@ import numpy as np
 from pydantic import TypeAdapter
 
 from triage import __version__
-from triage.model import MemberGroup, Survey, survey_warnings
+from triage.model import MemberGroup, Survey, gauge_notes, survey_warnings
 from triage.standards import CLASSES, LEVELS, Assumptions, Grade, Standards, load
 
 from . import damage as dmg
@@ -815,6 +815,7 @@ def _assessment(ctx: Context, drift: DriftStage, members: list[StoreyMembers],
     survey, std, a = ctx.survey, ctx.std, ctx.a
     provisional, notes = _provisional(ctx, drift, lv)
     notes = list(drift.notes) + notes + list(advice.notes)
+    notes += gauge_notes(survey)   # a gauge under a quarter storey (docs/formats.md)
     non_rc = sorted({getattr(survey.building.system, d) for d in DIRS}
                     - {getattr(survey.building.system, d) for d in ctx.rc})
     if non_rc and any(m.crack_mm and m.damage_class is None

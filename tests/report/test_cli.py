@@ -160,3 +160,54 @@ def test_a_report_of_a_stored_survey_finds_its_photos_beside_the_imported_file(
     code, _, err = run(capsys, "--db", db, "report", d["id"], "-o", str(out))
     assert code == 0, err
     assert not [i for p in PdfReader(out).pages for i in p.images]
+
+
+def test_a_borrowed_name_is_refused_from_the_command(keyfile: Path, survey_file: Path, capsys,
+                                                     tmp_path: Path):
+    """A key trusted as Aroha whose file header was edited to say Mere: a P-256 key refuses to
+    sign; an Ed25519 key of the first round signs, and verify exits 4 naming both."""
+    from triage.report.keys import new_key
+
+    text = keyfile.read_text(encoding="utf-8")
+    keyfile.write_text(text.replace('"Aroha Ngāti"', '"Mere Kōwhai"').replace('"R-77"', '"M-1"'),
+                       encoding="utf-8")
+    out = tmp_path / "r.pdf"
+    code, _, err = run(capsys, "report", str(survey_file), "-o", str(out), "--key",
+                       str(keyfile))
+    assert code == 1 and len(err.splitlines()) == 1 and not out.exists()
+    assert "Mere Kōwhai (id M-1)" in err and "made for Aroha Ngāti (id R-77)" in err
+
+    old = tmp_path / "old.key"
+    new_key("Aroha Ngāti", "R-77", old, None, algorithm="ed25519")
+    text = old.read_text(encoding="utf-8")
+    old.write_text(text.replace('"Aroha Ngāti"', '"Mere Kōwhai"').replace('"R-77"', '"M-1"'),
+                   encoding="utf-8")
+    code, _, err = run(capsys, "report", str(survey_file), "-o", str(out), "--key", str(old))
+    assert code == 0, err
+    code, _, err = run(capsys, "verify", str(out))
+    assert code == 4 and len(err.splitlines()) == 1
+    assert "the report names the signer Mere Kōwhai (id M-1)" in err
+    assert "is trusted here as Aroha Ngāti (id R-77)" in err
+
+
+def test_pdf_readers_see_the_signer_of_a_command_made_report(keyfile: Path, survey_file: Path,
+                                                              capsys, tmp_path: Path):
+    from tests.report.test_pdfsig import run_pdfsig
+
+    out = tmp_path / "r.pdf"
+    assert run(capsys, "report", str(survey_file), "-o", str(out), "--key", str(keyfile))[0] == 0
+    text = run_pdfsig(out)
+    assert "Signer Certificate Common Name: Aroha Ngāti" in text
+    assert "Signature is Valid." in text
+
+
+def test_key_list_names_first_round_keys(capsys, tmp_path: Path):
+    from triage.report.keys import new_key
+
+    new_key("Aroha Ngāti", "R-77", tmp_path / "n.key", None)
+    old, _ = new_key("Tess Tester", "T-1", tmp_path / "o.key", None, algorithm="ed25519")
+    code, out, _ = run(capsys, "key", "list")
+    lines = out.splitlines()
+    assert code == 0 and len(lines) == 2
+    assert lines[0].endswith("Aroha Ngāti (id R-77)")
+    assert lines[1] == f"{old.fingerprint}  Tess Tester (id T-1)  (Ed25519, signs the first way)"

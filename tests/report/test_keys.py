@@ -204,7 +204,9 @@ def test_full_disk_leaves_no_key_file(tmp_path: Path, monkeypatch):
         return real(fd, data)
 
     monkeypatch.setattr(os, "write", write)
-    with pytest.raises(ValueError, match=r"cannot be written \(No space left on device\); "
+    from triage.errors import IOFailure
+
+    with pytest.raises(IOFailure, match=r"a\.pub: cannot be written \(the disk is full\); "
                        "no key was made"):
         new_key("A", "1", tmp_path / "a.key", None)
     assert sorted(p.name for p in tmp_path.iterdir()) == ["home"]

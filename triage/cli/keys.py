@@ -12,6 +12,8 @@ import sys
 from pathlib import Path
 from typing import Any
 
+from triage.errors import TriageError
+
 from .errors import UserError
 
 PASSPHRASE_ENV = "TRIAGE_KEY_PASSPHRASE"
@@ -63,9 +65,10 @@ def run_key_new(args: argparse.Namespace) -> int:
     passphrase = None if args.no_passphrase else _new_passphrase()
     try:
         key, pub = new_key(args.name, args.signer_id, Path(args.output), passphrase)
-    except ValueError as err:
+    except (ValueError, TriageError) as err:
         raise UserError(str(err)) from None
-    sys.stdout.write(f"key written to {args.output} (mode 600), public key to {pub}\n"
+    sys.stdout.write(f"key written to {args.output} (mode 600), public key and certificate "
+                     f"to {pub}\n"
                      f"fingerprint {key.fingerprint} ({key.name}, id {key.id}); "
                      "trusted on this laptop\n")
     return 0
@@ -94,7 +97,8 @@ def run_key_list(args: argparse.Namespace) -> int:
     if not keys:
         sys.stdout.write(f"no trusted keys yet (kept in {home()})\n")
     for k in keys:
-        sys.stdout.write(f"{k.fingerprint}  {k.name} (id {k.id})\n")
+        kind = "" if k.certificate is not None else "  (Ed25519, signs the first way)"
+        sys.stdout.write(f"{k.fingerprint}  {k.name} (id {k.id}){kind}\n")
     return 0
 
 

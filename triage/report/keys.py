@@ -35,6 +35,7 @@ from cryptography.hazmat.primitives.asymmetric.ed25519 import (
     Ed25519PublicKey,
 )
 
+from triage.errors import IOFailure, io_failure
 from triage.paths import data_home as home  # $TRIAGE_HOME, else the platform's data dir
 
 from . import certs
@@ -261,10 +262,11 @@ def new_key(name: str, ident: str, out: Path, passphrase: str | None,
             written.append(path)
     except FileNotFoundError:
         raise ValueError(f"{out}: its folder does not exist") from None
-    except OSError as err:
-        for path in written:
-            path.unlink(missing_ok=True)
-        raise ValueError(f"{out}: cannot be written ({err.strerror}); no key was made") from None
+    except OSError as err:  # a full or read-only disk: nothing is left behind
+        failure = io_failure(path, err)
+        for done in written:
+            done.unlink(missing_ok=True)
+        raise IOFailure(f"{failure}; no key was made", errno_=err.errno) from None
     trust_key(key.public)
     return key, pub
 

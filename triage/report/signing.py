@@ -90,6 +90,8 @@ def rfc8785_sha256(value: Any) -> str:
         return hashlib.sha256(rfc8785.dumps(value)).hexdigest()
     except rfc8785.CanonicalizationError as err:
         raise ValueError(f"no RFC 8785 canonical form ({err})") from None
+    except RecursionError:
+        raise ValueError("no RFC 8785 canonical form (nested too deeply)") from None
 
 
 def content_digests(survey: Any, assessment: Any) -> dict[str, str]:

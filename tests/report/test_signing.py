@@ -114,7 +114,8 @@ def test_every_flipped_byte_is_caught_standard(clinic_pair, tmp_path: Path):
     assert m is not None
     lo, hi = int(m.group(1)), int(m.group(2))
     # the signature value: its first DER bytes, its last, the padding, both brackets
-    value = [lo - 1, lo, lo + 1, lo + 2, lo + 7, lo + 40, lo + 140, hi - 2, hi - 1, hi, hi + 1]
+    # (lo + 3 … lo + 8: the outer length; a longer one would swallow padding zeros)
+    value = [lo - 1, *range(lo, lo + 9), lo + 40, lo + 140, hi - 2, hi - 1, hi, hi + 1]
     pad = data.index(b"0000", lo + 200)
     value += [pad, pad + 1, pad + 10, pad - 1, pad - 2]
     places = _places(len(data), 90, value)

@@ -165,9 +165,9 @@ def _check_cms(der: bytes, cert_der: bytes) -> None:
         raise bad("not in DER")
     der = der[:size]  # the padding after it was checked with the byte range
     try:
-        ci = cms.ContentInfo.load(der)
-        if ci.dump(force=True) != der:
+        if not _strict_der(der):
             raise bad("not in DER")
+        ci = cms.ContentInfo.load(der, strict=True)
         sd = ci["content"]
         if ci["content_type"].native != "signed_data" or sd["version"].native != "v1":
             raise bad("content type or version")
@@ -252,3 +252,43 @@ def _der_size(der: bytes) -> int | None:
             return None
         size = 2 + n + int.from_bytes(der[2:2 + n], "big")
     return size if size <= len(der) else None
+
+
+def _strict_der(der: bytes) -> bool:
+    """Whether `der` is one DER element whose every constructed part its children fill exactly.
+
+    Definite, minimal lengths; no end-of-contents markers; booleans 00 or FF. (Cheaper than a
+    re-encoding, and it leaves no second spelling of the same structure.)
+    """
+    def walk(i: int, end: int) -> int:
+        while i < end:
+            tag = der[i]
+            if tag == 0 or tag & 0x1F == 0x1F or i + 2 > end:
+                raise ValueError
+            first = der[i + 1]
+            i += 2
+            if first < 0x80:
+                n = first
+            else:
+                k = first & 0x7F
+                if not 1 <= k <= 4 or i + k > end or der[i] == 0:
+                    raise ValueError
+                n = int.from_bytes(der[i:i + k], "big")
+                if n < 0x80:
+                    raise ValueError
+                i += k
+            if i + n > end:
+                raise ValueError
+            if tag == 0x01 and (n != 1 or der[i] not in (0x00, 0xFF)):
+                raise ValueError
+            if tag & 0x20:
+                walk(i, i + n)
+            i += n
+        if i != end:
+            raise ValueError
+        return i
+
+    try:
+        return len(der) > 0 and der[0] == 0x30 and walk(0, len(der)) == len(der)
+    except (ValueError, IndexError, RecursionError):
+        return False

@@ -89,6 +89,21 @@ def list_columns(doc: dict[str, Any]) -> dict[str, Any]:
             "inspector": insp["inspector"]["name"], "at": at, "at_utc": at_utc}
 
 
+def _same_survey(stored: str, text: str) -> bool:
+    """Whether a stored text is the given survey written by an earlier version of the format.
+
+    A database written before `triage-survey/2` holds texts marked `/1`; the same file imported
+    again is the same survey, not a conflict. Both are read through the model and compared as
+    this version writes them.
+    """
+    from triage.model import parse_survey_text
+
+    try:
+        return canonical_json(parse_survey_text(stored).to_json_dict()) == text
+    except ValueError:  # SurveyError is a ValueError: an unreadable stored text is not the same
+        return False
+
+
 class SurveyWrites(AssessmentRecords):
     """New surveys in, and edits (`set`, `add`, `remove`) to stored ones."""
 
@@ -113,7 +128,7 @@ class SurveyWrites(AssessmentRecords):
         with self._write() as c:
             row = c.execute("SELECT doc FROM surveys WHERE id = ?", (sid,)).fetchone()
             if row is not None:
-                if row[0] == text:
+                if row[0] == text or _same_survey(row[0], text):
                     return "unchanged"
                 raise SurveyConflict(
                     f"survey {sid}: a different survey is already stored under this id; the "

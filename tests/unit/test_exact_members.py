@@ -45,3 +45,19 @@ def test_exact_equals_enumeration(d):
 def test_hoeffding(loss, probs, cap, want):
     import numpy as np
     assert unc._hoeffding(np.array(loss), np.array(probs), cap) == want
+
+
+@given(surveys(max_storeys=2))
+def test_member_level_at_the_point_classes_agrees_with_the_model(d):
+    # The member stage works its point level out from capacity, floor and collapse rule; the
+    # vectorised model (used for probabilities and what-ifs) must say the same.
+    from triage.assess import engine
+    s = parse_survey(_with_rc(d))
+    std = engine.load()
+    ctx = engine.Context(s, std, std.assumptions,
+                         {x: engine.figures(getattr(s.building.system, x), std, std.assumptions)
+                          for x in "xy"}, tuple(engine.dmg.rc_dirs(s, std)), 0)
+    for si in range(len(s.storeys)):
+        sm = engine.member_stage(ctx, si)
+        if sm.level is not None:
+            assert int(sm.model.level(sm.classes.point[None, :])[0]) == int(sm.level)

@@ -282,7 +282,10 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
         collapse = collapse_rule and bool((table.point[vertical] == 5).all())
         floor = Floor(Level(int(at_point[g])), g if at_point[g] > 0 else None, collapse,
                       n_vertical)
-        level = Level(int(model.level(table.point[None, :])[0]))
+        # The same as model.level(point): the worst of the capacity level, the floor and the
+        # collapse rule (a test checks the two agree).
+        level = (Level.BEYOND_CP if collapse else
+                 max(floor.level, capacity.level if capacity is not None else Level.IO))
     counted = set().union(*(t.groups for t in terms.values())) if terms else set()
     point_l = table.point.tolist()
     floor_l = floor_table[np.arange(len(floors)), table.point].tolist() if floors else []
@@ -640,8 +643,8 @@ def plumbness_spots(ctx: Context, drift: DriftStage, lv: LevelStage) -> Plumbnes
     Where no single spot does but the in-band spots together do (two of them, say), each of
     those that reaches the tier is listed too: a tier resting on construction tolerance alone.
     """
-    inband = [s for s in drift.spots
-              if not s.has_baseline and abs(s.value) <= _band(ctx, s.dir) + 1e-12]
+    band = {d: _band(ctx, d) + 1e-12 for d in DIRS}
+    inband = [s for s in drift.spots if abs(s.value) <= band[s.dir] and not s.has_baseline]
     out = []
     for s in inband:
         dd = drift.dirs[(s.storey, s.dir)]

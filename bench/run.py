@@ -76,6 +76,12 @@ FIGURES = [
            _one("bench.store_bench", "list_10k_ms", "list_10k_ms")),
     Figure("summary_10k_ms", 1000.0, "<=", "the area summary of 10,000 buildings",
            _one("bench.store_bench", "summary_10k_ms", "summary_10k_ms")),
+    Figure("sync_ratio", 3.0, "<=", "`sync` of 10,000 demo-size surveys into an empty centre "
+           "(throwaway PostgreSQL) / COPY of the same rows into the same tables",
+           _one("bench.centre_bench", "sync_ratio", "sync_ratio")),
+    Figure("centre_summary_100k_ms", 1000.0, "<=", "`triage --db postgresql://… summary` of "
+           "100,000 buildings", _one("bench.centre_bench", "centre_summary_100k_ms",
+                                     "centre_summary_100k_ms")),
 ]
 
 

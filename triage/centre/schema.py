@@ -396,7 +396,8 @@ FROM triage.buildings WHERE lat IS NOT NULL AND lon IS NOT NULL;
 CREATE UNIQUE INDEX building_map_id ON triage.building_map (building_id);
 {index}
 CREATE OR REPLACE FUNCTION triage.refresh_map() RETURNS void
-LANGUAGE plpgsql SECURITY DEFINER SET search_path = pg_catalog, triage AS $f$
+LANGUAGE plpgsql SECURITY DEFINER SET search_path = pg_catalog, triage SET jit = off
+SET work_mem = '64MB' AS $f$
 BEGIN
   PERFORM pg_advisory_xact_lock({LOCK_KEY + 1});
   REFRESH MATERIALIZED VIEW CONCURRENTLY triage.building_map;

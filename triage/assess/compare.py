@@ -1,28 +1,74 @@
-"""What changed between two surveys of one building (after an aftershock, say). Pure.
+"""What changed between two surveys of one building (after an aftershock, say). Pure: no I/O.
 
-Residual drift per storey and direction, before and after, with the change marked significant
-only where it exceeds twice the combined standard uncertainty of the two values (coverage
-factor k = 2, as the GUM's expanded uncertainty): |after - before| > 2 * sqrt(u_before^2 +
-u_after^2), u being the standard uncertainty of each storey's governing reading. Member groups
-are matched by their `ref`; a group whose class worsened, or a damaged group logged only in the
-new survey, is listed. Hazards are matched by kind, storey and place.
+The rules are those of docs/method.md, "Comparing two inspections" (format
+`triage-comparison/2`, docs/formats.md):
+
+- Spots (`triage.assess.spots`) are matched by storey label, direction and normalised `where`
+  (a sub-spot `where #2` with the other survey's `#2`); readings without `where` are matched in
+  order, the i-th of that storey and direction with the i-th. On signed drift ratios the change
+  is `new - old`, significant when `|change| > k * sqrt(u_old^2 + u_new^2 [+ sd_m^2])`, k = 2,
+  with measurement uncertainties only. With the same baseline in both (or none in either) the
+  baseline cancels in the change and its uncertainty is left out; a spot measured another way
+  (tilt against offset, a gauge more than 10% apart, another baseline) adds `method_change_sd`
+  (sd_m) in quadrature and is marked so.
+- A reversal of lean is a change like any other; where every spot compared in a direction
+  reversed, a warning asks whether +x (+y) means the same direction in both surveys.
+- The building line: m spots compared, about `m * P(|Z| > k)` (0.0455 m) flagged by chance
+  alone, F flagged; movement beyond chance when any |z| exceeds Sidak's bound
+  `k_m = Phi^-1(1 - (1 - 0.95^(1/m)) / 2)`.
+- Member groups are matched by `ref` within the storey; groups without `ref` as the i-th group
+  without `ref` of the same kind, ductility and `dir` in that storey. Only a change of class is
+  listed, so a group seen the same both times is never "new".
+- Hazards are matched by kind, storey and place.
 """
 
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Iterable, Sequence
+from statistics import NormalDist
 from typing import Literal
 
 from pydantic import BaseModel, ConfigDict
 
-from triage.model import Survey
+from triage.model import MemberGroup, Survey
+from triage.standards import Assumptions, load
+from triage.standards.vocabulary import words
 
 from .damage import class_index
 from .drift import pct
-from .result import Assessment, tier_words
+from .result import Assessment, MemberResult, tier_words
+from .spots import GAUGE_TOLERANCE, Spot, spots_of_survey
+from .stats import sig6
 
+# Coverage factor of a significant change (the GUM's expanded uncertainty, k = 2).
 COVERAGE = 2.0
+# The building line's family-wise confidence (Sidak's bound).
+FAMILY_CONFIDENCE = 0.95
+
+Dir = Literal["x", "y"]
+MethodChange = Literal["method", "gauge", "baseline"]
+
+
+def chance_rate(k: float = COVERAGE) -> float:
+    """P(|Z| > k) for a standard normal Z: the share of unmoved spots flagged by chance.
+
+    >>> round(chance_rate(2.0), 4)
+    0.0455
+    """
+    return math.erfc(k / math.sqrt(2.0))
+
+
+def sidak_bound(m: int, confidence: float = FAMILY_CONFIDENCE) -> float:
+    """Sidak's bound k_m = Phi^-1(1 - (1 - confidence^(1/m)) / 2) for m spots.
+
+    No |z| of m unmoved spots exceeds it with probability `confidence`. 1 - c^(1/m) is taken
+    as -expm1(ln c / m), exact for large m.
+    """
+    if m < 1:
+        raise ValueError("the Sidak bound needs at least one spot")
+    tail = -math.expm1(math.log(confidence) / m) / 2.0
+    return NormalDist().inv_cdf(1.0 - tail)
 
 
 class _Out(BaseModel):
@@ -40,36 +86,62 @@ class Side(_Out):
     provisional: bool
 
 
-class DriftChange(_Out):
-    """A storey's residual drift in one direction, before and after."""
+class SpotChange(_Out):
+    """One spot of one direction, in both surveys or in one only (drift ratios, signed)."""
 
+    dir: Dir
+    where: str | None  # as written in the new survey (else the old); None: no `where`
+    status: Literal["compared", "new", "not_remeasured"]
+    matched_by: Literal["where", "order"] | None  # None unless compared
     before: float | None
     after: float | None
-    change: float | None
-    u_combined: float | None  # combined standard uncertainty of the two values
+    change: float | None  # after - before
+    u_before: float | None  # the standard uncertainty used for each side
+    u_after: float | None
+    u_method: float | None  # method_change_sd when measured another way, else 0
+    u_combined: float | None
+    z: float | None  # change / u_combined
     significant: bool
+    reversed: bool  # the lean changed sign
+    same_baseline: bool  # the baseline (or its absence) is the same: it cancels
+    method_changed: tuple[MethodChange, ...]  # what differs: method, gauge, baseline
 
 
 class MemberChange(_Out):
-    """A member group whose damage class worsened, or that is newly damaged."""
+    """A member group whose damage class differs, or that is in one survey only, damaged."""
 
     ref: str | None
     kind: str
-    before: str | None  # None: undamaged, or not logged before
+    ductility: str
+    dir: Dir | None
+    before: str | None  # None: undamaged, or not logged
     after: str | None
-    logged_before: bool
+    change: Literal["worse", "better", "new", "gone"]
+    matched_by: Literal["ref", "order"] | None
 
 
 class StoreyChange(_Out):
     """One storey's changes."""
 
     label: str
-    drift: dict[Literal["x", "y"], DriftChange]
-    residual_capacity_before: float | None
-    residual_capacity_after: float | None
-    worsened: tuple[MemberChange, ...]
     in_old: bool
     in_new: bool
+    residual_capacity_before: float | None
+    residual_capacity_after: float | None
+    spots: tuple[SpotChange, ...]
+    members: tuple[MemberChange, ...]
+
+
+class BuildingLine(_Out):
+    """The whole building at once: how many spots moved, against what chance alone would flag."""
+
+    compared: int  # m
+    flagged: int  # F, spots with |z| > k
+    chance_rate: float  # P(|Z| > k)
+    expected_by_chance: float  # m * chance_rate
+    bound: float | None  # Sidak's k_m; None when nothing was compared
+    largest_z: float | None  # the largest |z|
+    beyond_chance: bool  # any |z| > k_m
 
 
 class HazardNote(_Out):
@@ -81,15 +153,19 @@ class HazardNote(_Out):
 
 
 class Comparison(_Out):
-    """The comparison of two surveys of one building (`triage-comparison/1`)."""
+    """The comparison of two surveys of one building (`triage-comparison/2`)."""
 
-    format: Literal["triage-comparison/1"] = "triage-comparison/1"
+    format: Literal["triage-comparison/2"] = "triage-comparison/2"
     building: str
     same_building: bool
     old: Side
     new: Side
     tier_changed: bool
     level_changed: bool
+    k: float
+    method_change_sd: float
+    building_line: BuildingLine
+    all_reversed: tuple[Dir, ...]  # directions where every compared spot reversed its lean
     storeys: tuple[StoreyChange, ...]
     new_hazards: tuple[HazardNote, ...]
     cleared_hazards: tuple[HazardNote, ...]
@@ -99,57 +175,112 @@ class Comparison(_Out):
         return self.model_dump_json(indent=2) + "\n"
 
     def lines(self) -> list[str]:
-        """Plain sentences of what changed, for the text output and the report."""
+        """Plain sentences of what changed, for the text output and the report (words, not keys).
+
+        The text is not escaped: a terminal writer passes it through `triage.safetext.visible`.
+        """
         o, n = self.old, self.new
         out = [f"tier: {tier_words(o.tier)} on {o.at[:16]} -> {tier_words(n.tier)} on "
                f"{n.at[:16]}" + ("" if self.tier_changed else " (unchanged)"),
-               f"structural performance level: {o.performance_level or '—'} -> "
-               f"{n.performance_level or '—'}" + ("" if self.level_changed else " (unchanged)")]
+               f"structural performance level: {_level(o.performance_level)} -> "
+               f"{_level(n.performance_level)}" + ("" if self.level_changed else " (unchanged)")]
+        out.append(self.building_words())
+        for d in self.all_reversed:
+            dw = words("directions", d)
+            out.append(f"WARNING: every spot compared in {dw} reversed its lean: check that "
+                       f"+{dw} means the same direction in both surveys before reading these "
+                       "changes as movement")
         for s in self.storeys:
             if not s.in_old:
                 out.append(f"storey {s.label}: not in the earlier survey")
-                continue
-            if not s.in_new:
+            elif not s.in_new:
                 out.append(f"storey {s.label}: not in the new survey")
-                continue
-            for d, c in s.drift.items():
-                if c.before is None or c.after is None or c.change is None:
-                    if c.after is not None or c.before is not None:
-                        out.append(f"storey {s.label}, {d}: drift {_p(c.before)} -> "
-                                   f"{_p(c.after)} (measured in one survey only)")
-                    continue
-                mark = "significant" if c.significant else "within the uncertainty"
-                u = c.u_combined or 0.0
-                out.append(f"storey {s.label}, {d}: residual drift {pct(c.before)} -> "
-                           f"{pct(c.after)} ({_signed(c.change)}; {mark}, "
-                           f"2u = {pct(COVERAGE * u)})")
+            out += [_spot_words(s.label, c, self.k) for c in s.spots]
             rb, ra = s.residual_capacity_before, s.residual_capacity_after
             if rb is not None and ra is not None and abs(ra - rb) > 1e-9:
                 out.append(f"storey {s.label}: residual capacity R {rb:.1%} -> {ra:.1%}")
-            for m in s.worsened:
-                name = f"{m.kind} {m.ref}" if m.ref else f"a {m.kind} group"
-                if m.logged_before:
-                    out.append(f"storey {s.label}: {name} worsened from class "
-                               f"{m.before or 'undamaged'} to {m.after}")
-                else:
-                    out.append(f"storey {s.label}: {name} of class {m.after} not logged before")
+            out += [_member_words(s.label, m) for m in s.members]
         for h in self.new_hazards:
             out.append("new hazard: " + _hz(h))
         for h in self.cleared_hazards:
             out.append("no longer reported: " + _hz(h))
         return out
 
+    def building_words(self) -> str:
+        """The building line in words."""
+        b = self.building_line
+        if b.compared == 0 or b.bound is None or b.largest_z is None:
+            return "building: no spot was measured in both surveys, so no movement can be told"
+        spots = "spot" if b.compared == 1 else "spots"
+        head = (f"building: {b.compared} {spots} compared, {b.flagged} flagged beyond "
+                f"{self.k:g} standard uncertainties; about {b.expected_by_chance:.2g} would be "
+                f"flagged by chance alone ({b.chance_rate:.2%} each)")
+        if b.beyond_chance:
+            return (head + f"; movement beyond chance: the largest |z|, {b.largest_z:.2f}, is "
+                    f"over {b.bound:.2f}, the bound for {b.compared} {spots} at 95% (Šidák)")
+        return (head + f"; no movement beyond chance: the largest |z|, {b.largest_z:.2f}, is "
+                f"within {b.bound:.2f}, the bound for {b.compared} {spots} at 95% (Šidák)")
+
+
+def _level(level: str | None) -> str:
+    return "—" if level is None else words("levels", level)
+
 
 def _p(v: float | None) -> str:
-    return "—" if v is None else pct(v)
+    return "—" if v is None else _signed(v)
 
 
 def _signed(v: float) -> str:
     return ("+" if v >= 0 else "−") + pct(abs(v))
 
 
+_METHOD_WORDS = {"method": "tilt against offset", "gauge": "gauge more than 10% apart",
+                 "baseline": "another baseline"}
+
+
+def _spot_words(label: str, c: SpotChange, k: float) -> str:
+    head = f"storey {label}, {words('directions', c.dir)}" + (f", {c.where}" if c.where else "")
+    if c.status == "new":
+        return f"{head}: new spot, {_p(c.after)} (not measured before)"
+    if c.status == "not_remeasured":
+        return f"{head}: not re-measured (was {_p(c.before)})"
+    assert c.change is not None and c.u_combined is not None and c.z is not None
+    mark = "significant" if c.significant else "within the uncertainty"
+    text = (f"{head}: drift {_p(c.before)} -> {_p(c.after)} (change {_signed(c.change)}, "
+            f"{k:g}u = {pct(k * c.u_combined)}, z = {c.z:+.2f}; {mark})")
+    if c.reversed:
+        text += "; the lean reversed"
+    if c.method_changed:
+        what = ", ".join(_METHOD_WORDS[m] for m in c.method_changed)
+        text += (f"; measured another way ({what}): {pct(c.u_method or 0.0)} added to the "
+                 "uncertainty")
+    elif not c.same_baseline:
+        text += "; baselines differ"
+    if c.matched_by == "order":
+        text += "; matched by order (no place given)"
+    return text
+
+
+def _member_words(label: str, m: MemberChange) -> str:
+    kind = words("member_kinds", m.kind)
+    name = f"{kind} {m.ref}" if m.ref else f"a {words('ductility', m.ductility)} {kind} group" + (
+        f" in {words('directions', m.dir)}" if m.dir else "")
+
+    def cls(c: str | None) -> str:
+        return "undamaged" if c is None else words("classes", c)
+
+    if m.change == "worse":
+        return f"storey {label}: {name} worsened from {cls(m.before)} to {cls(m.after)}"
+    if m.change == "better":
+        return (f"storey {label}: {name} logged better than before: {cls(m.before)} -> "
+                f"{cls(m.after)} (a repair, or a different reading of the damage?)")
+    if m.change == "new":
+        return f"storey {label}: {name} of {cls(m.after)} not logged before"
+    return f"storey {label}: {name} of {cls(m.before)} not logged again"
+
+
 def _hz(h: HazardNote) -> str:
-    return h.kind + (f" at {h.where}" if h.where else "") + (
+    return words("hazards", h.kind) + (f" at {h.where}" if h.where else "") + (
         f" (storey {h.storey})" if h.storey else "")
 
 
@@ -159,52 +290,229 @@ def _side(s: Survey, a: Assessment) -> Side:
                 performance_level=a.performance_level, provisional=a.provisional)
 
 
-def compare(old: Survey, old_a: Assessment, new: Survey, new_a: Assessment) -> Comparison:
+# --- spots -------------------------------------------------------------------------------------
+
+_SpotKey = tuple[str, Dir, str, int]  # storey label, direction, where key or "", sub or order
+
+
+def _keyed(spots: Iterable[Spot]) -> dict[_SpotKey, Spot]:
+    """Spots by their matching key: (label, dir, where key, sub-spot).
+
+    A spot without `where` is keyed (label, dir, "", i), i its order among such spots of that
+    storey and direction.
+    """
+    out: dict[_SpotKey, Spot] = {}
+    order: dict[tuple[str, str], int] = {}
+    for s in spots:
+        if s.key is None:
+            i = order.get((s.storey_label, s.dir), 0)
+            order[(s.storey_label, s.dir)] = i + 1
+            out[(s.storey_label, s.dir, "", i)] = s
+        else:
+            out[(s.storey_label, s.dir, s.key, s.sub)] = s
+    return out
+
+
+def method_changes(old: Spot, new: Spot) -> tuple[MethodChange, ...]:
+    """How the spot was measured differently the second time (empty: the same way)."""
+    out: list[MethodChange] = []
+    if old.method != new.method:
+        out.append("method")
+    elif old.method == "offset" and old.gauge_mm is not None and new.gauge_mm is not None \
+            and abs(new.gauge_mm - old.gauge_mm) > GAUGE_TOLERANCE * old.gauge_mm + 1e-12:
+        out.append("gauge")
+    if old.baseline != new.baseline or (old.method != new.method and old.baseline is not None):
+        out.append("baseline")
+    return tuple(out)
+
+
+def spot_change(old: Spot, new: Spot, a: Assumptions, matched_by: Literal["where", "order"],
+                k: float = COVERAGE) -> SpotChange:
+    """The change at one spot measured in both surveys (rounded to 6 significant digits)."""
+    return _spot_change(old, new, a, matched_by, k)[0]
+
+
+def _spot_change(old: Spot, new: Spot, a: Assumptions, matched_by: Literal["where", "order"],
+                 k: float) -> tuple[SpotChange, float]:
+    """The change and its unrounded |z|."""
+    changed = method_changes(old, new)
+    same_baseline = "baseline" not in changed
+    # The same baseline cancels in new - old: leave its uncertainty out (u_measure).
+    u_old = old.u_measure if same_baseline else old.u
+    u_new = new.u_measure if same_baseline else new.u
+    u_m = a.method_change_sd if changed else 0.0
+    u = math.sqrt(u_old * u_old + u_new * u_new + u_m * u_m)
+    change = new.value - old.value
+    z = change / u
+    return SpotChange(
+        dir=new.dir, where=new.where if new.where is not None else old.where, status="compared",
+        matched_by=matched_by, before=sig6(old.value), after=sig6(new.value),
+        change=sig6(change), u_before=sig6(u_old), u_after=sig6(u_new), u_method=sig6(u_m),
+        u_combined=sig6(u), z=sig6(z), significant=abs(change) > k * u,
+        reversed=old.value * new.value < 0, same_baseline=same_baseline,
+        method_changed=changed), abs(z)
+
+
+def _one_side(s: Spot, status: Literal["new", "not_remeasured"]) -> SpotChange:
+    v = sig6(s.value)
+    return SpotChange(dir=s.dir, where=s.where, status=status, matched_by=None,
+                      before=v if status == "not_remeasured" else None,
+                      after=v if status == "new" else None, change=None,
+                      u_before=sig6(s.u) if status == "not_remeasured" else None,
+                      u_after=sig6(s.u) if status == "new" else None, u_method=None,
+                      u_combined=None, z=None, significant=False, reversed=False,
+                      same_baseline=False, method_changed=())
+
+
+def _spot_changes(old: Survey, new: Survey, a: Assumptions,
+                  k: float) -> tuple[dict[str, list[SpotChange]], list[float]]:
+    """Per storey label, the spot changes, and every compared spot's unrounded |z|.
+
+    The new survey's spots come in its order, then the spots not re-measured.
+    """
+    olds = _keyed(spots_of_survey(old, a).spots)
+    news = _keyed(spots_of_survey(new, a).spots)
+    out: dict[str, list[SpotChange]] = {}
+    zs: list[float] = []
+    for key, sn in news.items():
+        so = olds.get(key)
+        if so is None:
+            out.setdefault(key[0], []).append(_one_side(sn, "new"))
+            continue
+        c, z = _spot_change(so, sn, a, "where" if key[2] else "order", k)
+        zs.append(z)
+        out.setdefault(key[0], []).append(c)
+    for key, so in olds.items():
+        if key not in news:
+            out.setdefault(key[0], []).append(_one_side(so, "not_remeasured"))
+    return out, zs
+
+
+def building_line(abs_z: Sequence[float], k: float = COVERAGE,
+                  confidence: float = FAMILY_CONFIDENCE) -> BuildingLine:
+    """The building line of the compared spots' |z|."""
+    m = len(abs_z)
+    rate = chance_rate(k)
+    if m == 0:
+        return BuildingLine(compared=0, flagged=0, chance_rate=sig6(rate), expected_by_chance=0.0,
+                            bound=None, largest_z=None, beyond_chance=False)
+    bound = sidak_bound(m, confidence)
+    largest = max(abs_z)
+    return BuildingLine(compared=m, flagged=sum(1 for z in abs_z if z > k),
+                        chance_rate=sig6(rate), expected_by_chance=sig6(m * rate),
+                        bound=sig6(bound), largest_z=sig6(largest), beyond_chance=largest > bound)
+
+
+def all_reversed(spots: Iterable[SpotChange]) -> tuple[Dir, ...]:
+    """Directions in which at least one spot was compared and every compared spot reversed."""
+    out: list[Dir] = []
+    for d in ("x", "y"):
+        shared = [c for c in spots if c.dir == d and c.status == "compared"]
+        if shared and all(c.reversed for c in shared):
+            out.append(d)
+    return tuple(out)
+
+
+# --- member groups -----------------------------------------------------------------------------
+
+def match_groups(old: Sequence[MemberGroup], new: Sequence[MemberGroup],
+                 ) -> tuple[list[tuple[int, int, Literal["ref", "order"]]], list[int], list[int]]:
+    """Pairs (old index, new index, how) of one storey's member groups; unmatched old and new.
+
+    By `ref` first; a group without `ref` is the i-th without `ref` of its kind, ductility and
+    `dir` in the storey, matched with the i-th such group of the other survey.
+    """
+    pairs: list[tuple[int, int, Literal["ref", "order"]]] = []
+    old_refs = {g.ref: i for i, g in enumerate(old) if g.ref}
+    used_old: set[int] = set()
+    used_new: set[int] = set()
+    for j, g in enumerate(new):
+        if g.ref and g.ref in old_refs:
+            pairs.append((old_refs[g.ref], j, "ref"))
+            used_old.add(old_refs[g.ref])
+            used_new.add(j)
+
+    def order(groups: Sequence[MemberGroup]) -> dict[tuple[str, str, str | None, int], int]:
+        seen: dict[tuple[str, str, str | None], int] = {}
+        keyed: dict[tuple[str, str, str | None, int], int] = {}
+        for i, g in enumerate(groups):
+            if g.ref:
+                continue
+            kind = (g.kind, g.ductility, g.dir)
+            n = seen.get(kind, 0)
+            seen[kind] = n + 1
+            keyed[(*kind, n)] = i
+        return keyed
+
+    old_order = order(old)
+    for key, j in order(new).items():
+        if key in old_order:
+            pairs.append((old_order[key], j, "order"))
+            used_old.add(old_order[key])
+            used_new.add(j)
+    pairs.sort(key=lambda p: p[1])
+    return (pairs, [i for i in range(len(old)) if i not in used_old],
+            [j for j in range(len(new)) if j not in used_new])
+
+
+def _member_changes(old: Sequence[MemberGroup], old_r: Sequence[MemberResult],
+                    new: Sequence[MemberGroup], new_r: Sequence[MemberResult],
+                    ) -> list[MemberChange]:
+    cls_old = {r.index: r.damage_class for r in old_r}
+    cls_new = {r.index: r.damage_class for r in new_r}
+    pairs, gone, fresh = match_groups(old, new)
+    out: list[tuple[int, MemberChange]] = []
+    for i, j, how in pairs:
+        b, f = cls_old.get(i), cls_new.get(j)
+        if b == f:
+            continue
+        worse = class_index(f) > class_index(b)
+        g = new[j]
+        out.append((j, MemberChange(ref=g.ref, kind=g.kind, ductility=g.ductility, dir=g.dir,
+                                    before=b, after=f, change="worse" if worse else "better",
+                                    matched_by=how)))
+    for j in fresh:
+        g = new[j]
+        if cls_new.get(j) is not None:
+            out.append((j, MemberChange(ref=g.ref, kind=g.kind, ductility=g.ductility, dir=g.dir,
+                                        before=None, after=cls_new.get(j), change="new",
+                                        matched_by=None)))
+    for i in gone:
+        g = old[i]
+        if cls_old.get(i) is not None:
+            out.append((len(new) + i, MemberChange(
+                ref=g.ref, kind=g.kind, ductility=g.ductility, dir=g.dir, before=cls_old.get(i),
+                after=None, change="gone", matched_by=None)))
+    out.sort(key=lambda p: p[0])
+    return [c for _, c in out]
+
+
+# --- the comparison ----------------------------------------------------------------------------
+
+def compare(old: Survey, old_a: Assessment, new: Survey, new_a: Assessment,
+            assumptions: Assumptions | None = None) -> Comparison:
     """Compare two surveys of one building with their assessments (old first)."""
+    a = assumptions or load().assumptions
+    k = COVERAGE
     labels = [s.label for s in old.storeys]
     labels += [s.label for s in new.storeys if s.label not in labels]
     old_st = {s.label: s for s in old.storeys}
     new_st = {s.label: s for s in new.storeys}
+    by_storey, zs = _spot_changes(old, new, a, k)
     storeys = []
     for label in labels:
         so, sn = old_st.get(label), new_st.get(label)
         ro = old_a.storey(label) if so else None
         rn = new_a.storey(label) if sn else None
-        drift: dict[Literal["x", "y"], DriftChange] = {}
-        for d in ("x", "y"):
-            b = ro.drift_ratio.get(d) if ro else None
-            f = rn.drift_ratio.get(d) if rn else None
-            if b is None or f is None:
-                drift[d] = DriftChange(before=b, after=f, change=None, u_combined=None,
-                                       significant=False)
-                continue
-            ub = (ro.drift_sd.get(d) if ro else None) or 0.0
-            uf = (rn.drift_sd.get(d) if rn else None) or 0.0
-            u = math.hypot(ub, uf)
-            change = f - b
-            drift[d] = DriftChange(before=b, after=f, change=round(change, 9),
-                                   u_combined=round(u, 9),
-                                   significant=abs(change) > COVERAGE * u)
-        worsened: list[MemberChange] = []
-        if so and sn and ro and rn:
-            before = {m.ref: r.damage_class for m, r in zip(so.members, ro.members, strict=True)
-                      if m.ref}
-            for m, r in zip(sn.members, rn.members, strict=True):
-                if r.damage_class is None:
-                    continue
-                if m.ref and m.ref in before:
-                    if class_index(r.damage_class) > class_index(before[m.ref]):
-                        worsened.append(MemberChange(ref=m.ref, kind=m.kind,
-                                                     before=before[m.ref], after=r.damage_class,
-                                                     logged_before=True))
-                else:
-                    worsened.append(MemberChange(ref=m.ref, kind=m.kind, before=None,
-                                                 after=r.damage_class, logged_before=False))
+        members: list[MemberChange] = []
+        if so is not None or sn is not None:
+            members = _member_changes(so.members if so else (), ro.members if ro else (),
+                                      sn.members if sn else (), rn.members if rn else ())
         storeys.append(StoreyChange(
-            label=label, drift=drift,
+            label=label, in_old=so is not None, in_new=sn is not None,
             residual_capacity_before=ro.residual_capacity if ro else None,
             residual_capacity_after=rn.residual_capacity if rn else None,
-            worsened=tuple(worsened), in_old=so is not None, in_new=sn is not None))
+            spots=tuple(by_storey.get(label, ())), members=tuple(members)))
 
     def key(h: object) -> tuple[str, str, str]:
         return (getattr(h, "kind", ""), (getattr(h, "where", None) or "").strip().lower(),
@@ -212,12 +520,14 @@ def compare(old: Survey, old_a: Assessment, new: Survey, new_a: Assessment) -> C
 
     old_keys = {key(h) for h in old.hazards}
     new_keys = {key(h) for h in new.hazards}
+    every = [c for s in storeys for c in s.spots]
     return Comparison(
         building=str(new.building_id), same_building=old.building_id == new.building_id,
         old=_side(old, old_a), new=_side(new, new_a),
         tier_changed=old_a.tier != new_a.tier,
         level_changed=old_a.performance_level != new_a.performance_level,
-        storeys=tuple(storeys),
+        k=k, method_change_sd=a.method_change_sd, building_line=building_line(zs, k),
+        all_reversed=all_reversed(every), storeys=tuple(storeys),
         new_hazards=tuple(HazardNote(kind=h.kind, where=h.where, storey=h.storey)
                           for h in new.hazards if key(h) not in old_keys),
         cleared_hazards=tuple(HazardNote(kind=h.kind, where=h.where, storey=h.storey)
@@ -242,3 +552,8 @@ def since_previous(survey: Survey, assessment: Assessment,
     if old.building_id != survey.building_id:
         return None
     return compare(old, old_a, survey, assessment)
+
+
+__all__ = ["COVERAGE", "BuildingLine", "Comparison", "MemberChange", "SpotChange",
+           "StoreyChange", "all_reversed", "building_line", "chance_rate", "compare",
+           "match_groups", "method_changes", "sidak_bound", "since_previous", "spot_change"]

@@ -12,6 +12,7 @@ from .errors import UserError
 
 if TYPE_CHECKING:
     from triage.assess import Assessment
+    from triage.assess.compare import Comparison
     from triage.model import Survey
     from triage.store.reader import SurveyReader
 
@@ -51,8 +52,8 @@ def load_either(given: str, args: argparse.Namespace) -> tuple[Survey, Assessmen
 
 def run(args: argparse.Namespace) -> int:
     """Compare, refusing two different buildings unless --force."""
-    from triage.assess import CAUTION
     from triage.assess.compare import compare
+    from triage.safetext import visible
 
     old, old_a = load_either(args.old, args)
     new, new_a = load_either(args.new, args)
@@ -66,15 +67,35 @@ def run(args: argparse.Namespace) -> int:
                          "OLD is taken as the earlier survey as given\n")
     result = compare(old, old_a, new, new_a)
     if args.format == "json":
-        sys.stdout.write(result.to_json())
+        sys.stdout.write(visible(result.to_json()))
         return 0
-    head = [f"CAUTION: {CAUTION}", "",
+    sys.stdout.write(visible(text(result, old, new)))
+    return 0
+
+
+def text(result: Comparison, old: Survey, new: Survey) -> str:
+    """The comparison as text: the caution first, then what changed, in words.
+
+    Not escaped: the caller passes it through `triage.safetext.visible` for a terminal.
+    """
+    from triage.assess import CAUTION
+    from triage.assess.drift import pct
+
+    head = [f"CAUTION: {CAUTION}",
+            "This comparison is indicative too: the engineer of record decides what a change "
+            "means for the building.", "",
             f"{new.building.name}, {new.building.address}: what changed between the two surveys",
             f"earlier: {old.survey_id} by {old.inspection.inspector.name}",
             f"later:   {new.survey_id} by {new.inspection.inspector.name}",
             *([] if result.same_building else ["NOTE: these are surveys of different buildings"]),
             ""]
-    sys.stdout.write("\n".join([*head, *result.lines(), "",
-                                "A drift change is significant only where it exceeds twice the "
-                                "combined standard uncertainty of the two values (k = 2).", ""]))
-    return 0
+    k = f"{result.k:g}"
+    foot = ["",
+            f"How to read it: a drift is a signed ratio (+ and − are the two senses of a "
+            f"direction); a change is significant where it exceeds {k} times the combined "
+            "standard uncertainty of the two measurements (z is the change over that "
+            "uncertainty). Where the same baseline was used both times it cancels and its "
+            "uncertainty is left out; a spot measured another way carries "
+            f"{pct(result.method_change_sd)} more. The building line counts the spots flagged "
+            "against those chance alone would flag.", ""]
+    return "\n".join([*head, *result.lines(), *foot])

@@ -187,6 +187,7 @@ class Assumptions(_Frozen):
     plumbness_bands: dict[str, float]
     borderline_below: float = Field(gt=0, le=1)
     measure_next_max_z: float = Field(gt=0)
+    method_change_sd: float = Field(ge=0, lt=0.05)
     large_drift_warning: float = Field(gt=0, lt=0.25)
     max_drift_ratio: float = Field(gt=0, le=1)
     keep_out_factor: float = Field(gt=0, le=5)

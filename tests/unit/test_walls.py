@@ -7,10 +7,15 @@ import sys
 
 import pytest
 
-FORBIDDEN = ("textual", "rich", "reportlab", "sqlite_utils", "psycopg")
+# The UI (textual, rich), the PDF side (reportlab, pypdf, PIL), the signing (cryptography) and
+# every database driver (sqlite3 is the store's real one, sqlite_utils its wrapper, psycopg the
+# centre's): none may be loaded by importing the computing core.
+FORBIDDEN = ("textual", "rich", "reportlab", "pypdf", "PIL", "cryptography",
+             "sqlite3", "_sqlite3", "sqlite_utils", "psycopg")
 
 
-@pytest.mark.parametrize("module", ["triage.model", "triage.standards", "triage.assess",
+@pytest.mark.parametrize("module", ["triage.model", "triage.model_rules", "triage.standards",
+                                    "triage.assess",
                                     "triage.assess.text", "triage.standards.vocabulary"])
 def test_core_module_imports_no_ui_pdf_or_database(module):
     code = (f"import sys, {module}\n"

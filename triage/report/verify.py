@@ -123,7 +123,7 @@ def _embedded(data: bytes) -> tuple[Any, Any, dict[str, Any]] | VerifyResult:
         survey = json.loads(files[SURVEY_FILE].decode("utf-8"))
         assessment = json.loads(files[ASSESSMENT_FILE].decode("utf-8"))
         signer = json.loads(files[SIGNER_FILE].decode("utf-8"))
-    except (UnicodeDecodeError, json.JSONDecodeError, RecursionError):
+    except (ValueError, RecursionError):   # bad UTF-8 or JSON, or a number over 4,300 digits
         return _changed("the embedded data cannot be read")
     if not isinstance(signer, dict):
         return _changed("the embedded signer.json is damaged")

@@ -34,7 +34,8 @@ def backup_connection(src: sqlite3.Connection, src_path: Path, dest: Path) -> Pa
         finally:
             out.close()
         if check != "ok":
-            raise StoreError(f"{dest}: the copy failed its check ({check}); it was not kept")
+            why = " ".join(str(check).split())   # SQLite's report spans lines; one line here
+            raise StoreError(f"{dest}: the copy failed its check ({why}); it was not kept")
         with part.open("rb") as f:
             os.fsync(f.fileno())
         os.replace(part, dest)

@@ -5,7 +5,12 @@ every subparser sets `func` to its own run function (`run`, or `run_NAME` where 
 registers several commands), which `main` calls. Shared helpers are in `common`. Heavy
 libraries are imported inside the run functions, so start-up stays quick.
 Every refusal is one line on standard error naming the file or field and the rule, with the
-exit status of docs/index.md; never a traceback.
+exit status of docs/index.md; never a traceback. Whatever a command writes to standard output and
+error passes through `triage.safetext.visible`, so no control or bidi character of a survey
+reaches the terminal raw (the screens escape their own text). Refusals are `TriageError`s
+(`triage.errors`); an `OSError` that escapes is told as the I/O failure it is; anything else is
+a bug of ours: the one line names a crash file (`triage.crash`), and `--debug` prints the
+traceback too.
 """
 
 from __future__ import annotations
@@ -14,6 +19,8 @@ import argparse
 import importlib
 import sys
 from collections.abc import Sequence
+
+from triage.errors import TriageError, io_failure
 
 from .errors import UserError
 
@@ -41,14 +48,31 @@ def build_parser() -> argparse.ArgumentParser:
                         "list, export, report, compare and summary")
     from triage import __version__
     parser.add_argument("--version", action="version", version=f"triage {__version__}")
+    parser.add_argument("--debug", action="store_true",
+                        help="on an internal error, print the traceback too")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     for name in MODULES:
         importlib.import_module(f"triage.cli.{name}").add_parser(sub)
     return parser
 
 
+SCREENS = ("ui", "demo")   # commands that hand the terminal to the screens
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command; return its exit status (docs/index.md, "Exit status")."""
+    from triage.safetext import SafeStream
+
+    given = list(sys.argv[1:] if argv is None else argv)
+    out, err = sys.stdout, sys.stderr
+    sys.stdout, sys.stderr = SafeStream(out), SafeStream(err)
+    try:
+        return _run(given)
+    finally:
+        sys.stdout, sys.stderr = out, err
+
+
+def _run(argv: list[str]) -> int:
     parser = build_parser()
     try:
         args = parser.parse_args(argv)
@@ -58,23 +82,46 @@ def main(argv: Sequence[str] | None = None) -> int:
         args.command = "ui"
         from . import screens
         args.func = screens.run_default
+    if args.command in SCREENS:   # the screens write escape sequences of their own
+        sys.stdout = getattr(sys.stdout, "wrapped", sys.stdout)
+        sys.stderr = getattr(sys.stderr, "wrapped", sys.stderr)
     try:
         _check_centre_url(args)
         if args.command in ("ui", "demo", "form"):
             _check_forms()
         return int(args.func(args) or 0)
-    except UserError as err:
-        sys.stderr.write(f"triage {args.command}: {err}\n")
+    except TriageError as err:
+        sys.stderr.write(f"triage {args.command}: {_one_line(str(err))}\n")
         return err.code
     except KeyboardInterrupt:
         sys.stderr.write(f"triage {args.command}: interrupted\n")
         return 1
     except BrokenPipeError:
         return 0
-    except Exception as err:  # a bug of ours: still one line, never a traceback
-        sys.stderr.write(f"triage {args.command}: internal error: {type(err).__name__}: {err} "
-                         "(nothing was changed; please report it)\n")
+    except OSError as err:   # the machine, not the data: a full disk, a removed stick
+        where = f"{err.filename}: " if err.filename else ""
+        failure = io_failure(err.filename or "a file", err, "read or written")
+        why = str(failure).split("(", 1)[-1].rstrip(")")
+        sys.stderr.write(f"triage {args.command}: {where}input/output failed ({why}); "
+                         "nothing more was done\n")
         return 1
+    except Exception as err:  # a bug of ours: one line naming the crash file
+        from triage.crash import write_crash
+
+        path = write_crash(err, argv)
+        if getattr(args, "debug", False):
+            import traceback
+
+            traceback.print_exception(err, file=sys.stderr)
+        said = f"details in {path}" if path else "no crash file could be written"
+        sys.stderr.write(f"triage {args.command}: internal error: {type(err).__name__}: "
+                         f"{_one_line(str(err))[:300]} ({said}; please report it)\n")
+        return 1
+
+
+def _one_line(text: str) -> str:
+    """A message on one line (a multi-line message, from a library, joined with spaces)."""
+    return " ".join(text.split("\n")) if "\n" in text else text
 
 
 def _check_centre_url(args: argparse.Namespace) -> None:

@@ -12,7 +12,6 @@ from __future__ import annotations
 
 import json
 import logging
-import os
 from dataclasses import dataclass
 from datetime import UTC, datetime
 from pathlib import Path
@@ -107,7 +106,7 @@ def write_report(survey: Survey, assessment: Assessment, out: Path, *,
                  key: SigningKey | None = None, revision: int | None = None,
                  comparison: Comparison | None = None,
                  photo_dir: Path | None = None) -> ReportInfo:
-    """Write the report PDF to `out` (atomically: a complete file or none).
+    """Write the report PDF to `out` (`triage.output.write_output`: a complete file or none).
 
     `revision` is the store's revision when the survey comes from the database; `comparison`
     (anything with `.lines()`) adds a "since the previous inspection" section; photo paths are
@@ -116,14 +115,10 @@ def write_report(survey: Survey, assessment: Assessment, out: Path, *,
     """
     data = render_report(survey, assessment, key=key, revision=revision, comparison=comparison,
                          photo_dir=photo_dir)
+    from triage.output import write_output
+
     out = Path(out)
-    tmp = out.with_name(f".{out.name}.part")
-    try:
-        tmp.write_bytes(data)
-        os.replace(tmp, out)
-    except OSError as err:
-        tmp.unlink(missing_ok=True)
-        raise ValueError(f"{out}: cannot be written ({err.strerror})") from None
+    write_output(out, data)   # a device or FIFO in place; a file atomically, fsynced
     return ReportInfo(path=out, signed=key is not None,
                       fingerprint=key.fingerprint if key is not None else None,
                       pages=data[:data.find(b"%%EOF")].count(b"/Type /Page\n"),

@@ -22,7 +22,6 @@ from __future__ import annotations
 
 import hashlib
 import json
-import os
 import re
 from dataclasses import dataclass
 from pathlib import Path
@@ -199,20 +198,14 @@ def public_path(key_path: Path) -> Path:
 
 
 def _write_new(path: Path, data: bytes, mode: int) -> None:
-    """Create `path` (never replacing a file) with `data`; on failure nothing is left behind."""
-    fd = os.open(path, os.O_WRONLY | os.O_CREAT | os.O_EXCL, mode)
-    try:
-        view = memoryview(data)
-        while view:
-            view = view[os.write(fd, view):]
-        if hasattr(os, "fchmod"):  # POSIX: make sure the umask did not widen or narrow it
-            os.fchmod(fd, mode)
-        os.fsync(fd)
-    except OSError:
-        os.close(fd)
-        path.unlink(missing_ok=True)
-        raise
-    os.close(fd)
+    """Create `path` (never replacing a file) with `data`, durably; on failure nothing is left.
+
+    `triage.output.write_new`: a full disk or a read-only folder is an `IOFailure` (one line,
+    not a `ValueError`); an existing file is refused.
+    """
+    from triage.output import write_new
+
+    write_new(path, data, mode=mode)
 
 
 def new_key(name: str, ident: str, out: Path, passphrase: str | None,
@@ -229,6 +222,8 @@ def new_key(name: str, ident: str, out: Path, passphrase: str | None,
         raise ValueError("passphrase: must not be empty (or use --no-passphrase)")
     out = Path(out)
     pub = public_path(out)
+    if not out.parent.is_dir():
+        raise ValueError(f"{out}: its folder does not exist")
     for p in (out, pub):
         if p.exists():
             raise ValueError(f"{p}: already exists; a key is never overwritten")
@@ -267,6 +262,10 @@ def new_key(name: str, ident: str, out: Path, passphrase: str | None,
         for done in written:
             done.unlink(missing_ok=True)
         raise IOFailure(f"{failure}; no key was made", errno_=err.errno) from None
+    except BaseException:   # an IOFailure of write_new, or anything: no half-made key
+        for done in written:
+            done.unlink(missing_ok=True)
+        raise
     trust_key(key.public)
     return key, pub
 
@@ -379,9 +378,8 @@ def trust_key(key: PublicKey | Path) -> PublicKey:
         keys.append(pub)
         folder = home()
         folder.mkdir(parents=True, exist_ok=True)
-        target = folder / TRUST_FILE
-        tmp = folder / (TRUST_FILE + ".tmp")
-        tmp.write_text(json.dumps({"keys": [k.to_json_dict() for k in keys]},
-                                  ensure_ascii=False, indent=2) + "\n", encoding="utf-8")
-        os.replace(tmp, target)
+        from triage.output import write_output
+
+        write_output(folder / TRUST_FILE, json.dumps(
+            {"keys": [k.to_json_dict() for k in keys]}, ensure_ascii=False, indent=2) + "\n")
     return pub

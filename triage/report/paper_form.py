@@ -323,5 +323,7 @@ def write_paper_form(form: Form, out: Path, storeys: int = 3) -> int:
     c.setCreator("triage form")
     pages = draw(c, form, storeys, total)
     c.save()
-    out.write_bytes(buf.getvalue())
+    from triage.output import write_output
+
+    write_output(out, buf.getvalue())
     return pages

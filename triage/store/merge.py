@@ -1,7 +1,7 @@
 """Gathering other databases into this one: `triage merge DB... --into DB`.
 
 Each source is copied in one transaction, keyed by survey id, with its change log, stored
-assessments and reports:
+assessments, reports and photo blobs (each checked again on the way in):
 
 - a survey not in the target is added, recording the source database (path and `db_id`);
 - a survey whose changes in the target are all among the source's (the source edited further)
@@ -39,6 +39,7 @@ from pathlib import Path
 from triage.model import ID_NAMESPACE, canonical_json
 
 from . import schema
+from .blobs import copy_new_blobs
 from .connect import StoreError, check_file, explain, immediate, uri
 from .store import Store
 
@@ -201,6 +202,8 @@ def _merge_attached(store: Store, src: Path, result: MergeResult) -> None:
             elif outcome == "conflict":
                 result.conflicts += 1
         result.unchanged = common - result.updated - result.conflicts + len(echoes)
+        # Photos: every blob the source holds and the target lacks, checked on the way in.
+        copy_new_blobs(c)
         # Reports issued on the source for a version the target holds too.
         c.execute(f"INSERT OR IGNORE INTO main.reports (survey_id, {_REPORT_COLS}) "
                   f"SELECT r.survey_id, {', '.join('r.' + x for x in _REPORT_COLS.split(', '))} "

@@ -109,10 +109,28 @@ def run_script(conn: sqlite3.Connection, script: str) -> None:
         conn.execute(buf)
 
 
+SCHEMA_V2 = """
+CREATE TABLE photos (
+  sha256 TEXT PRIMARY KEY CHECK (length(sha256) = 64),   -- of `data`, lowercase hex
+  format TEXT NOT NULL CHECK (format IN ('JPEG', 'PNG')),
+  width INTEGER NOT NULL,
+  height INTEGER NOT NULL,
+  size INTEGER NOT NULL,              -- bytes
+  added_at TEXT NOT NULL,
+  data BLOB NOT NULL                  -- the image as checked (triage.photos.check_photo)
+);
+"""
+
+
+def _to_2(conn: sqlite3.Connection) -> None:
+    """Photos kept in the store: blobs named by their SHA-256 (surveys name them by `sha256`)."""
+    run_script(conn, SCHEMA_V2)
+
+
 Migration = Callable[[sqlite3.Connection], None]
 
 # MIGRATIONS[k] turns version k into version k + 1; MIGRATIONS[0] creates an empty store.
-MIGRATIONS: list[Migration] = [_to_1]
+MIGRATIONS: list[Migration] = [_to_1, _to_2]
 SCHEMA_VERSION = len(MIGRATIONS)
 
 

@@ -118,18 +118,31 @@ def test_method_lists_every_table_and_assumption(clinic_pair):
 
 
 def test_photos_found_and_missing(tmp_path: Path):
+    import io
+
+    import pytest
+    from PIL import Image
+
+    from triage.photos import PhotoRefused
+
     d = clinic_dict()
     (tmp_path / "img").mkdir()
-    (tmp_path / "img" / "c3.png").write_bytes(b"not really a png")
+    buf = io.BytesIO()
+    Image.new("RGB", (40, 30)).save(buf, format="PNG")
+    (tmp_path / "img" / "c3.png").write_bytes(buf.getvalue())
     d["storeys"][1]["members"][1]["photos"] = [{"path": "img/c3.png", "caption": "C3 north"}]
     d["hazards"][0]["photos"] = [{"path": "img/gone.jpg", "caption": "parapet"}]
     s = parse_survey(d)
     m = build_report_model(s, assess(s), photo_dir=tmp_path)
-    assert [(p.belongs_to, p.file is not None) for p in m.photos] == [
-        ("storey 1, column group 2 C3", True), ("hazard 1, falling_hazard at north parapet",
-                                                False)]
+    assert [(p.belongs_to, p.data) for p in m.photos] == [
+        ("storey 1, column group 2 C3", buf.getvalue()),
+        ("hazard 1, falling_hazard at north parapet", None)]
     # without the survey file's folder, relative paths cannot be found
-    assert all(p.file is None for p in build_report_model(s, assess(s)).photos)
+    assert all(p.data is None for p in build_report_model(s, assess(s)).photos)
+    # a file that is not a JPEG or PNG by content refuses the report, naming the photo
+    (tmp_path / "img" / "c3.png").write_bytes(b"not really a png")
+    with pytest.raises(PhotoRefused, match=r"storeys\[1\]\.members\[1\]\.photos\[0\]"):
+        build_report_model(s, assess(s), photo_dir=tmp_path)
 
 
 def test_comparison_lines():

@@ -74,7 +74,13 @@ CSV_FIELDS = ("building_id", "building", "address", "lat", "lon", "inspected_at"
 
 
 def summary_csv(rows: list[BuildingRow]) -> str:
-    """CSV, one row per building; every row carries the caution in its last column."""
+    """CSV, one row per building; every row carries the caution in its last column.
+
+    Every cell goes through `csv_cell`: one beginning with `= + - @`, tab or carriage return
+    gets a leading `'`, so a spreadsheet never takes a building's name for a formula.
+    """
+    from triage.safetext import csv_cell
+
     buf = io.StringIO()
     w = csv.DictWriter(buf, fieldnames=CSV_FIELDS, lineterminator="\n")
     w.writeheader()
@@ -84,7 +90,7 @@ def summary_csv(rows: list[BuildingRow]) -> str:
         p["lat"], p["lon"] = r.lat, r.lon
         p["provisional"] = "" if r.provisional is None else str(r.provisional).lower()
         p["conflict"] = str(r.conflict).lower()
-        w.writerow(p)
+        w.writerow({k: csv_cell(v) for k, v in p.items()})
     return buf.getvalue()
 
 

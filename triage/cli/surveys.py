@@ -6,7 +6,7 @@ import argparse
 import json
 import sys
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from .common import open_reader, open_store, read_survey, resolve_id, yes_no
 from .errors import UserError
@@ -23,7 +23,9 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
     p.set_defaults(func=run_import)
     p = sub.add_parser("export", help="a survey out of the database as triage-survey/1 JSON")
     p.add_argument("id", metavar="ID", help="the survey id (or an unambiguous start of it)")
-    p.add_argument("-o", "--output", required=True, metavar="FILE", help="the JSON file to write")
+    p.add_argument("-o", "--output", required=True, metavar="FILE|DIR/",
+                   help="the JSON file to write; or a folder (ending in /): survey.json and "
+                   "its photos in img/")
     p.set_defaults(func=run_export)
     p = sub.add_parser("list", help="the surveys in the database")
     p.add_argument("--format", choices=("text", "json"), default="text")
@@ -84,23 +86,71 @@ def _check_report(path: str) -> str | None:
 
 
 def run_export(args: argparse.Namespace) -> int:
-    """Write one survey as triage-survey/1 JSON that imports back to the same survey."""
+    """Write one survey as JSON that imports back to the same survey (`-o FILE.json`).
+
+    `-o DIR/` (a folder, or a path ending in `/`) writes `DIR/survey.json` with the photos
+    the store holds beside it in `DIR/img/`.
+    """
+    from triage.output import write_output
+
+    folder = args.output.endswith(("/", "\\")) or Path(args.output).is_dir()
     st: SurveyReader = open_reader(args, refresh=False)
     try:
         sid = resolve_id(st, args.id)
         data = st.load_survey(sid).to_json_dict()
+        if folder:
+            return _export_folder(st, sid, data, Path(args.output))
     finally:
         st.close()
     out = Path(args.output)
-    text = json.dumps(data, indent=2, ensure_ascii=False) + "\n"
-    part = out.with_name(out.name + ".part")
-    try:
-        part.write_text(text, encoding="utf-8")
-        part.replace(out)
-    except OSError as err:
-        part.unlink(missing_ok=True)
-        raise UserError(f"{out}: cannot be written ({err.strerror})") from None
+    write_output(out, json.dumps(data, indent=2, ensure_ascii=False) + "\n")
     sys.stdout.write(f"exported {sid} to {out}\n")
+    return 0
+
+
+def _export_folder(st: SurveyReader, sid: str, data: dict[str, Any], folder: Path) -> int:
+    """`survey.json` and `img/` in `folder`: each photo the store holds, named by its path.
+
+    A photo keeps its path when it is a plain `img/NAME` of its format; otherwise it is
+    written as `img/<first 16 hex digits of its SHA-256>.jpg|.png` and the path in
+    `survey.json` says so. A photo the store lacks keeps its path and is named as missing.
+    """
+    from triage.output import write_output
+    from triage.photos import check_photo, photo_fields
+
+    try:
+        (folder / "img").mkdir(parents=True, exist_ok=True)
+    except OSError as err:
+        from triage.errors import io_failure
+
+        raise io_failure(folder / "img", err, "made") from None
+    written: dict[str, str] = {}
+    missing = []
+    for field, ph in photo_fields(data):
+        sha = ph.get("sha256")
+        blob = st.photo_bytes(sha) if sha else None
+        if blob is None:
+            missing.append(f"{field} ({ph.get('path')})")
+            continue
+        if sha not in written:
+            checked = check_photo(blob, field, decode=False)
+            path = str(ph["path"])
+            plain = (path.startswith("img/") and path.count("/") == 1
+                     and path[4:] not in ("", ".", "..")
+                     and path.lower().endswith((".jpg", ".jpeg") if checked.format == "JPEG"
+                                               else (".png",))
+                     and path not in written.values())
+            name = path if plain else f"img/{sha[:16]}{checked.suffix}"
+            write_output(folder / name, blob)
+            written[sha] = name
+        ph["path"] = written[sha]
+    write_output(folder / "survey.json", json.dumps(data, indent=2, ensure_ascii=False) + "\n")
+    sys.stdout.write(f"exported {sid} to {folder / 'survey.json'} with {len(written)} "
+                     f"photo{'s' if len(written) != 1 else ''} in {folder / 'img'}\n")
+    if missing:
+        sys.stderr.write(f"triage export: {len(missing)} photo"
+                         f"{'s' if len(missing) != 1 else ''} not in the database, named in "
+                         f"survey.json without a file: {'; '.join(missing)}\n")
     return 0
 
 

@@ -207,23 +207,17 @@ def _page_one(m: ReportModel, body_height: float) -> tuple[list[Any], list[Any]]
     return out, left
 
 
-def _thumb(path: Any) -> Image | None:
-    """A small JPEG of the photo, or None when it cannot be read."""
-    try:
-        from PIL import Image as PILImage
+def _thumb(data: bytes) -> Image | None:
+    """A small JPEG of checked photo bytes (`triage.photos.thumbnail_jpeg`), or None."""
+    from triage.photos import thumbnail_jpeg
 
-        with PILImage.open(path) as src:
-            im = src.convert("RGB")
-        im.thumbnail((640, 640))
-        buf = io.BytesIO()
-        im.save(buf, format="JPEG", quality=80)
-        w, h = im.size
-    except Exception:  # any unreadable image is listed, never fatal
+    got = thumbnail_jpeg(data)
+    if got is None:
         return None
-    buf.seek(0)
+    jpeg, w, h = got
     box = 52 * mm
     scale = min(box / w, box / h)
-    return Image(buf, width=w * scale, height=h * scale)
+    return Image(io.BytesIO(jpeg), width=w * scale, height=h * scale)
 
 
 def _rest(m: ReportModel, reasons_left: list[Any]) -> list[Any]:
@@ -293,9 +287,9 @@ def _rest(m: ReportModel, reasons_left: list[Any]) -> list[Any]:
         cells: list[Any] = []
         missing: list[str] = []
         for ph in m.photos:
-            img = _thumb(ph.file) if ph.file is not None else None
+            img = _thumb(ph.data) if ph.data is not None else None
             if img is None:
-                why = "not found" if ph.file is None else "could not be read"
+                why = "not found" if ph.data is None else "could not be read"
                 missing.append(f"{ph.belongs_to}: {ph.path} ({why})"
                                + (f", {ph.caption}" if ph.caption else ""))
                 continue

@@ -15,6 +15,7 @@ from typing import Any, Protocol
 
 from triage.assess import CAUTION, PROBABILITY_LABEL, TIERS, Assessment, tier_words
 from triage.model import Survey
+from triage.photos import PhotoLoader, folder_loader
 from triage.standards import Standards, load
 
 DASH = "—"
@@ -104,12 +105,15 @@ class HazardRow:
 
 @dataclass(frozen=True)
 class PhotoItem:
-    """A photo named in the survey: where it belongs, its caption and its file (if found)."""
+    """A photo named in the survey: where it belongs, its caption and its checked bytes.
+
+    `data` is None when the photo is not at hand (a missing file, a blob not in the store).
+    """
 
     belongs_to: str
     caption: str
     path: str
-    file: Path | None
+    data: bytes | None
 
 
 @dataclass(frozen=True)
@@ -234,25 +238,24 @@ def _systems_text(survey: Survey, std: Standards) -> str:
     return f"x: {nx} ({sx}); y: {ny} ({sy})"
 
 
-def _photos(survey: Survey, photo_dir: Path | None) -> list[PhotoItem]:
+def _photos(survey: Survey, load: PhotoLoader | None) -> list[PhotoItem]:
+    """Each photo with its bytes from `load` (checked there); a refusal there refuses all."""
     found: list[PhotoItem] = []
 
-    def add(belongs: str, photos: Any) -> None:
-        for ph in photos:
-            p = Path(ph.path)
-            if not p.is_absolute() and photo_dir is not None:
-                p = photo_dir / p
-            ok = (p.is_absolute() or photo_dir is not None) and p.is_file()
-            found.append(PhotoItem(belongs, ph.caption, ph.path, p if ok else None))
+    def add(belongs: str, field: str, photos: Any) -> None:
+        for j, ph in enumerate(photos):
+            data = load(ph, f"{field}.photos[{j}]") if load is not None else None
+            found.append(PhotoItem(belongs, ph.caption, ph.path, data))
 
-    for st in survey.storeys:
-        add(f"storey {st.label}", st.photos)
+    for si, st in enumerate(survey.storeys):
+        add(f"storey {st.label}", f"storeys[{si}]", st.photos)
         for i, m in enumerate(st.members):
             ref = f" {m.ref}" if m.ref else ""
-            add(f"storey {st.label}, {m.kind} group {i + 1}{ref}", m.photos)
+            add(f"storey {st.label}, {m.kind} group {i + 1}{ref}",
+                f"storeys[{si}].members[{i}]", m.photos)
     for i, h in enumerate(survey.hazards):
         where = f" at {h.where}" if h.where else ""
-        add(f"hazard {i + 1}, {h.kind}{where}", h.photos)
+        add(f"hazard {i + 1}, {h.kind}{where}", f"hazards[{i}]", h.photos)
     return found
 
 
@@ -290,12 +293,13 @@ def _method(std: Standards) -> list[MethodRow]:
 
 def build_report_model(survey: Survey, assessment: Assessment, *, revision: int | None = None,
                        signer: Signer | None = None, comparison: Comparison | None = None,
-                       photo_dir: Path | None = None,
+                       photo_dir: Path | None = None, photos: PhotoLoader | None = None,
                        std: Standards | None = None) -> ReportModel:
     """Everything the report shows, from the survey and its assessment.
 
-    Pure but for photo lookup: photo paths are resolved against `photo_dir` (the survey
-    file's folder).
+    Pure but for the photos: their bytes come from `photos` (`triage.photos.PhotoLoader`:
+    the store's blobs, or a survey file's folder), else from inside `photo_dir` (the survey
+    file's folder); a path leaving that folder refuses the report (`PhotoRefused`).
     """
     std = std or load()
     a = assessment
@@ -436,7 +440,8 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
                      "made it or that it is unchanged."),
         storeys=storeys, chart=chart, chart_figures=figs, members=members, hazards=hazards,
         repairability=repair, repairability_basis=basis,
-        photos=_photos(survey, photo_dir),
+        photos=_photos(survey, photos if photos is not None
+                       else folder_loader(photo_dir) if photo_dir is not None else None),
         storey_notes=[(s.label, s.notes) for s in survey.storeys if s.notes],
         notes=list(a.notes), defaulted=list(a.defaulted),
         method=_method(std), method_text=method_text, assumptions=assumptions,

@@ -19,6 +19,7 @@ from __future__ import annotations
 import hashlib
 import io
 import os
+import re
 import stat
 import warnings
 from collections.abc import Callable, Iterator
@@ -86,9 +87,12 @@ def check_photo(data: bytes, name: str, *, decode: bool = True) -> CheckedPhoto:
     except UnidentifiedImageError:
         raise PhotoRefused(f"{name}: not a JPEG or PNG image (by its content); only those "
                            "two are taken") from None
-    except (Image.DecompressionBombError, Image.DecompressionBombWarning):
-        raise PhotoRefused(f"{name}: too many pixels for a photo (over "
-                           f"{MAX_PIXELS // 1_000_000} megapixels)") from None
+    except (Image.DecompressionBombError, Image.DecompressionBombWarning) as err:
+        # Pillow's own guard, met before ours for a header claiming hundreds of megapixels
+        n = re.search(r"\((\d+) pixels\)", str(err))
+        size = f"{int(n.group(1)):,} pixels" if n else "its size"
+        raise PhotoRefused(f"{name}: {size} is over the {MAX_PIXELS // 1_000_000}-megapixel "
+                           "limit for a photo") from None
     except (OSError, ValueError, SyntaxError, EOFError, MemoryError) as err:
         raise PhotoRefused(f"{name}: a damaged or truncated {FORMATS[0]}/{FORMATS[1]} image "
                            f"({' '.join(str(err).split()) or type(err).__name__})") from None
@@ -226,6 +230,25 @@ def folder_loader(folder: Path | None) -> PhotoLoader:
             raise PhotoRefused(f"{name}: the file {photo.path!r} is not the photo its sha256 "
                                "names (its content differs)")
         return checked.data
+
+    return load
+
+
+def blob_loader(get: Callable[[str], bytes | None], folder: Path | None) -> PhotoLoader:
+    """Photos of a stored survey: the blob its `sha256` names, checked again.
+
+    A photo without a `sha256` (a survey stored before photos were kept, or whose file was
+    missing at import) is read, checked, from inside `folder` (the folder of the file it was
+    imported from, while it is there), else it is missing.
+    """
+    from_folder = folder_loader(folder)
+
+    def load(photo: Photo, name: str) -> bytes | None:
+        sha = getattr(photo, "sha256", None)
+        if sha:
+            data = get(sha)
+            return None if data is None else check_photo(data, name, decode=False).data
+        return from_folder(photo, name)
 
     return load
 

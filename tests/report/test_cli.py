@@ -135,7 +135,7 @@ def test_report_from_the_database(capsys, tmp_path: Path, survey_file: Path):
     assert code == 1 and len(err.splitlines()) == 1
 
 
-def test_a_report_of_a_stored_survey_finds_its_photos_beside_the_imported_file(
+def test_a_report_of_a_stored_survey_shows_its_photos_after_the_files_are_gone(
         tmp_path: Path, capsys):
     from PIL import Image
     from pypdf import PdfReader
@@ -155,11 +155,13 @@ def test_a_report_of_a_stored_survey_finds_its_photos_beside_the_imported_file(
     assert code == 0, err
     assert "store revision 1" in said
     assert len([i for p in PdfReader(out).pages for i in p.images]) == 1
-    # Once the imported file is gone the photo is listed as not found; the report is still made.
+    # The photo was copied into the database: with the survey file and the photo gone, the
+    # report made from the database still shows it.
     src.unlink()
+    (tmp_path / "img" / "c3.jpg").unlink()
     code, _, err = run(capsys, "--db", db, "report", d["id"], "-o", str(out))
     assert code == 0, err
-    assert not [i for p in PdfReader(out).pages for i in p.images]
+    assert len([i for p in PdfReader(out).pages for i in p.images]) == 1
 
 
 def test_a_borrowed_name_is_refused_from_the_command(keyfile: Path, survey_file: Path, capsys,

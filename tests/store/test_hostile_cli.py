@@ -96,7 +96,7 @@ def test_csv_cells_that_could_be_formulas_get_a_quote(tmp_path, cli):
 def test_report_to_dev_null_keeps_the_device(tmp_path, cli):
     f = write_json(tmp_path / "s.json", sample_dict())
     before = os.stat("/dev/null")
-    code, out, err = cli("report", str(f), "-o", "/dev/null")
+    code, _, err = cli("report", str(f), "-o", "/dev/null")
     assert code == 0, err
     after = os.stat("/dev/null")
     assert stat.S_ISCHR(after.st_mode) and after.st_ino == before.st_ino

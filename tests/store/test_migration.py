@@ -10,7 +10,6 @@ import pytest
 from tests.store.conftest import sample
 from triage.store import Store, StoreError, schema
 
-
 NOW = schema.current_version()
 NEXT = NOW + 1
 

@@ -21,8 +21,8 @@ from triage.store import Store
 from triage.store.reader import ReportLog, SurveyReader
 
 PROTOCOL = {"location", "has_survey", "match_ids", "list_surveys", "survey_row",
-            "load_survey", "load_assessment", "revision", "photo_dir", "building_rows",
-            "close"}
+            "load_survey", "load_assessment", "revision", "photo_dir", "photo_bytes",
+            "building_rows", "close"}
 
 
 class OnlyReader:

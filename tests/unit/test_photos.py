@@ -66,7 +66,7 @@ def test_a_pixel_bomb_is_refused_from_its_header_before_decoding():
     with pytest.raises(PhotoRefused, match="8000 x 5001 pixels is over the 40-megapixel"):
         check_photo(bomb, "bomb.png")
     assert time.perf_counter() - t < 1.0
-    with pytest.raises(PhotoRefused, match=r"(over the 40-megapixel|too many pixels)"):
+    with pytest.raises(PhotoRefused, match="10,000,000,000 pixels is over the 40-megapixel limit"):
         check_photo(png_claiming(100_000, 100_000), "bomb.png")
 
 

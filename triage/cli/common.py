@@ -7,6 +7,7 @@ helpers private and never imports another command module's.
 from __future__ import annotations
 
 import argparse
+import os
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -72,7 +73,7 @@ def read_survey(path: str) -> Survey:
 
 
 def open_store(args: argparse.Namespace, *, create: bool = True,
-               refresh: bool = True) -> Store:
+               refresh: bool = True, read_only: bool = False) -> Store:
     """The database of `--db` (default: under the user's data folder), or a one-line refusal."""
     from triage.centre import is_url
     from triage.store import Store, StoreError
@@ -82,7 +83,7 @@ def open_store(args: argparse.Namespace, *, create: bool = True,
                         "summary; laptops send to it with 'triage sync --to URL'")
 
     try:
-        return Store.open(args.db, create=create, refresh=refresh)
+        return Store.open(args.db, create=create, refresh=refresh, read_only=read_only)
     except StoreError as err:
         raise UserError(str(err)) from None
 
@@ -91,6 +92,9 @@ def open_reader(args: argparse.Namespace, *, refresh: bool = True) -> SurveyRead
     """The surveys to read (`--db`, which must exist), for the commands that only read them.
 
     A `postgresql://` URL reads from a coordination centre (read-only; never written).
+    Opened read-only (nothing written to the file or beside it; works on a read-only USB
+    stick), except that with `refresh`, where the file and its folder can be written, it is
+    opened as usual so assessments left stale by a crash are recomputed and stored first.
     """
     from triage.centre import is_url
 
@@ -102,7 +106,21 @@ def open_reader(args: argparse.Namespace, *, refresh: bool = True) -> SurveyRead
             return CentreReader.open(args.db)
         except CentreError as err:
             raise UserError(str(err)) from None
-    return open_store(args, create=False, refresh=refresh)
+    return open_store(args, create=False, refresh=refresh,
+                      read_only=not (refresh and db_writable(args)))
+
+
+def db_path(args: argparse.Namespace) -> Path:
+    """The database `--db` names, or the default one."""
+    from triage.store import default_db_path
+
+    return Path(args.db) if getattr(args, "db", None) else default_db_path()
+
+
+def db_writable(args: argparse.Namespace) -> bool:
+    """Whether the database file and its folder can be written (False when absent)."""
+    p = db_path(args)
+    return p.exists() and os.access(p, os.W_OK) and os.access(p.parent, os.W_OK)
 
 
 def resolve_id(reader: SurveyReader, given: str) -> str:

@@ -12,7 +12,7 @@ import sys
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from .common import open_reader, read_survey_file, resolve_id
+from .common import db_writable, open_reader, read_survey_file, resolve_id
 from .errors import UserError
 from .keys import load_signing_key
 
@@ -61,37 +61,45 @@ def run(args: argparse.Namespace) -> int:
         raise UserError(f"{args.output}: is the survey file itself; choose another name")
     key = load_signing_key(args.key) if args.key else None
 
+    from triage.photos import blob_loader, folder_loader
+
     store: SurveyReader | None = None
     revision = None
-    photo_dir = None
     if not src.exists() and not _is_id(args.source):
         raise UserError(f"{args.source}: no such file (nor a survey id or the start of one)")
     if src.exists():
         survey = read_survey_file(args.source)
-        photo_dir = src.resolve().parent
+        # photos only from inside the survey file's own folder, checked
+        photos = folder_loader(src.resolve().parent)
     else:
         store, survey, revision = _from_store(args)
-        photo_dir = store.photo_dir(str(survey.survey_id))
+        sid = str(survey.survey_id)
+        # photos from the store's blobs (the original files may be long gone)
+        photos = blob_loader(store.photo_bytes, store.photo_dir(sid))
+    recorded = ""
     try:
         assessment = assess(survey)
         comparison = _since_previous(survey, assessment, store, args)
         try:
             info = write_report(survey, assessment, out, key=key, revision=revision,
-                                photo_dir=photo_dir, comparison=comparison)
+                                photos=photos, comparison=comparison)
         except ValueError as err:
             raise UserError(str(err)) from None
         from triage.store.reader import ReportLog
 
         if isinstance(store, ReportLog) and revision is not None:   # a centre records nothing
-            store.record_report(str(survey.survey_id), revision, str(out.resolve()),
-                                info.fingerprint)
+            if getattr(store, "read_only", False):
+                recorded = " (the database is read-only: this report is not recorded in it)"
+            else:
+                store.record_report(str(survey.survey_id), revision, str(out.resolve()),
+                                    info.fingerprint)
     finally:
         if store is not None:
             store.close()
     signed = f"signed with key {info.fingerprint}" if info.signed else "UNSIGNED"
     rev = f", store revision {revision}" if revision is not None else ""
     sys.stdout.write(f"report written to {out} ({info.pages} pages, {signed}{rev}); "
-                     f"tier {assessment.tier}, indicative only\n")
+                     f"tier {assessment.tier}, indicative only{recorded}\n")
     return 0
 
 
@@ -119,7 +127,7 @@ def _since_previous(survey: Survey, assessment: Assessment, store: SurveyReader 
         if not db.exists():
             return None
         try:
-            own = Store.open(db, create=False)
+            own = Store.open(db, create=False, read_only=True)
         except StoreError:
             return None
 
@@ -154,7 +162,7 @@ def _from_store(args: argparse.Namespace) -> tuple[SurveyReader, Survey, int]:
     if not db.exists():
         raise UserError(f"{args.source}: no such file, and no database at {db}")
     try:
-        store: SurveyReader = Store.open(db, create=False)
+        store: SurveyReader = Store.open(db, create=False, read_only=not db_writable(args))
     except StoreError as err:
         raise UserError(str(err)) from None
 

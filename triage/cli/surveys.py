@@ -8,10 +8,13 @@ import sys
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+from triage.errors import TriageError
+
 from .common import open_reader, open_store, read_survey, resolve_id, yes_no
 from .errors import UserError
 
 if TYPE_CHECKING:
+    from triage.model import Survey
     from triage.store.reader import SurveyReader
 
 
@@ -19,7 +22,8 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
     """Register `import`, `export`, `list` and `backup`."""
     p = sub.add_parser("import", help="survey files (JSON, or a report PDF carrying its survey) "
                        "into the database")
-    p.add_argument("files", nargs="+", metavar="FILE", help="triage-survey/1 JSON or report PDF")
+    p.add_argument("files", nargs="+", metavar="FILE", help="triage-survey JSON or report PDF "
+                   "(- reads JSON from standard input)")
     p.set_defaults(func=run_import)
     p = sub.add_parser("export", help="a survey out of the database as triage-survey/1 JSON")
     p.add_argument("id", metavar="ID", help="the survey id (or an unambiguous start of it)")
@@ -37,7 +41,14 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
 
 
 def run_import(args: argparse.Namespace) -> int:
-    """Validate each file, commit it in its own transaction, then say so (one line each)."""
+    """Validate each file, commit it in its own transaction, then say so (one line each).
+
+    The photos a survey names are read from inside its file's folder, checked and stored with
+    it (`triage.photos.gather`): one that breaks a rule refuses that survey whole; a missing
+    one is a warning line and stays listed as missing. `-` reads a survey from standard
+    input, which has no folder: a survey from there naming photos is refused.
+    """
+    from triage.photos import gather
     from triage.store import StoreError
 
     st = open_store(args)
@@ -45,20 +56,35 @@ def run_import(args: argparse.Namespace) -> int:
     try:
         for path in args.files:
             try:
-                warning = _check_report(path)
-                survey = read_survey(path)
-                status = st.add_survey(survey, source=str(Path(path).resolve()))
-            except UserError as err:
-                sys.stderr.write(f"triage import: {err}\n")
-                failed += 1
-                continue
+                warning = None
+                if path == "-":
+                    survey = _read_stdin()
+                    folder = None
+                    source = None
+                else:
+                    warning = _check_report(path)
+                    survey = read_survey(path)
+                    folder = Path(path).resolve().parent
+                    source = str(Path(path).resolve())
+                got = gather(survey, folder, have=st.has_photo)
+                status = st.add_survey(got.survey, source=source, photos=got.photos)
             except StoreError as err:
                 sys.stderr.write(f"triage import: {path}: {err}\n")
                 failed += 1
                 continue
-            name = survey.building.name
+            except TriageError as err:
+                msg = str(err)
+                said = msg if msg.startswith(path) else f"{path}: {msg}"
+                sys.stderr.write(f"triage import: {said}\n")
+                failed += 1
+                continue
+            name = got.survey.building.name
+            for missing in got.warnings:
+                sys.stderr.write(f"triage import: warning: {path}: {missing}\n")
+            kept = f", {len(got.photos)} photo{'s' if len(got.photos) != 1 else ''} stored" \
+                if got.photos else ""
             if status == "added":
-                sys.stdout.write(f"imported {survey.survey_id}  {name}  ({path})\n")
+                sys.stdout.write(f"imported {survey.survey_id}  {name}  ({path}{kept})\n")
             else:
                 sys.stdout.write(f"unchanged {survey.survey_id}  {name}  ({path}: the identical "
                                  "survey is stored already)\n")
@@ -83,6 +109,20 @@ def _check_report(path: str) -> str | None:
     if verdict.refused:
         raise UserError(verdict.refused)
     return verdict.warning
+
+
+def _read_stdin() -> Survey:
+    """A survey JSON read from standard input."""
+    from triage.model import SurveyError, parse_survey_text
+
+    try:
+        text = sys.stdin.read()
+    except UnicodeDecodeError:
+        raise UserError("-: not UTF-8 text (a survey file is JSON)") from None
+    try:
+        return parse_survey_text(text)
+    except SurveyError as err:
+        raise UserError(f"-: {err}") from None
 
 
 def run_export(args: argparse.Namespace) -> int:
@@ -127,7 +167,7 @@ def _export_folder(st: SurveyReader, sid: str, data: dict[str, Any], folder: Pat
     written: dict[str, str] = {}
     missing = []
     for field, ph in photo_fields(data):
-        sha = ph.get("sha256")
+        sha = str(ph.get("sha256") or "")
         blob = st.photo_bytes(sha) if sha else None
         if blob is None:
             missing.append(f"{field} ({ph.get('path')})")
@@ -193,7 +233,7 @@ def run_backup(args: argparse.Namespace) -> int:
     """A consistent single-file copy of the database, WAL content included."""
     from triage.store import StoreError
 
-    st = open_store(args, create=False, refresh=False)
+    st = open_store(args, create=False, refresh=False, read_only=True)
     try:
         out = st.backup_to(args.output)
     except StoreError as err:

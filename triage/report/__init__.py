@@ -20,6 +20,7 @@ from typing import TYPE_CHECKING, Any
 if TYPE_CHECKING:
     from triage.assess import Assessment
     from triage.model import Survey
+    from triage.photos import PhotoLoader
 
     from .keys import SigningKey
     from .model import Comparison
@@ -45,7 +46,7 @@ def survey_text(survey: Survey) -> str:
 
 def render_report(survey: Survey, assessment: Assessment, *, key: SigningKey | None = None,
                   revision: int | None = None, comparison: Comparison | None = None,
-                  photo_dir: Path | None = None,
+                  photo_dir: Path | None = None, photos: PhotoLoader | None = None,
                   signed_at: datetime | None = None) -> bytes:
     """The report PDF as bytes (signed when `key` is given); see `write_report`."""
     from .draw import render
@@ -88,7 +89,7 @@ def render_report(survey: Survey, assessment: Assessment, *, key: SigningKey | N
                         not_inspector=(ins.name + (f" (id {ins.id})" if ins.id else "")
                                        if other else ""))
     model = build_report_model(survey, assessment, revision=revision, signer=signer,
-                               comparison=comparison, photo_dir=photo_dir)
+                               comparison=comparison, photo_dir=photo_dir, photos=photos)
     data = render(model, files, signed=first_way)
     if key is not None and first_way:
         start, end = find_slot(data)
@@ -105,16 +106,19 @@ def render_report(survey: Survey, assessment: Assessment, *, key: SigningKey | N
 def write_report(survey: Survey, assessment: Assessment, out: Path, *,
                  key: SigningKey | None = None, revision: int | None = None,
                  comparison: Comparison | None = None,
-                 photo_dir: Path | None = None) -> ReportInfo:
+                 photo_dir: Path | None = None,
+                 photos: PhotoLoader | None = None) -> ReportInfo:
     """Write the report PDF to `out` (`triage.output.write_output`: a complete file or none).
 
     `revision` is the store's revision when the survey comes from the database; `comparison`
-    (anything with `.lines()`) adds a "since the previous inspection" section; photo paths are
-    resolved against `photo_dir`, the survey file's folder. Unsigned output is byte-for-byte
-    reproducible for the same input.
+    (anything with `.lines()`) adds a "since the previous inspection" section; the photos'
+    bytes come from `photos` (the store's blobs: `triage.photos.blob_loader`), else from
+    inside `photo_dir`, the survey file's folder (`folder_loader`): the report never opens a
+    path of the survey's beyond that folder. Unsigned output is byte-for-byte reproducible
+    for the same input.
     """
     data = render_report(survey, assessment, key=key, revision=revision, comparison=comparison,
-                         photo_dir=photo_dir)
+                         photo_dir=photo_dir, photos=photos)
     from triage.output import write_output
 
     out = Path(out)

@@ -78,6 +78,14 @@ class SurveyReader(Protocol):
         """The folder the survey's relative photo paths start from, when known; else None."""
         ...
 
+    def photo_bytes(self, sha256: str) -> bytes | None:
+        """The photo named by this SHA-256 (a survey photo's `sha256`), checked against it.
+
+        None when the backend does not hold it. Reports and `export DIR/` take photos only
+        from here (or from inside a survey file's own folder), never from a path.
+        """
+        ...
+
     def building_rows(self) -> list[BuildingRow]:
         """The area summary: one row per building id with its latest visible survey.
 

@@ -12,6 +12,7 @@ from typing import TYPE_CHECKING, Any
 
 from triage.model import Survey, SurveyError, parse_survey
 
+from . import blobs
 from .connect import StoreError
 from .core import StoreCore
 from .rows import ROW_SQL, SurveyRow, row_of
@@ -62,6 +63,18 @@ class SurveyReads(StoreCore):
         if src.suffix.lower() not in (".json", ".pdf") or not src.is_file():
             return None
         return src.parent
+
+    def photo_bytes(self, sha256: str) -> bytes | None:
+        """The photo blob named by this SHA-256, checked against it; None when not held."""
+        return blobs.photo_data(self.conn, sha256)
+
+    def has_photo(self, sha256: str) -> bool:
+        """Whether the blob named by this SHA-256 is held."""
+        return blobs.has_photo(self.conn, sha256)
+
+    def missing_photos(self, survey_id: str | uuid.UUID) -> list[tuple[str, str]]:
+        """(field path, photo path) of each photo of the survey whose blob is not held."""
+        return blobs.missing_photos(self.survey_json(survey_id), self.conn)
 
     def has_survey(self, survey_id: str | uuid.UUID) -> bool:
         """Whether the survey is in this database (hidden or not)."""

@@ -10,7 +10,10 @@ undo, hide) and, here, the checked opening, reports issued, settings and whole-f
 from __future__ import annotations
 
 import json
+import os
+import shutil
 import sqlite3
+import tempfile
 import uuid
 from pathlib import Path
 from typing import Any
@@ -19,7 +22,7 @@ from .connect import StoreError, check_file, connect, explain
 from .core import Clock
 from .history import ChangeHistory
 from .paths import default_db_path
-from .schema import ensure_schema
+from .schema import current_version, ensure_schema
 
 
 class Store(ChangeHistory):
@@ -27,17 +30,23 @@ class Store(ChangeHistory):
 
     # --- opening -------------------------------------------------------------------------
 
+    read_only = False
+    _scratch: Path | None = None
+
     @classmethod
     def open(cls, path: str | Path | None = None, *, create: bool = True,
              who: str | None = None, refresh: bool = True, check: bool = True,
-             clock: Clock | None = None) -> Store:
+             clock: Clock | None = None, read_only: bool = False) -> Store:
         """Open (or create) a database: checked first, schema upgraded after a backup.
 
         With `refresh`, assessments left stale (by a crash, or a merge) are refreshed. With
         `check` off, the `quick_check` pass is skipped (for short-lived worker stores on a
-        file the app has just opened and checked).
+        file the app has just opened and checked). With `read_only`, nothing is ever written
+        to the file or beside it (`open_read_only`): for the commands that only read.
         """
         p = Path(path) if path is not None else default_db_path()
+        if read_only:
+            return cls.open_read_only(p, who=who, check=check, clock=clock)
         if not p.exists() and not create:
             raise StoreError(f"{p}: no database there; check the path (--db PATH)")
         version = check_file(p, deep=check)
@@ -63,6 +72,67 @@ class Store(ChangeHistory):
             conn.close()
             raise
         return store
+
+    @classmethod
+    def open_read_only(cls, path: str | Path, *, who: str | None = None, check: bool = True,
+                       clock: Clock | None = None) -> Store:
+        """Open an existing database only to read it; works on read-only media.
+
+        The file is checked as `open` checks it, then read through a read-only connection
+        (`mode=ro`; `immutable` when its folder cannot be written and no `-wal` or `-journal`
+        lies beside it, so SQLite needs no `-shm` there). A file SQLite cannot read in place
+        (a `-wal` on a read-only stick) or of an older schema is read through a copy made in a
+        temporary folder (upgraded there; the file itself is never changed). Stale
+        assessments are left as they are; any write is refused as read-only.
+        """
+        p = Path(path)
+        if not p.exists():
+            raise StoreError(f"{p}: no database there; check the path (--db PATH)")
+        version = check_file(p, deep=check)
+        if version == 0:
+            raise StoreError(f"{p}: an empty file, not yet a triage database (--db PATH)")
+        sidecars = any(p.with_name(p.name + s).exists() for s in ("-wal", "-journal"))
+        writable = os.access(p.parent, os.W_OK)
+        conn = None
+        if version == current_version():
+            try:
+                conn = connect(p, read_only=True, immutable=not writable and not sidecars)
+                conn.execute("SELECT count(*) FROM surveys").fetchone()
+            except sqlite3.Error:
+                if conn is not None:
+                    conn.close()
+                conn = None
+        scratch = None
+        if conn is None:
+            scratch = Path(tempfile.mkdtemp(prefix="triage-read-"))
+            try:
+                copy = scratch / "read.db"
+                shutil.copyfile(p, copy)
+                for s in ("-wal", "-journal"):
+                    if p.with_name(p.name + s).exists():
+                        shutil.copyfile(p.with_name(p.name + s), copy.with_name(copy.name + s))
+                if version != current_version():
+                    cls.open(copy, refresh=False, check=False).close()
+                conn = connect(copy, read_only=True)
+            except (OSError, sqlite3.Error, StoreError) as err:
+                shutil.rmtree(scratch, ignore_errors=True)
+                if isinstance(err, StoreError):
+                    raise StoreError(str(err).replace(str(scratch / "read.db"), str(p))) \
+                        from None
+                if isinstance(err, sqlite3.Error):
+                    raise explain(err, p) from None
+                raise StoreError(f"{p}: cannot be read ({err.strerror})") from None
+        store = cls(conn, p, who=who, clock=clock)
+        store.read_only = True
+        store._scratch = scratch
+        return store
+
+    def close(self) -> None:
+        """Close the connection (and drop the temporary copy a read-only open made)."""
+        super().close()
+        if self._scratch is not None:
+            shutil.rmtree(self._scratch, ignore_errors=True)
+            self._scratch = None
 
     # --- reports and settings ------------------------------------------------------------
 

@@ -12,13 +12,17 @@ import hashlib
 import json
 import sqlite3
 import uuid
+from collections.abc import Sequence
 from datetime import UTC, datetime
+from pathlib import Path
 from typing import Any
 
 from triage.model import ID_NAMESPACE, Survey, canonical_json
+from triage.photos import CheckedPhoto, PhotoRefused
 
 from . import edits
 from .assessments import AssessmentRecords
+from .blobs import put_photos
 from .canonical import CanonicalText, scalar_json
 from .connect import StoreError, SurveyConflict
 from .rows import Change
@@ -108,11 +112,14 @@ class SurveyWrites(AssessmentRecords):
     """New surveys in, and edits (`set`, `add`, `remove`) to stored ones."""
 
     def add_survey(self, survey: Survey, who: str | None = None, source: str | None = None,
-                   *, assess: bool = True, op: str = "import") -> str:
-        """Store a validated survey in one transaction, with its assessment.
+                   *, assess: bool = True, op: str = "import",
+                   photos: Sequence[CheckedPhoto] = ()) -> str:
+        """Store a validated survey in one transaction, with its assessment and photos.
 
         Returns "added", or "unchanged" when the identical survey is stored already. A
         different survey under a stored id raises `SurveyConflict`; the stored one is kept.
+        `photos` are the checked blobs its photos name by `sha256` (`triage.photos.gather`
+        reads them from the survey file's folder), stored in the same transaction.
         """
         sid = str(survey.survey_id)
         doc = survey.to_json_dict()
@@ -146,6 +153,8 @@ class SurveyWrites(AssessmentRecords):
                 (import_uid(sid, text), sid, op, text, now, who or self.who))
             if result is not None:
                 self._put_assessment(c, sid, 1, result)
+            if photos:
+                put_photos(c, photos)
         self._keep(sid, 1, doc)
         return "added"
 
@@ -194,9 +203,11 @@ class SurveyWrites(AssessmentRecords):
                       applied.old, applied.new, now, who, undoes)
 
     def _edit(self, survey_id: str | uuid.UUID, op: str, path: str, value: Any,
-              who: str | None) -> Change:
+              who: str | None, photos: Sequence[CheckedPhoto] = ()) -> Change:
         sid = str(survey_id)
         with self._write() as c:
+            if photos:   # the blobs an attached photo names, in the edit's own transaction
+                put_photos(c, photos)
             # Optimistic: the JSON kept since this store's last edit, checked by the UPDATE's
             # revision condition under the write lock; reloaded if another process moved on.
             cached = self._docs.get(sid)
@@ -237,6 +248,29 @@ class SurveyWrites(AssessmentRecords):
         """Add a storey, reading, member group, hazard or photo to the list at `path`."""
         target = path if index is None else f"{path}[{index}]"
         return self._edit(survey_id, "add", target, item, who).revision
+
+    def attach_photo(self, survey_id: str | uuid.UUID, path: str, file: str | Path,
+                     caption: str = "", who: str | None = None) -> int:
+        """Attach a photo file to the photo list at `path`; returns the new revision.
+
+        `path` is a storey's, member group's or hazard's list (`storeys[1].photos`,
+        `storeys[1].members[0].photos`, `hazards[0].photos`). The file is read (a regular
+        file, at most 20 MB), checked (`triage.photos.check_photo`: JPEG or PNG by content,
+        at most 40 megapixels) and copied into the database as a blob named by its SHA-256;
+        the survey gains `{"path": "img/NAME", "caption", "sha256"}`. Blob and item are one
+        transaction. A photo breaking a rule raises `PhotoRefused` (an `InputRefused`, with
+        the file and the rule); an edit the survey refuses raises `EditRefused`; either way
+        nothing is saved. The original file is not needed afterwards.
+        """
+        from triage.photos import check_photo, read_inside
+
+        f = Path(file)
+        data = read_inside(f.parent, f.name, str(f))
+        if data is None:
+            raise PhotoRefused(f"{f}: no such file")
+        checked = check_photo(data, str(f))
+        item = {"path": f"img/{f.name}", "caption": caption, "sha256": checked.sha256}
+        return self._edit(survey_id, "add", path, item, who, photos=[checked]).revision
 
     def remove_item(self, survey_id: str | uuid.UUID, path: str,
                     who: str | None = None) -> int:

@@ -45,6 +45,7 @@ def slug(text: str) -> str:
 def write_issued(db_path: Path, survey_id: str, out: Path, key_path: str | None,
                  passphrase: str | None) -> Issued:
     """Load the key, assess the stored survey, write the PDF, record it (worker thread)."""
+    from triage.photos import blob_loader
     from triage.report import write_report
     from triage.report.keys import load_key
 
@@ -53,7 +54,7 @@ def write_issued(db_path: Path, survey_id: str, out: Path, key_path: str | None,
     with worker_store(db_path) as st:
         v = verdict_of(st, survey_id)
         info = write_report(v.survey, v.assessment, out, key=key, revision=v.revision,
-                            photo_dir=st.photo_dir(survey_id))
+                            photos=blob_loader(st.photo_bytes, st.photo_dir(survey_id)))
         st.record_report(survey_id, v.revision, str(info.path), info.fingerprint)
     return Issued(Path(info.path), bool(info.signed), info.fingerprint, v.revision)
 

@@ -82,6 +82,10 @@ FIGURES = [
     Figure("centre_summary_100k_ms", 1000.0, "<=", "`triage --db postgresql://… summary` of "
            "100,000 buildings", _one("bench.centre_bench", "centre_summary_100k_ms",
                                      "centre_summary_100k_ms")),
+    Figure("report_limits_s", 10.0, "<=", "`triage report FILE` of a typical survey with one "
+           "size limit at its bound (texts, storeys, readings, groups, counts, hazards, "
+           "photos): the slowest case, s", _one("bench.limits_bench", "report_limits",
+                                                "report_limits_s")),
 ]
 
 

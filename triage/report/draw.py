@@ -98,8 +98,36 @@ def _h2(text: str) -> Paragraph:
     return _p(text, "h2")
 
 
+_CHUNK = 600   # characters per paragraph of a long text (see `_pieces`)
+
+
+def _pieces(text: str) -> list[str]:
+    """A long text cut at spaces into pieces of about `_CHUNK` characters.
+
+    reportlab wraps a paragraph again from its start each time it splits it across a page, so
+    one paragraph of 20,000 characters costs many times one of 600; pieces keep a report of
+    texts at their length limits within its time (the text reads on as one).
+    """
+    if len(text) <= _CHUNK:
+        return [text]
+    out = []
+    while len(text) > _CHUNK:
+        cut = text.rfind(" ", _CHUNK // 2, _CHUNK)
+        cut = _CHUNK if cut < 0 else cut + 1
+        out.append(text[:cut])
+        text = text[cut:]
+    if text:
+        out.append(text)
+    return out
+
+
 def _bullets(lines: list[str], style: str = "bullet") -> list[Paragraph]:
-    return [Paragraph(esc(x), styles()[style], bulletText="–") for x in lines]
+    out = []
+    for x in lines:
+        first, *rest = _pieces(x)
+        out.append(Paragraph(esc(first), styles()[style], bulletText="–"))
+        out += [Paragraph(esc(r), styles()[style]) for r in rest]
+    return out
 
 
 def _height(flowables: list[Any]) -> float:

@@ -34,7 +34,7 @@ def _write_all(fd: int, data: bytes) -> None:
         view = view[n:]
 
 
-def _fsync_folder(folder: Path) -> None:
+def fsync_folder(folder: Path) -> None:
     """Make a rename in `folder` durable (POSIX; a no-op where folders cannot be opened)."""
     try:
         fd = os.open(folder, os.O_RDONLY | getattr(os, "O_DIRECTORY", 0))
@@ -127,7 +127,7 @@ def write_output(path: str | Path, data: bytes | str, *, mode: int = 0o666) -> P
         with contextlib.suppress(OSError):
             tmp.unlink()
         raise
-    _fsync_folder(target.parent)
+    fsync_folder(target.parent)
     return given
 
 
@@ -170,5 +170,5 @@ def write_new(path: str | Path, data: bytes | str, *, mode: int = 0o600) -> Path
     finally:
         with contextlib.suppress(OSError):
             tmp.unlink()
-    _fsync_folder(given.parent)
+    fsync_folder(given.parent)
     return given

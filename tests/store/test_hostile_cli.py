@@ -212,3 +212,18 @@ def test_io_failures_are_triage_errors_and_not_value_errors():
     for cls in (UserError, StoreError, FormError):
         assert issubclass(cls, TriageError), cls
     assert issubclass(SurveyError, ValueError)
+
+
+def test_backup_through_a_dangling_symlink_writes_its_target_and_refuses_a_device(tmp_path,
+                                                                                   cli):
+    db = str(tmp_path / "field.db")
+    assert cli("--db", db, "import", str(write_json(tmp_path / "s.json", sample_dict())))[0] == 0
+    link = tmp_path / "stick.db"
+    link.symlink_to(tmp_path / "real-backup.db")
+    code, out, err = cli("--db", db, "backup", "-o", str(link))
+    assert code == 0, err
+    assert link.is_symlink() and (tmp_path / "real-backup.db").stat().st_size > 0
+    before = os.stat("/dev/null")
+    code, _, err = cli("--db", db, "backup", "-o", "/dev/null")
+    assert code == 1 and "exists already" in err
+    assert stat.S_ISCHR(os.stat("/dev/null").st_mode) and os.stat("/dev/null").st_ino == before.st_ino

@@ -15,7 +15,18 @@ from .connect import StoreError, explain
 
 
 def backup_connection(src: sqlite3.Connection, src_path: Path, dest: Path) -> Path:
-    """Copy the database behind `src` to `dest` (refused if `dest` exists)."""
+    """Copy the database behind `src` to `dest` (refused if `dest` exists).
+
+    A symlink is followed (`triage.output.output_target`): a dangling one gets its target
+    written, the link stays. Nothing that exists is ever replaced, so neither is a device.
+    """
+    from triage.output import fsync_folder, output_target
+
+    given = dest
+    if dest.is_symlink() or dest.exists():
+        if dest.exists():
+            raise StoreError(f"{dest}: exists already; choose a new file name for the backup")
+        dest = output_target(dest)
     if dest.exists():
         raise StoreError(f"{dest}: exists already; choose a new file name for the backup")
     if dest.resolve() == src_path.resolve():
@@ -39,6 +50,7 @@ def backup_connection(src: sqlite3.Connection, src_path: Path, dest: Path) -> Pa
         with part.open("rb") as f:
             os.fsync(f.fileno())
         os.replace(part, dest)
+        fsync_folder(dest.parent)
     except sqlite3.Error as err:
         part.unlink(missing_ok=True)
         raise explain(err, dest) from None
@@ -48,4 +60,4 @@ def backup_connection(src: sqlite3.Connection, src_path: Path, dest: Path) -> Pa
     except StoreError:
         part.unlink(missing_ok=True)
         raise
-    return dest
+    return given

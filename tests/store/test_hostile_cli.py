@@ -220,10 +220,11 @@ def test_backup_through_a_dangling_symlink_writes_its_target_and_refuses_a_devic
     assert cli("--db", db, "import", str(write_json(tmp_path / "s.json", sample_dict())))[0] == 0
     link = tmp_path / "stick.db"
     link.symlink_to(tmp_path / "real-backup.db")
-    code, out, err = cli("--db", db, "backup", "-o", str(link))
+    code, _, err = cli("--db", db, "backup", "-o", str(link))
     assert code == 0, err
     assert link.is_symlink() and (tmp_path / "real-backup.db").stat().st_size > 0
     before = os.stat("/dev/null")
     code, _, err = cli("--db", db, "backup", "-o", "/dev/null")
     assert code == 1 and "exists already" in err
-    assert stat.S_ISCHR(os.stat("/dev/null").st_mode) and os.stat("/dev/null").st_ino == before.st_ino
+    after = os.stat("/dev/null")
+    assert stat.S_ISCHR(after.st_mode) and after.st_ino == before.st_ino

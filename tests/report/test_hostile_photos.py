@@ -139,7 +139,7 @@ def test_photo_paths_leaving_the_folder_are_refused_on_import_and_report(tmp_pat
         (field / "img" / "nice.png").symlink_to(secret)
     src = _survey(field, {"member": [path]})
     pdf = tmp_path / "r.pdf"
-    code, out, err = _run(capsys, "report", str(src), "-o", str(pdf))
+    code, _, err = _run(capsys, "report", str(src), "-o", str(pdf))
     assert code == 1 and err.count("\n") == 1 and not pdf.exists()
     assert "storeys[1].members[1].photos[0]" in err and "inside" in err
     db = tmp_path / "field.db"

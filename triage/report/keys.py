@@ -262,7 +262,11 @@ def new_key(name: str, ident: str, out: Path, passphrase: str | None,
         for done in written:
             done.unlink(missing_ok=True)
         raise IOFailure(f"{failure}; no key was made", errno_=err.errno) from None
-    except BaseException:   # an IOFailure of write_new, or anything: no half-made key
+    except IOFailure as err:   # write_new's: a full or read-only disk
+        for done in written:
+            done.unlink(missing_ok=True)
+        raise IOFailure(f"{err}; no key was made", errno_=err.errno) from None
+    except BaseException:   # anything else: no half-made key either
         for done in written:
             done.unlink(missing_ok=True)
         raise

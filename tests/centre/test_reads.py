@@ -109,7 +109,7 @@ def test_the_reader_is_a_survey_reader_and_read_only_even_for_the_owner(both, ce
         assert not hasattr(r, "record_report")
         assert r.location == f"postgresql://triage_admin@127.0.0.1:{centre.pg.port}/{centre.name}"
         assert r.match_ids(ids[1][:8]) == [ids[1]] and r.revision(ids[1]) == 2
-        assert r.photo_dir(ids[1]) is None
+        assert r.photo_dir(ids[1]) is None and r.photo_bytes("0" * 64) is None
         a = r.load_assessment(ids[1])
         assert a is not None and str(a.survey) == ids[1]
         with pytest.raises(psycopg.errors.ReadOnlySqlTransaction):

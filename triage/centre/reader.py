@@ -189,6 +189,17 @@ class CentreReader:
         """None: the centre keeps photos as blobs, not in a folder."""
         return None
 
+    def photo_bytes(self, sha256: str) -> bytes | None:
+        """The photo blob with this SHA-256, checked against it; None when not held."""
+        import hashlib
+
+        rows = self._query("SELECT data FROM triage.photos WHERE sha256 = %s LIMIT 1",
+                           (sha256,))
+        if not rows:
+            return None
+        data = bytes(rows[0][0])
+        return data if hashlib.sha256(data).hexdigest() == sha256 else None
+
     def building_rows(self) -> list[BuildingRow]:
         """One row per building: its latest visible survey; ordered as the local summary."""
         out = [BuildingRow(

@@ -67,8 +67,8 @@ def _long_texts() -> dict[str, Any]:
         s["notes"] = (words * (NOTES // len(words) + 1))[:NOTES]
         for r in s["readings"]:
             r["where"] = long
-        for m in s["members"]:
-            m["ref"] = long[:TEXT - 5] + s["label"] + str(len(str(m)))[-3:]
+        for k, m in enumerate(s["members"]):
+            m["ref"] = f"{k:04d} " + long[:TEXT - 5]   # unique in the storey
     for h in d["hazards"]:
         h["where"] = h["note"] = long
     return d

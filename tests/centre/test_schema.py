@@ -170,3 +170,27 @@ def test_an_older_schema_is_upgraded_in_place_keeping_every_row(pg, tmp_path, cl
     code, out, err = cli("--db", str(tmp_path / "lap.db"), "sync", "--to",
                          pg.url("older", "field3", password("field3")))
     assert code == 0 and "nothing to send" in out, err
+
+
+def test_a_version_2_centre_gets_the_summary_snapshot_filled_and_current(pg, tmp_path, cli,
+                                                                          monkeypatch):
+    from triage.centre import reader, schema
+
+    pg.createdb("second")
+    url = pg.url("second")
+    with monkeypatch.context() as m:
+        m.setattr(schema, "MIGRATIONS", schema.MIGRATIONS[:2])
+        schema.init(url)
+        laptop(tmp_path / "lap.db", 8)
+        with Store.open(tmp_path / "lap.db") as st:
+            assert sync(st, pg.url("second", "field4", password("field4"))).versions == 8
+        assert pg.sql("SELECT to_regclass('triage.building_summary')", "second") == ""
+        assert pg.sql("SELECT count(*) FROM triage.building_map", "second") == "7"
+    code, out, err = cli("centre", "init", url)
+    assert code == 0 and "schema upgraded to version 3" in out, err
+    assert pg.sql("SELECT count(*) FROM triage.building_summary", "second") == "7"
+    with psycopg.connect(pg.url("second", "reader", password("reader"))) as c:
+        fresh = c.execute(reader._SNAPSHOT).fetchall()
+        live = c.execute(reader._BUILDINGS).fetchall()
+    assert len(fresh) == 7 and sorted(fresh) == sorted(live)
+    assert pg.sql("SELECT count(*) FROM triage.building_map", "second") == "7"

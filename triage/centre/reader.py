@@ -38,10 +38,17 @@ SELECT id, building_id, building, address, lat, lon, inspector, at, tier, level,
 FROM triage.survey_list
 """
 
-_BUILDINGS = """
+_COLUMNS = """
 SELECT building_id, building, address, lat, lon, inspected_at, inspector, tier, level,
        gov_storey, provisional, conflict, survey_id, surveys
-FROM triage.buildings
+"""
+_BUILDINGS = _COLUMNS + "FROM triage.buildings"
+# The snapshot, only when its marker equals the live tables' (one statement: one view of
+# both); no rows when stale (or when the area is empty): then the live view.
+_SNAPSHOT = _COLUMNS + """FROM triage.building_summary
+WHERE EXISTS (SELECT 1 FROM triage.summary_state s, triage.summary_mark m
+              WHERE (s.versions_seq, s.versions_n, s.assessments_seq, s.assessments_n)
+                  = (m.versions_seq, m.versions_n, m.assessments_seq, m.assessments_n))
 """
 
 _FOLD = str.maketrans("ABCDEFGHIJKLMNOPQRSTUVWXYZ", "abcdefghijklmnopqrstuvwxyz")
@@ -201,14 +208,14 @@ class CentreReader:
         return data if hashlib.sha256(data).hexdigest() == sha256 else None
 
     def building_rows(self) -> list[BuildingRow]:
-        """One row per building: its latest visible survey; ordered as the local summary."""
-        out = [BuildingRow(
-            building_id=r[0], building=r[1], address=r[2], lat=r[3], lon=r[4], at=r[5],
-            inspector=r[6], tier=r[7], level=r[8], governing_storey=r[9],
-            provisional=r[10], conflict=bool(r[11]), survey_id=r[12], surveys=int(r[13]))
-            for r in self._query(_BUILDINGS)]
-        out.sort(key=lambda b: (b.building.translate(_FOLD), b.address, b.building_id))
-        return out
+        """One row per building: its latest visible survey; ordered as the local summary.
+
+        From the snapshot `building_summary` when it is up to date, else the live view.
+        """
+        rows = self._query(_SNAPSHOT) or self._query(_BUILDINGS)
+        rows.sort(key=lambda r: (r[1].translate(_FOLD), r[2], r[0]))
+        return [BuildingRow(r[0], r[1], r[2], r[3], r[4], r[5], r[6], r[7], r[8], r[9], r[10],
+                            bool(r[11]), r[12], int(r[13])) for r in rows]
 
     def close(self) -> None:
         """Close the connection."""

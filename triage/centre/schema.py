@@ -292,6 +292,27 @@ ORDER BY building_id, at_utc COLLATE "C" DESC, (conflict_of IS NULL) DESC, id CO
 """
 
 
+# Version 3: a snapshot of `buildings` for `summary` of a large area. The view computes every
+# survey's conflicts and current version, seconds for 100,000 buildings; the snapshot is
+# refreshed with the map layer (every sync and reassess that changes something) and read only
+# while `summary_state` (its marker, computed before the refresh in the same transaction)
+# equals `summary_mark` (the live tables' counts and last sequence numbers). The data tables
+# are append-only, so an equal marker means the snapshot holds every row the view would read;
+# otherwise the reader falls back to the live view.
+SUMMARY_V3 = """
+CREATE INDEX versions_seq ON triage.versions (seq);
+CREATE INDEX assessments_seq ON triage.assessments (seq);
+CREATE VIEW triage.summary_mark AS
+SELECT (SELECT coalesce(max(seq), 0) FROM triage.versions) AS versions_seq,
+       (SELECT count(*) FROM triage.versions) AS versions_n,
+       (SELECT coalesce(max(seq), 0) FROM triage.assessments) AS assessments_seq,
+       (SELECT count(*) FROM triage.assessments) AS assessments_n;
+CREATE TABLE triage.summary_state AS SELECT * FROM triage.summary_mark;
+CREATE MATERIALIZED VIEW triage.building_summary AS SELECT * FROM triage.buildings;
+CREATE UNIQUE INDEX building_summary_id ON triage.building_summary (building_id);
+"""
+
+
 @dataclass(frozen=True)
 class Migration:
     """One step of the schema: SQL run in one transaction with its version row."""
@@ -309,9 +330,14 @@ def _v2(conn: psycopg.Connection) -> None:
     conn.execute(VIEWS_V2)
 
 
+def _v3(conn: psycopg.Connection) -> None:
+    conn.execute(SUMMARY_V3)
+
+
 MIGRATIONS: list[Migration] = [
     Migration(1, "tables, current versions, conflicts, buildings", _v1),
     Migration(2, "views: byte order of text, hidden flag of the same text sent last", _v2),
+    Migration(3, "building_summary: a snapshot of buildings, refreshed with the map", _v3),
 ]
 
 
@@ -381,8 +407,12 @@ def _postgis(conn: psycopg.Connection) -> tuple[str | None, str | None]:
     return (str(row[0]) if row else None), None
 
 
-def _map_sql(gis: str | None) -> str:
-    """The materialised map layer: one row per building, its latest survey, a point."""
+def _map_sql(gis: str | None, summary: bool = True) -> str:
+    """The materialised map layer: one row per building, its latest survey, a point.
+
+    With the snapshot (`summary`, version 3 on), `refresh_map` refreshes it first and the map
+    is read from it, so a sync runs the buildings view once.
+    """
     geom = (f", {gis}.ST_SetSRID({gis}.ST_MakePoint(lon, lat), 4326)"
             f"::{gis}.geometry(Point, 4326) AS geom" if gis else "")
     index = ("CREATE INDEX building_map_geom ON triage.building_map USING gist (geom);"
@@ -392,17 +422,26 @@ DROP MATERIALIZED VIEW IF EXISTS triage.building_map;
 CREATE MATERIALIZED VIEW triage.building_map AS
 SELECT building_id, survey_id, building, address, tier, level AS performance_level,
        provisional, conflict, inspected_at, inspector, lat, lon{geom}
-FROM triage.buildings WHERE lat IS NOT NULL AND lon IS NOT NULL;
+FROM triage.{"building_summary" if summary else "buildings"}
+WHERE lat IS NOT NULL AND lon IS NOT NULL;
 CREATE UNIQUE INDEX building_map_id ON triage.building_map (building_id);
 {index}
 CREATE OR REPLACE FUNCTION triage.refresh_map() RETURNS void
 LANGUAGE plpgsql SECURITY DEFINER SET search_path = pg_catalog, triage SET jit = off
 SET work_mem = '64MB' AS $f$
 BEGIN
-  PERFORM pg_advisory_xact_lock({LOCK_KEY + 1});
+  PERFORM pg_advisory_xact_lock({LOCK_KEY + 1});{_REFRESH_SUMMARY if summary else ""}
   REFRESH MATERIALIZED VIEW CONCURRENTLY triage.building_map;
 END $f$;
 """
+
+
+# The marker first: rows committed between it and the refresh make the snapshot look stale
+# (read live), never fresh while missing rows.
+_REFRESH_SUMMARY = """
+  DELETE FROM triage.summary_state;
+  INSERT INTO triage.summary_state SELECT * FROM triage.summary_mark;
+  REFRESH MATERIALIZED VIEW CONCURRENTLY triage.building_summary;"""
 
 
 def init(url: str) -> InitResult:
@@ -440,7 +479,8 @@ def init(url: str) -> InitResult:
                     created.append(role)
             conn.execute(_ROLES)
             gis, note = _postgis(conn)
-            conn.execute(_map_sql(gis))
+            summary = conn.execute("SELECT to_regclass('triage.building_summary')").fetchone()
+            conn.execute(_map_sql(gis, bool(summary and summary[0])))
             for g in _grants():
                 conn.execute(g)
         return InitResult(applied, created, gis is not None, note)

@@ -7,7 +7,6 @@ import copy
 
 import pytest
 from hypothesis import given
-from hypothesis import strategies as st
 
 from tests.unit.strategies import surveys
 from triage.assess import assess
@@ -61,3 +60,50 @@ def test_member_level_at_the_point_classes_agrees_with_the_model(d):
         sm = engine.member_stage(ctx, si)
         if sm.level is not None:
             assert int(sm.model.level(sm.classes.point[None, :])[0]) == int(sm.level)
+
+
+def _counted(counts):
+    # One rc_frame storey: ten column groups whose cracks sit near the JBDPA class bounds
+    # (0.2, 1, 2 mm) with sd 0.1 mm, so every group's class is in doubt and R's grade with it.
+    cracks = [0.18, 0.95, 1.05, 1.9, 2.1, 0.22, 0.98, 1.95, 0.3, 1.0]
+    return {
+        "format": "triage-survey/2",
+        "building": {"name": "Counting House", "address": "1 Tally Lane, Kōwhai Bay",
+                     "system": {"x": "rc_frame", "y": "rc_frame"}},
+        "inspection": {"inspector": {"name": "T. Counter"}, "at": "2026-11-29T10:00:00+13:00"},
+        "storeys": [{"label": "1", "height_m": 3.5,
+                     "readings": [{"dir": "x", "offset_mm": 1.0, "gauge_mm": 2000},
+                                  {"dir": "y", "offset_mm": 1.0, "gauge_mm": 2000}],
+                     "members": [{"kind": "column", "count": n, "crack_mm": c,
+                                  "crack_sd_mm": 0.1, "ref": f"C{k}"}
+                                 for k, (n, c) in enumerate(zip(counts, cracks, strict=True))]}],
+    }
+
+
+def test_large_equal_counts_give_the_probabilities_of_single_members():
+    # R = sum(eta * w) / sum(w) depends on the weights only through their ratios, so ten groups
+    # of 10,000 columns each are ten groups of one column as far as any probability goes. The
+    # exact sums divide the losses by their common divisor (10,000 here); without that, the
+    # total loss reaches 20 * 100,000 grid units and the sums took over a minute.
+    one = assess(parse_survey(_counted([1] * 10))).tier_probability
+    many = assess(parse_survey(_counted([10_000] * 10))).tier_probability
+    assert 0.01 < one["occupy"] < 0.99 or 0.01 < one["hold"] < 0.99   # in real doubt
+    for t in one:
+        assert many[t] == pytest.approx(one[t], rel=1e-9, abs=1e-12)
+    # Counts in the ratio 2 : 1 are the same as 10,000 : 5,000.
+    small = assess(parse_survey(_counted([2, 1] * 5))).tier_probability
+    large = assess(parse_survey(_counted([10_000, 5_000] * 5))).tier_probability
+    for t in small:
+        assert large[t] == pytest.approx(small[t], rel=1e-9, abs=1e-12)
+
+
+def test_a_storey_too_wide_to_sum_exactly_is_still_assessed():
+    # Counts 10,000, 9,999, ... share no divisor: the widest total loss (about 2 million grid
+    # units) is over EXACT_SUM_LIMIT, so the exact sums give way to enumeration or sampling.
+    d = _counted([10_000 - k for k in range(10)])
+    s = parse_survey(d)
+    a = assess(s)
+    assert abs(sum(a.tier_probability.values()) - 1.0) < 1e-6
+    ref = assess(parse_survey(_counted([1] * 10))).tier_probability
+    for t in ref:   # nearly equal counts: nearly the same answer as equal ones
+        assert a.tier_probability[t] == pytest.approx(ref[t], abs=0.02)

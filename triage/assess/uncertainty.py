@@ -100,6 +100,9 @@ def _grid_scale(values: np.ndarray) -> int | None:
 
 
 FFT_LIMIT = 1 << 16
+# The widest total loss (in grid units) summed exactly; wider storeys are sampled. Plain
+# convolution beyond FFT_LIMIT costs about width * groups, so this bounds the exact path's time.
+EXACT_SUM_LIMIT = 1 << 20
 # A class this unlikely is left out of the exact sums (its mass is far below the 0.01 asked).
 TINY = 1e-12
 
@@ -206,6 +209,7 @@ class _LossSums:
     loss: dict[str, np.ndarray]
     rows: dict[str, dict[int, int]]
     scale: int
+    unit: int  # the common divisor the losses were divided by (sums stay exact: see `of`)
 
     @classmethod
     def of(cls, model: MemberModel) -> _LossSums | None:
@@ -220,8 +224,17 @@ class _LossSums:
             scale = found
         loss = {d: np.round((20 - 20 * t.etas) * t.weights[:, None] * scale).astype(np.int64)
                 for d, t in terms.items()}
+        # Losses that share a divisor g are summed in units of g: a sum of multiples of g is
+        # at most a cap exactly when it is at most g * floor(cap / g). Groups of equal large
+        # counts (ten thousand columns alike) then cost what groups of one cost.
+        flat = [v.ravel() for v in loss.values()]
+        unit = max(int(np.gcd.reduce(np.concatenate(flat))), 1) if flat else 1
+        loss = {d: v // unit for d, v in loss.items()}
+        widest = max((int(v.max(axis=1).sum()) for v in loss.values() if v.size), default=0)
+        if widest > EXACT_SUM_LIMIT:
+            return None  # too wide to sum exactly within the time budget: sampled instead
         rows = {d: {g: j for j, g in enumerate(t.groups)} for d, t in terms.items()}
-        return cls(loss, rows, scale)
+        return cls(loss, rows, scale, unit)
 
     def at_most(self, model: MemberModel, probs: np.ndarray, lv: int) -> float:
         """P(floors and R keep the component at level `lv` or better) under class `probs`."""
@@ -240,7 +253,8 @@ class _LossSums:
         if not ok.any():
             return 0.0
         b = model.grade_bounds[int(np.flatnonzero(ok).max())]
-        caps = {d: int(np.floor((1.0 - b) * 20 * scale * terms[d].total + 1e-6)) for d in dirs}
+        caps = {d: int(np.floor((1.0 - b) * 20 * scale * terms[d].total + 1e-6)) // self.unit
+                for d in dirs}
         # Hoeffding's inequality settles most directions without the sums: a total loss whose
         # mean lies far from the cap, against the spread its groups allow, meets (or misses)
         # it with certainty to within HOEFFDING.

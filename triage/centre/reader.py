@@ -42,16 +42,21 @@ _COLUMNS = """
 SELECT building_id, building, address, lat, lon, inspected_at, inspector, tier, level,
        gov_storey, provisional, conflict, survey_id, surveys
 """
-_BUILDINGS = _COLUMNS + "FROM triage.buildings"
+# The local summary's order, by the server: ASCII letters folded in the name, then byte order
+# (COLLATE "C": code point order, as Python compares str) of name, address and id.
+_ORDER = """
+ORDER BY translate(building, 'ABCDEFGHIJKLMNOPQRSTUVWXYZ', 'abcdefghijklmnopqrstuvwxyz')
+         COLLATE "C", address COLLATE "C", building_id COLLATE "C"
+"""
+_BUILDINGS = _COLUMNS + "FROM triage.buildings" + _ORDER
 # The snapshot, only when its marker equals the live tables' (one statement: one view of
 # both); no rows when stale (or when the area is empty): then the live view.
 _SNAPSHOT = _COLUMNS + """FROM triage.building_summary
 WHERE EXISTS (SELECT 1 FROM triage.summary_state s, triage.summary_mark m
               WHERE (s.versions_seq, s.versions_n, s.assessments_seq, s.assessments_n)
                   = (m.versions_seq, m.versions_n, m.assessments_seq, m.assessments_n))
-"""
+""" + _ORDER
 
-_FOLD = str.maketrans("ABCDEFGHIJKLMNOPQRSTUVWXYZ", "abcdefghijklmnopqrstuvwxyz")
 
 
 class CentreReader:
@@ -93,7 +98,7 @@ class CentreReader:
         import psycopg
 
         try:
-            return [tuple(r) for r in self.conn.execute(sql, params)]
+            return self.conn.execute(sql, params).fetchall()   # tuples, in one call
         except psycopg.errors.InsufficientPrivilege:
             raise CentreError(f"{self.location}: this login may not read the surveys; grant it "
                               "the role triage_read") from None
@@ -212,8 +217,7 @@ class CentreReader:
 
         From the snapshot `building_summary` when it is up to date, else the live view.
         """
-        rows = self._query(_SNAPSHOT) or self._query(_BUILDINGS)
-        rows.sort(key=lambda r: (r[1].translate(_FOLD), r[2], r[0]))
+        rows = self._query(_SNAPSHOT) or self._query(_BUILDINGS)   # ordered by the server
         return [BuildingRow(r[0], r[1], r[2], r[3], r[4], r[5], r[6], r[7], r[8], r[9], r[10],
                             bool(r[11]), r[12], int(r[13])) for r in rows]
 

@@ -12,6 +12,7 @@ from triage.assess import CAUTION, PROBABILITY_LABEL, assess
 from triage.model import parse_survey
 from triage.report.model import Signer, build_report_model, pct, survey_digest
 from triage.standards import load
+from triage.standards.vocabulary import words
 
 
 def test_page_one_fields(clinic_pair):
@@ -21,17 +22,18 @@ def test_page_one_fields(clinic_pair):
     assert dict(m.building)["building"] == "Ngāti Whare Clinic, Øster wing ≤ ± θ"
     assert dict(m.building)["address"] == "1 Test Lane, Kōwhai Bay"
     assert "Tess Tester (id T-1)" in dict(m.building)["inspector"]
-    assert dict(m.building)["inspected"] == "2026-11-29T09:00:00+13:00"
-    assert "concrete walls (rc_wall)" in dict(m.building)["systems"]
+    assert dict(m.building)["inspected"] == "29 November 2026, 09:00 UTC+13:00"
+    assert "concrete walls" in dict(m.building)["systems"]
+    assert "rc_wall" not in dict(m.building)["systems"]  # words, never the key
     assert m.tier == a.tier == "hold"
     assert m.tier_words == "◐ hold"
     assert m.level == a.performance_level
     assert m.governing == "residual drift, storey 1, direction y"
-    assert m.reasons == list(a.reasons)
+    assert m.reasons == [r.replace("falling_hazard", "falling hazard") for r in a.reasons]
     assert m.probability_label == PROBABILITY_LABEL
     assert [t for t, _ in m.probabilities] == ["○ occupy", "◐ hold", "● evacuate"]
     assert dict(m.probabilities)["◐ hold"] == f"{a.tier_probability['hold']:.2f}"
-    assert m.keep_out == ["falling_hazard at north parapet: keep 7.5 m clear around it"]
+    assert m.keep_out == ["falling hazard at north parapet: keep 7.5 m clear around it"]
     assert m.signer is None and m.signer_text.startswith("UNSIGNED")
 
 
@@ -86,7 +88,7 @@ def test_members_hazards_repairability(clinic_pair):
     assert wall.damage_class == "III"
     assert wall.class_from == "set by the inspector: diagonal cracking <b>over 1 mm</b> & wide"
     c3 = next(r for r in m.members if r.group == "2 C3")
-    assert c3.seen == "crack 1.4 mm; signs: cover spalling"
+    assert c3.seen == "crack 1.4 mm; signs: cover spalled"
     assert c3.class_from in ("by crack width", "by signs")
     sound = m.members[0]
     assert (sound.class_from, sound.damage_class, sound.seen) == ("undamaged", "—",
@@ -112,8 +114,9 @@ def test_method_lists_every_table_and_assumption(clinic_pair):
     text = " ".join(m.method_text)
     assert "illustrating the damage, not limits" in text
     assert "from memory" in text
-    assert {r.key for r in m.assumptions} == set(a.engine.assumptions)
-    neg = next(r for r in m.assumptions if r.key == "negligible_permanent_drift")
+    assert {r.key for r in m.assumptions} == {words("assumptions", k) for k in a.engine.assumptions}
+    neg = next(r for r in m.assumptions if r.key == words("assumptions",
+                                                           "negligible_permanent_drift"))
     assert neg.value == str(a.engine.assumptions["negligible_permanent_drift"])
 
 
@@ -136,7 +139,7 @@ def test_photos_found_and_missing(tmp_path: Path):
     m = build_report_model(s, assess(s), photo_dir=tmp_path)
     assert [(p.belongs_to, p.data) for p in m.photos] == [
         ("storey 1, column group 2 C3", buf.getvalue()),
-        ("hazard 1, falling_hazard at north parapet", None)]
+        ("hazard 1, falling hazard at north parapet", None)]
     # without the survey file's folder, relative paths cannot be found
     assert all(p.data is None for p in build_report_model(s, assess(s)).photos)
     # a file that is not a JPEG or PNG by content refuses the report, naming the photo
@@ -178,4 +181,4 @@ def test_long_text_clipped_in_tables_kept_in_full():
     assert len(m.hazards[0].where) <= CLIP
     assert m.hazards[0].where.endswith(CLIPPED)
     assert m.hazards[0].note == "short"
-    assert m.long_texts == [("hazard 1 (falling_hazard), where", long)]
+    assert m.long_texts == [("hazard 1 (falling hazard), where", long)]

@@ -168,6 +168,7 @@ def _page_one(m: ReportModel, body_height: float) -> tuple[list[Any], list[Any]]
          _p("governed by", "label")],
         [_p(m.tier_words, "tier"), _p(m.level, "level"), _p(m.governing, "strong")],
         [_p(m.tier_line, "small"), "", ""],
+        [_p("Caution: " + m.caution, "caution"), "", ""],
     ], colWidths=[66 * mm, 46 * mm, CONTENT_W - 112 * mm])
     result.setStyle(TableStyle([
         ("LINEABOVE", (0, 0), (-1, 0), 1.6, ACCENT),
@@ -175,6 +176,9 @@ def _page_one(m: ReportModel, body_height: float) -> tuple[list[Any], list[Any]]
         ("LEFTPADDING", (0, 0), (-1, -1), 0),
         ("TOPPADDING", (0, 0), (-1, 0), 5),
         ("SPAN", (0, 2), (-1, 2)),
+        ("SPAN", (0, 3), (-1, 3)),
+        ("TOPPADDING", (0, 3), (-1, 3), 4),
+        ("LINEBELOW", (0, 3), (-1, 3), 1.6, ACCENT),
     ]))
     head += [result, Spacer(1, 3), _p(m.provisional_text, "strong" if m.provisional else "body")]
 
@@ -248,6 +252,46 @@ def _thumb(data: bytes) -> Image | None:
     return Image(io.BytesIO(jpeg), width=w * scale, height=h * scale)
 
 
+READING_HEAD = ["storey", "dir", "where", "readings as taken", "baseline",
+                "drift ratio ± u", "repeats"]
+
+
+def _readings(m: ReportModel) -> list[Any]:
+    """Every spot's readings, one block of rows per storey and direction, top storey first."""
+    out: list[Any] = [_h2("Readings (every spot, to recheck by hand)")]
+    if not m.spot_tables:
+        return [*out, _p("no reading was logged")]
+    widths = [12 * mm, 8 * mm, 24 * mm, 60 * mm, 20 * mm, 28 * mm, CONTENT_W - 152 * mm]
+    rows: list[list[Any]] = [READING_HEAD]
+    starts: list[int] = []
+    order = sorted(range(len(m.spot_tables)), key=lambda i: -i)
+    # top storey first, as the storey table; x before y within a storey
+    groups: list[Any] = []
+    for i in order:
+        t = m.spot_tables[i]
+        if groups and groups[-1][0].storey == t.storey:
+            groups[-1].insert(0, t)
+        else:
+            groups.append([t])
+    for g in groups:
+        for t in g:
+            starts.append(len(rows))
+            for k, r in enumerate(t.rows):
+                rows.append([_cell(t.storey, widths[0]) if k == 0 else "",
+                             t.dir if k == 0 else "", _cell(r.where, widths[2]),
+                             _cell(r.readings, widths[3]), _cell(r.baseline, widths[4]),
+                             r.value, _cell(r.repeats, widths[6])])
+    t = _grid(rows, widths, zebra=False)
+    t.setStyle(TableStyle([("LINEABOVE", (0, k), (-1, k), 0.4, ACCENT_WEAK)
+                           for k in starts[1:]]))
+    out.append(t)
+    out.append(_p("drift ratio: the offset less its baseline over the gauge, or the tangent of "
+                  "the tilt less its baseline, signed toward +x or +y; u: its standard "
+                  "uncertainty, the baseline's included; repeats at one spot are averaged by "
+                  "inverse variance (docs/method.md).", "small"))
+    return out
+
+
 def _rest(m: ReportModel, reasons_left: list[Any]) -> list[Any]:
     """Every page after the first: what page one could not hold, then the detail."""
     out: list[Any] = [PageBreak()]
@@ -262,6 +306,8 @@ def _rest(m: ReportModel, reasons_left: list[Any]) -> list[Any]:
     out.append(_p("drift: the largest absolute residual drift ratio read in the storey; level "
                   "by drift (FEMA 356 figures); R: residual seismic capacity ratio where a "
                   "published method covers the system; grade from R.", "small"))
+
+    out += _readings(m)
 
     n = len(m.chart)
     chart_h = min(200 * mm, max(80 * mm, 34.0 * mm + n * 4.2 * mm))
@@ -283,11 +329,14 @@ def _rest(m: ReportModel, reasons_left: list[Any]) -> list[Any]:
 
     out.append(_h2("Hazards"))
     if m.hazards:
-        rows = [["kind", "where", "storey", "effect", "keep out", "note"]]
+        rows = [["kind", "where", "storey", "effect", "height", "factor", "keep out", "note"]]
         rows += [[_p(h.kind, "cell"), _p(h.where, "cell"), _p(h.storey, "cell"),
-                  _p(h.effect, "cell"), h.keep_out, _p(h.note, "cell")] for h in m.hazards]
-        out.append(_grid(rows, [28 * mm, 34 * mm, 14 * mm, 26 * mm, 16 * mm,
-                                CONTENT_W - 118 * mm]))
+                  _p(h.effect, "cell"), h.height, h.factor, h.keep_out, _p(h.note, "cell")]
+                 for h in m.hazards]
+        out.append(_grid(rows, [26 * mm, 30 * mm, 13 * mm, 24 * mm, 13 * mm, 11 * mm, 14 * mm,
+                                CONTENT_W - 131 * mm]))
+        out.append(_p("height: above ground; keep out = factor × height, the width kept clear "
+                      "around the hazard.", "small"))
     else:
         out.append(_p("no hazard was logged"))
 
@@ -382,28 +431,31 @@ def _canvas_class(m: ReportModel, files: list[tuple[str, bytes, str]], signed: b
             self.setLineWidth(2)
             self.line(MARGIN, top - BAND_H, MARGIN, top)
             self.setFillColor(ACCENT)
-            self.setFont(bold, 7.5)
+            self.setFont(bold, 8.5)
             self.drawString(MARGIN + 7, top - 11, "Caution")
-            self.setFont(regular, 7.5)
+            self.setFont(bold, 8.5)
             self.setFillColor(INK)
             words = m.caution.split()
             line, lines = "", []
             for wd in words:
                 trial = (line + " " + wd).strip()
-                if self.stringWidth(trial, regular, 7.5) > CONTENT_W - 60:
+                if self.stringWidth(trial, bold, 8.5) > CONTENT_W - 60:
                     lines.append(line)
                     line = wd
                 else:
                     line = trial
             lines.append(line)
             for k, text in enumerate(lines[:2]):
-                self.drawString(MARGIN + 46, top - 11 - 9 * k, text)
+                self.drawString(MARGIN + 50, top - 11 - 10 * k, text)
             self.setFont(regular, 6.5)
             self.setFillColor(MUTED)
             self.setStrokeColor(ACCENT_WEAK)
             self.setLineWidth(0.4)
             self.line(MARGIN, MARGIN + 10, PAGE_W - MARGIN, MARGIN + 10)
             self.drawString(MARGIN, MARGIN + 2, m.footer)
+            self.setFont(bold, 8)
+            self.setFillColor(INK)
+            self.drawString(MARGIN, MARGIN + 13, m.state)
             self.setFont(bold, 7)
             self.setFillColor(INK)
             self.drawRightString(PAGE_W - MARGIN, MARGIN + 2, f"page {page} of {total}")

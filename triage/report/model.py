@@ -9,14 +9,18 @@ typed: the drawer escapes them for reportlab's markup, never this module.
 from __future__ import annotations
 
 import hashlib
+import re
 from dataclasses import dataclass, field
+from functools import cache
 from pathlib import Path
 from typing import Any, Protocol
 
 from triage.assess import CAUTION, PROBABILITY_LABEL, TIERS, Assessment, tier_words
+from triage.assess.spots import Spot, spots_of_survey
 from triage.model import Survey
 from triage.photos import PhotoLoader, folder_loader
-from triage.standards import Standards, load
+from triage.standards import Assumptions, Standards, load
+from triage.standards.vocabulary import message_words, vocabulary, words
 
 DASH = "—"
 CLIP = 300  # longest text put in a table cell; longer ones are printed in full under Notes
@@ -56,6 +60,26 @@ class StoreyRow:
     r: str
     grade: str
     access: str
+
+
+@dataclass(frozen=True)
+class SpotRow:
+    """One spot of a storey and direction: every reading taken there, so it can be rechecked."""
+
+    where: str
+    readings: str  # each reading as taken: "3 mm over 2000 mm (sd 1 mm)" or "tilt 0.12° (sd …)"
+    baseline: str
+    value: str  # signed drift ratio ± standard uncertainty, in percent
+    repeats: str  # "n repeats averaged", "1 reading", or the largest of disagreeing repeats
+
+
+@dataclass(frozen=True)
+class SpotTable:
+    """The spots of one storey in one direction."""
+
+    storey: str
+    dir: str
+    rows: list[SpotRow]
 
 
 @dataclass(frozen=True)
@@ -101,7 +125,8 @@ class HazardRow:
     effect: str
     keep_out: str
     note: str
-
+    height: str = DASH  # height above ground, m
+    factor: str = DASH  # keep-out width per metre of height
 
 @dataclass(frozen=True)
 class PhotoItem:
@@ -181,6 +206,9 @@ class ReportModel:
     long_texts: list[tuple[str, str]] = field(default_factory=list)
     comparison: list[str] | None = None
     extra: dict[str, Any] = field(default_factory=dict)
+    spot_tables: list[SpotTable] = field(default_factory=list)
+    state: str = "UNSIGNED"  # the signed state printed on every page
+
 
     @property
     def footer(self) -> str:
@@ -231,11 +259,106 @@ def _governing(a: Assessment) -> str:
 
 def _systems_text(survey: Survey, std: Standards) -> str:
     sx, sy = survey.building.system.x, survey.building.system.y
-    nx = std.drift.systems[sx].name if sx in std.drift.systems else sx
-    ny = std.drift.systems[sy].name if sy in std.drift.systems else sy
+    nx, ny = words("systems", sx), words("systems", sy)
     if sx == sy:
-        return f"x and y: {nx} ({sx})"
-    return f"x: {nx} ({sx}); y: {ny} ({sy})"
+        return f"x and y: {nx}"
+    return f"x: {nx}; y: {ny}"
+
+
+@cache
+def _key_pattern() -> tuple[re.Pattern[str], dict[str, str]]:
+    table = {k: e.words for sec, entries in vocabulary().items() if not sec.startswith("fields")
+             for k, e in entries.items() if "_" in k}
+    keys = sorted(table, key=len, reverse=True)
+    return re.compile(r"(?<![\w/.])(" + "|".join(map(re.escape, keys)) + r")(?!\w|\.toml)"), table
+
+
+def in_words(text: str, survey: Survey | None = None) -> str:
+    """A line of the engine in the shared vocabulary's words: no internal key is left in it."""
+    text = message_words(text, survey)
+    pattern, table = _key_pattern()
+    return pattern.sub(lambda m: table[m.group(1)], text)
+
+
+def when_text(at: Any) -> str:
+    """A time as people read it, with its zone: '1 December 2026, 14:05 UTC+13:00'."""
+    off = at.utcoffset()
+    zone = ""
+    if off is not None:
+        mins = int(off.total_seconds() // 60)
+        sign = "+" if mins >= 0 else "-"
+        zone = "UTC" if mins == 0 else f"UTC{sign}{abs(mins) // 60:02d}:{abs(mins) % 60:02d}"
+    return f"{at.day} {at:%B %Y, %H:%M} {zone}".strip()
+
+
+def _num(v: float) -> str:
+    return f"{v:g}"
+
+
+def _ratio_pm(value: float, u: float) -> str:
+    """A signed drift ratio and its standard uncertainty, in percent."""
+    return f"{value * 100:+.3f}% ± {u * 100:.3f}%"
+
+
+def _spot_row(survey: Survey, sp: Spot, a: Assumptions) -> SpotRow:
+    st = survey.storeys[sp.storey]
+    texts = []
+    for i in sp.readings:
+        r = st.readings[i]
+        if r.tilt_deg is not None:
+            sd = f"{r.sd_deg:g}°" if r.sd_deg is not None else f"{a.sd_tilt_deg:g}° (default)"
+            texts.append(f"reading {i + 1}: tilt {r.tilt_deg:g}°, sd {sd}")
+        else:
+            sd = f"{r.sd_mm:g} mm" if r.sd_mm is not None else f"{a.sd_offset_mm:g} mm (default)"
+            texts.append(f"reading {i + 1}: {_num(r.offset_mm or 0.0)} mm over "
+                         f"{_num(r.gauge_mm or 0.0)} mm, sd {sd}")
+    first = st.readings[sp.readings[0]]
+    if sp.baseline is None:
+        base = "none"
+    elif sp.method == "tilt":
+        bsd = first.baseline_sd_deg
+        base = f"{sp.baseline:g}° (sd {bsd if bsd is not None else a.sd_tilt_deg:g}°)"
+    else:
+        bsd = first.baseline_sd_mm
+        base = f"{sp.baseline:g} mm (sd {bsd if bsd is not None else a.sd_offset_mm:g} mm)"
+    n = len(sp.readings)
+    if n == 1:
+        rep = "1 reading"
+    elif sp.disagree:
+        rep = f"{n} readings disagree: the largest taken"
+    else:
+        rep = f"{n} repeats averaged"
+    return SpotRow(where=sp.where or "not given", readings="\n".join(texts), baseline=base,
+                   value=_ratio_pm(sp.value, sp.u), repeats=rep)
+
+
+def spot_tables(survey: Survey, a: Assumptions) -> list[SpotTable]:
+    """Every spot of the survey, one table per storey and direction (survey order)."""
+    tables: list[SpotTable] = []
+    for sp in spots_of_survey(survey, a).spots:
+        if not tables or tables[-1].storey != sp.storey_label or tables[-1].dir != sp.dir:
+            tables.append(SpotTable(sp.storey_label, sp.dir, []))
+        tables[-1].rows.append(_spot_row(survey, sp, a))
+    return tables
+
+
+def provisional_storeys(survey: Survey) -> list[str]:
+    """Which storeys leave the survey provisional, and why (the engine's rule, in words)."""
+    out = []
+    for st in survey.storeys:
+        why = []
+        if st.access != "full":
+            why.append(f"access {words('access', st.access)}")
+        elif not st.below_grade:
+            dirs = {r.dir for r in st.readings}
+            missing = [d for d in ("x", "y") if d not in dirs]
+            if missing:
+                why.append("no reading in " + " or ".join(missing))
+            if not st.members:
+                why.append("no member group")
+        if why:
+            out.append(f"storey {st.label} ({', '.join(why)})")
+    return out
 
 
 def _photos(survey: Survey, load: PhotoLoader | None) -> list[PhotoItem]:
@@ -255,7 +378,7 @@ def _photos(survey: Survey, load: PhotoLoader | None) -> list[PhotoItem]:
                 f"storeys[{si}].members[{i}]", m.photos)
     for i, h in enumerate(survey.hazards):
         where = f" at {h.where}" if h.where else ""
-        add(f"hazard {i + 1}, {h.kind}{where}", f"hazards[{i}]", h.photos)
+        add(f"hazard {i + 1}, {words('hazards', h.kind)}{where}", f"hazards[{i}]", h.photos)
     return found
 
 
@@ -309,9 +432,18 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
     inspector = ins.inspector.name + (f" (id {ins.inspector.id})" if ins.inspector.id else "")
     building = [("building", b.name), ("address", b.address), ("use", b.use or DASH),
                 ("systems", _systems_text(survey, std)), ("inspector", inspector),
-                ("inspected", ins.at.isoformat()), ("building id", str(survey.building_id))]
+                ("inspected", when_text(ins.at)), ("building id", str(survey.building_id))]
     if b.location is not None:
         building.insert(2, ("location", f"{b.location.lat:.5f}, {b.location.lon:.5f}"))
+    if b.year_built is not None:
+        building.insert(3, ("year built", str(b.year_built)))
+    if ins.team:
+        building.append(("team", "; ".join(t.name + (f" (id {t.id})" if t.id else "")
+                                           for t in ins.team)))
+    for label, value in (("event", ins.event), ("weather", ins.weather),
+                         ("not inspected", ins.not_inspected)):
+        if value:
+            building.append((label, value))
     if ins.previous is not None:
         building.append(("follows survey", str(ins.previous)))
     building = [building[0]] + [(k, clip(k, v)) for k, v in building[1:]]
@@ -320,7 +452,8 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
     if a.measure_next is not None:
         m = a.measure_next
         at = f" ({m.where})" if m.where else ""
-        measure_next = f"storey {m.storey}, direction {m.dir}{at}: {m.why}"
+        d = f", direction {m.dir}" if m.dir is not None else ""
+        measure_next = f"storey {m.storey}{d}{at}: {m.why}"
     else:
         measure_next = "no reading lies near a threshold"
 
@@ -328,14 +461,15 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
     for h in a.hazards:
         if h.keep_out_m is not None:
             where = f" at {h.where}" if h.where else ""
-            keep_out.append(f"{h.kind}{where}: keep {h.keep_out_m:g} m clear around it")
+            keep_out.append(f"{words('hazards', h.kind)}{where}: keep {h.keep_out_m:g} m "
+                            "clear around it")
 
     storeys = [StoreyRow(label=clip(f"storey {s.label}", s.label), height=f"{s.height_m:g}",
                          drift_x=pct(s.drift_ratio.x),
                          drift_y=pct(s.drift_ratio.y), level_x=s.performance_level.x or DASH,
                          level_y=s.performance_level.y or DASH,
                          r=DASH if s.residual_capacity is None else f"{s.residual_capacity:.1%}",
-                         grade=s.damage_grade or DASH, access=s.access)
+                         grade=s.damage_grade or DASH, access=words("access", s.access))
                for s in a.storeys]
     chart = [ChartPoint(s.label, s.drift_ratio.x, s.drift_ratio.y) for s in a.storeys]
     figs: list[ChartFigure] = []
@@ -357,7 +491,7 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
                 sd = f" ± {mg.crack_sd_mm:g}" if mg.crack_sd_mm else ""
                 seen.append(f"crack {mg.crack_mm:g}{sd} mm")
             if mg.signs:
-                seen.append("signs: " + ", ".join(s.replace("_", " ") for s in mg.signs))
+                seen.append("signs: " + ", ".join(words("signs", s) for s in mg.signs))
             if mg.ductility == "brittle":
                 seen.append("brittle")
             if mg.dir is not None:
@@ -369,16 +503,23 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
             what = f"storey {st.label}, member group {group}"
             members.append(MemberRow(
                 storey=clip(f"storey {st.label}", st.label), group=clip(what, group),
-                kind=mr.kind, count=str(mr.count), damage_class=mr.damage_class or DASH,
+                kind=words("member_kinds", mr.kind), count=str(mr.count),
+                damage_class=mr.damage_class or DASH,
                 eta=DASH if mr.eta is None else f"{mr.eta:g}",
                 class_from=clip(f"{what}, how the class was set", how),
                 seen=clip(f"{what}, what was seen", "; ".join(seen) or "nothing seen")))
 
+    a_used = Assumptions.model_validate(a.engine.assumptions)
     hazards = []
     for hr in a.hazards:
         hs = survey.hazards[hr.index]
-        what = f"hazard {hr.index + 1} ({hr.kind})"
-        hazards.append(HazardRow(kind=hr.kind, where=clip(f"{what}, where", hr.where or DASH),
+        kind = words("hazards", hr.kind)
+        what = f"hazard {hr.index + 1} ({kind})"
+        height = hs.height_above_ground_m
+        hazards.append(HazardRow(kind=kind, height=DASH if height is None else f"{height:g} m",
+                                 factor=DASH if height is None
+                                 else f"{a_used.keep_out_factor:g}",
+                                 where=clip(f"{what}, where", hr.where or DASH),
                                  storey=clip(f"{what}, storey", hr.storey or DASH),
                                  effect=f"at least {tier_words(hr.tier)}",
                                  keep_out=DASH if hr.keep_out_m is None else f"{hr.keep_out_m:g} m",
@@ -395,7 +536,7 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
     assumptions = []
     for key, value in a.engine.assumptions.items():
         note = std.assumption_notes.get(key)
-        assumptions.append(AssumptionRow(key, _value_text(value),
+        assumptions.append(AssumptionRow(words("assumptions", key), _value_text(value),
                                          note.status if note else "ours",
                                          note.why if note else ""))
     memory = [r.what for r in _method(std) if r.status == "memory"]
@@ -421,10 +562,9 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
         level=a.performance_level or "not assessed (no data)",
         governing=_governing(a),
         provisional=a.provisional,
-        provisional_text=("PROVISIONAL: the survey is incomplete (a storey unmeasured in a "
-                          "direction, without member groups, or not fully accessible)"
-                          if a.provisional else "complete: every storey measured and entered"),
-        reasons=list(a.reasons),
+        provisional_text=(_provisional_text(survey) if a.provisional
+                          else "complete: every storey measured and entered"),
+        reasons=[in_words(r, survey) for r in a.reasons],
         probability_label=PROBABILITY_LABEL,
         probabilities=probs,
         borderline=bool(a.borderline),
@@ -443,10 +583,21 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
         photos=_photos(survey, photos if photos is not None
                        else folder_loader(photo_dir) if photo_dir is not None else None),
         storey_notes=[(s.label, s.notes) for s in survey.storeys if s.notes],
-        notes=list(a.notes), defaulted=list(a.defaulted),
+        notes=[in_words(n, survey) for n in a.notes], defaulted=list(a.defaulted),
         method=_method(std), method_text=method_text, assumptions=assumptions,
         engine=f"triage {a.engine.version}",
         inspector=inspector,
         long_texts=clip.full,
         comparison=list(comparison.lines()) if comparison is not None else None,
+        spot_tables=spot_tables(survey, a_used),
+        state=(f"SIGNED by {signer.name}, key {signer.fingerprint[:16]}: check with triage "
+               "verify" if signer else "UNSIGNED: no digital signature"),
     )
+
+
+def _provisional_text(survey: Survey) -> str:
+    which = provisional_storeys(survey)
+    if not which:
+        return "PROVISIONAL: nothing was logged yet (no reading, no member group)"
+    return ("PROVISIONAL: the survey is incomplete at " + "; ".join(which)
+            + ". The tier rests on the measured parts only.")

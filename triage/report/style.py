@@ -41,6 +41,8 @@ def styles() -> dict[str, Any]:
         "level": ParagraphStyle("level", parent=base, fontName=bold, fontSize=18, leading=22,
                                 textColor=ACCENT),
         "strong": ParagraphStyle("strong", parent=base, fontName=bold),
+        "caution": ParagraphStyle("caution", parent=base, fontName=bold, fontSize=11,
+                                  leading=14, textColor=INK),
         "bullet": ParagraphStyle("bullet", parent=base, leftIndent=10, bulletIndent=0,
                                  spaceAfter=1.5),
     }

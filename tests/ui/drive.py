@@ -57,3 +57,46 @@ async def pick(pilot: Pilot[Any], cid: str, value: Any) -> Choice:
 def verdict_text(pilot: Pilot[Any]) -> str:
     """The verdict line's text."""
     return str(pilot.app.screen.query_one("#verdict-line").render())
+
+
+def key_event(key: str) -> Any:
+    """The key event a terminal sends for a key name ('a', 'tab', 'enter', 'space', 'down')."""
+    import unicodedata
+
+    from textual import events
+    from textual.keys import REPLACED_KEYS, _character_to_key, _get_unicode_name_from_key
+
+    if len(key) == 1 and not key.isalnum():
+        key = _character_to_key(key)
+    original = REPLACED_KEYS.get(key, key)
+    char: str | None
+    try:
+        char = unicodedata.lookup(_get_unicode_name_from_key(original))
+    except KeyError:
+        char = key if len(key) == 1 else None
+    return events.Key(key, char)
+
+
+def keys_of(*parts: str) -> list[str]:
+    """Key names from parts: a part in angle brackets is one key ('<tab>'), else its characters."""
+    out: list[str] = []
+    for p in parts:
+        if p.startswith("<") and p.endswith(">") and len(p) > 2:
+            out.append(p[1:-1])
+        else:
+            out.extend(p)
+    return out
+
+
+async def burst(pilot: Pilot[Any], *parts: str) -> None:
+    """Post every key at once, as a fast typist or a paste does, then let the app settle.
+
+    Unlike `pilot.press` (which waits for idle after each key), nothing runs between the keys
+    but what the app does as it takes each one off its queue.
+    """
+    app = pilot.app
+    for k in keys_of(*parts):
+        ev = key_event(k)
+        ev.set_sender(app)
+        app.post_message(ev)
+    await settle(pilot)

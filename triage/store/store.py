@@ -14,6 +14,7 @@ import os
 import shutil
 import sqlite3
 import tempfile
+import threading
 import uuid
 from pathlib import Path
 from typing import Any
@@ -24,9 +25,27 @@ from .history import ChangeHistory
 from .paths import default_db_path
 from .schema import current_version, ensure_schema
 
+# Files this process has open through a Store, with how many stores. Closing any descriptor of
+# a file drops every POSIX lock the process holds on it, SQLite's included: a second store of
+# the same file (a worker's) must not read the header with a plain open(), or another process
+# could checkpoint and delete the WAL beneath the first one's open connection.
+_OPEN_HERE: dict[Path, int] = {}
+_OPEN_LOCK = threading.Lock()
+
+
+def _opened(p: Path, step: int) -> None:
+    with _OPEN_LOCK:
+        n = _OPEN_HERE.get(p, 0) + step
+        if n > 0:
+            _OPEN_HERE[p] = n
+        else:
+            _OPEN_HERE.pop(p, None)
+
 
 class Store(ChangeHistory):
     """A survey database. One per thread: an SQLite connection belongs to its thread."""
+
+    _key: Path | None = None  # the resolved path, while open (see _OPEN_HERE)
 
     # --- opening -------------------------------------------------------------------------
 
@@ -49,7 +68,11 @@ class Store(ChangeHistory):
             return cls.open_read_only(p, who=who, check=check, clock=clock)
         if not p.exists() and not create:
             raise StoreError(f"{p}: no database there; check the path (--db PATH)")
-        version = check_file(p, deep=check)
+        key = p.resolve()
+        with _OPEN_LOCK:
+            open_here = _OPEN_HERE.get(key, 0) > 0
+        # a file open here already was checked when it was first opened (see _OPEN_HERE)
+        version = -1 if open_here else check_file(p, deep=check)
         if not p.exists():
             try:
                 p.parent.mkdir(parents=True, exist_ok=True)
@@ -64,12 +87,16 @@ class Store(ChangeHistory):
         except sqlite3.Error as err:
             raise explain(err, p) from None
         store = cls(conn, p, who=who, clock=clock)
+        store._key = key
+        _opened(key, 1)
         try:
+            if version < 0:
+                version = int(conn.execute("PRAGMA user_version").fetchone()[0])
             store.migration_backup = ensure_schema(conn, p, version)
             if refresh:
                 store.refresh_stale()
         except BaseException:
-            conn.close()
+            store.close()
             raise
         return store
 
@@ -130,6 +157,9 @@ class Store(ChangeHistory):
     def close(self) -> None:
         """Close the connection (and drop the temporary copy a read-only open made)."""
         super().close()
+        key, self._key = self._key, None
+        if key is not None:
+            _opened(key, -1)
         if self._scratch is not None:
             shutil.rmtree(self._scratch, ignore_errors=True)
             self._scratch = None

@@ -13,7 +13,7 @@ from datetime import datetime
 from pathlib import Path
 from typing import Any, ClassVar
 
-from textual import work
+from textual import events, work
 from textual.app import App
 from textual.binding import Binding, BindingType
 from textual.theme import Theme
@@ -37,6 +37,10 @@ class TriageApp(App[None]):
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("ctrl+q", "quit", "quit", priority=True, show=False),
         Binding("f1", "help", "help", priority=True),
+        # Focus moves at once, before the next key is taken (triage/ui/focus.py).
+        Binding("tab", "next_field(1)", "next field", priority=True, show=False),
+        Binding("shift+tab", "next_field(-1)", "previous field", priority=True, show=False),
+        Binding("enter", "enter", "accept", priority=True, show=False),
     ]
 
     def __init__(self, db_path: Path, *, clock: Callable[[], datetime] | None = None,
@@ -54,6 +58,32 @@ class TriageApp(App[None]):
         self.demo_samples = demo_samples
         self.who = "inspector"
         self.refusal: str | None = None
+
+    async def on_event(self, event: events.Event) -> None:
+        """Keys are acted on in the order they were typed (triage/ui/focus.py).
+
+        Textual hands a key to the focused widget's queue, and a binding of that widget (Down
+        in a table, Backspace in a field) runs only when the key has come back up to the app,
+        behind the keys taken meanwhile. Here a key a binding takes runs that binding at once,
+        once the focused widget has handled the keys already handed to it; a key the widget
+        types (a printable character in a field) goes to it in order as before.
+        """
+        if (isinstance(event, events.Key) and not event.is_forwarded
+                and await self._key_in_order(event)):
+            return
+        await super().on_event(event)
+
+    async def _key_in_order(self, event: events.Key) -> bool:
+        from triage.ui.focus import drain
+
+        self.app_focus = True
+        if await self._check_bindings(event.key, priority=True):
+            return True
+        widget = self.focused
+        if widget is None or widget.check_consume_key(event.key, event.character):
+            return False
+        await drain(widget)
+        return bool(await self._check_bindings(event.key))
 
     def on_mount(self) -> None:
         """Draw the survey list at once; open the database behind it."""
@@ -118,6 +148,31 @@ class TriageApp(App[None]):
         """The database cannot be used: leave with the one-line reason (status 1)."""
         self.refusal = message
         self.exit(return_code=1)
+
+    def action_next_field(self, step: int) -> None:
+        """Tab and shift+Tab: the next or previous field, focused at once."""
+        if step > 0:
+            self.screen.focus_next()
+        else:
+            self.screen.focus_previous()
+
+    async def action_enter(self) -> None:
+        """Enter: the screen acts at once (accept and move on, add the item, edit the row).
+
+        The focused widget first handles the keys already handed to it; a screen that does
+        not take Enter here (no `enter_pressed`, or it returns False) gets it the usual way.
+        """
+        from textual.actions import SkipAction
+
+        from triage.ui.focus import drain
+
+        widget = self.focused
+        handler = getattr(self.screen, "enter_pressed", None)
+        if widget is None or handler is None:
+            raise SkipAction()
+        await drain(widget)
+        if self.focused is not widget or not handler(widget):
+            raise SkipAction()
 
     def action_help(self) -> None:
         """Show the keys of the screen in view."""

@@ -79,9 +79,12 @@ class NewSurveyScreen(Screen[str | None]):
         if isinstance(event.field, Field):
             event.field.saved_text = event.field.text  # leaving it now asks nothing more
 
-    def on_input_submitted(self, event: Input.Submitted) -> None:
-        """Enter moves on to the next field."""
-        self.focus_next()
+    def enter_pressed(self, widget: Any) -> bool:
+        """Enter in a field moves on to the next one at once (leaving it checks it)."""
+        if isinstance(widget, Input) and isinstance(widget.parent, Field):
+            self.focus_next()
+            return True
+        return False
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         """The create button."""

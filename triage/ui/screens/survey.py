@@ -15,7 +15,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer, OptionList, Static, TabbedContent, TabPane
+from textual.widgets import Footer, Input, OptionList, Static, TabbedContent, TabPane
 from textual.widgets.option_list import Option
 from textual.worker import Worker, WorkerState
 
@@ -119,7 +119,7 @@ class SurveyScreen(Screen[None]):
         self.query_one(VerdictLine).show(self.assessment, pending=True)
         self._layout_side()
         self.request_verdict()
-        self.call_after_refresh(self.current_pane().focus_first)
+        self.current_pane().focus_first()
 
     def on_resize(self) -> None:
         """The full verdict beside the form when the terminal is wide enough."""
@@ -233,7 +233,19 @@ class SurveyScreen(Screen[None]):
         if not self.flush_focused():
             return
         self.query_one(TabbedContent).active = name
-        self.call_after_refresh(self.current_pane().focus_first)
+        self.current_pane().focus_first()  # at once: keys typed after the F-key go there
+
+    def enter_pressed(self, widget: Any) -> bool:
+        """Enter in a pane, acted on at once (see triage/ui/focus.py)."""
+        for node in widget.ancestors_with_self:
+            if isinstance(node, ItemPane):
+                return bool(node.enter_pressed(widget))
+            if isinstance(node, StoreyPane):
+                if isinstance(widget, Input):
+                    self.focus_next()  # leaving the field saves it
+                    return True
+                return False
+        return False
 
     # --- saving --------------------------------------------------------------------------
 
@@ -247,7 +259,7 @@ class SurveyScreen(Screen[None]):
         except Refused as err:
             event.field.show_refused(rule_of(str(err)))
             return
-        event.field.mark_saved()
+        event.field.mark_saved(value=event.value)
         self.after_save(rev, structural=event.path.endswith(".label"))
         pane = next((a for a in event.field.ancestors if isinstance(a, ItemPane)), None)
         if pane is not None:

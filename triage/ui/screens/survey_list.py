@@ -137,17 +137,24 @@ class SurveyListScreen(Screen[None]):
         if table.row_count:
             table.move_cursor(row=max(0, min(table.row_count - 1, table.cursor_row + step)))
 
-    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
+    async def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
         """A click or Enter on a row opens it."""
-        self.action_open()
+        await self.action_open()
 
-    def action_open(self) -> None:
-        """Open the highlighted survey."""
+    async def action_open(self) -> None:
+        """Open the highlighted survey; keys typed after Enter go to its first field.
+
+        The app takes no key until the survey screen is mounted and its field focused.
+        """
+        from triage.ui.focus import drain
         from triage.ui.screens.survey import SurveyScreen
 
+        table = self.query_one("#surveys", DataTable)
+        if self.app.focused is table:
+            await drain(table)  # a Down typed before Enter moves the highlight first
         sid = self.selected_id()
         if sid is not None and self.ready():
-            self.app.push_screen(SurveyScreen(sid))
+            await self.app.push_screen(SurveyScreen(sid))
 
     def action_new(self) -> None:
         """Start a new survey."""

@@ -16,6 +16,7 @@ from textual.app import ComposeResult
 from textual.containers import Horizontal
 from textual.widgets import Checkbox, Input, Label, Select, Static
 
+from triage.ui.focus import focus_now
 from triage.ui.messages import NOT_SAVED, SAVED, FieldAccepted
 
 
@@ -171,8 +172,8 @@ class Field(Saving, Horizontal):
             return
         self.post_message(FieldAccepted(self, self.path or "", v))
 
-    def mark_saved(self, note: str = "") -> None:
-        """The store took the value."""
+    def mark_saved(self, note: str = "", value: Any = ...) -> None:
+        """The store took the value (the field's text: it is not typed in meanwhile)."""
         self.saved_text = self.input.value
         self.show_saved(note)
 
@@ -187,8 +188,8 @@ class Field(Saving, Horizontal):
             self.accept()
 
     def focus_input(self) -> None:
-        """Put the cursor in the field."""
-        self.input.focus()
+        """Put the cursor in the field, at once."""
+        focus_now(self.input)
 
 
 class Choice(Saving, Horizontal):
@@ -243,9 +244,9 @@ class Choice(Saving, Horizontal):
         if value is not None:
             self.select.value = value
 
-    def mark_saved(self, note: str = "") -> None:
-        """The store took the value."""
-        self.saved_value = self.value()
+    def mark_saved(self, note: str = "", value: Any = ...) -> None:
+        """The store took `value` (by default the value shown; a later pick may differ)."""
+        self.saved_value = self.value() if value is ... else value
         self.show_saved(note)
 
     def on_select_changed(self, event: Select.Changed) -> None:
@@ -289,9 +290,9 @@ class Tick(Saving, Horizontal):
         self.saved_value = value
         self.box.value = value
 
-    def mark_saved(self, note: str = "") -> None:
-        """The store took the value."""
-        self.saved_value = self.value()
+    def mark_saved(self, note: str = "", value: Any = ...) -> None:
+        """The store took `value` (by default the value shown; a later pick may differ)."""
+        self.saved_value = self.value() if value is ... else value
         self.show_saved(note)
 
     def on_checkbox_changed(self, event: Checkbox.Changed) -> None:

@@ -6,7 +6,7 @@ from typing import Any
 
 from textual.app import ComposeResult
 from textual.containers import Horizontal
-from textual.widgets import Label, SelectionList, Static
+from textual.widgets import Label, OptionList, SelectionList, Static
 
 from triage.standards import CLASSES
 from triage.ui.choices import class_texts, member_kinds, sign_choices
@@ -16,6 +16,23 @@ from triage.ui.widgets.pane import ItemPane, values_of
 
 KEYS = ["kind", "count", "ductility", "crack_mm", "crack_sd_mm", "ref", "dir",
         "override_reason", "damage_class"]
+
+
+class SignList(SelectionList[str]):
+    """A check list that ticks the highlighted sign at once.
+
+    Textual's list ticks what is highlighted when its own message comes back, so a Down typed
+    right after Space moved the highlight first and the wrong sign was ticked.
+    """
+
+    def action_select(self) -> None:
+        """Space or Enter: tick or untick the highlighted sign now."""
+        i = self.highlighted
+        if i is not None and not self.get_option_at_index(i).disabled:
+            self.toggle(self.get_option_at_index(i))
+
+    def _on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
+        event.stop()  # ticked already, in action_select
 
 
 class SignChecks(Saving, Horizontal):
@@ -34,7 +51,7 @@ class SignChecks(Saving, Horizontal):
         super().__init__(id=id)
         self.path: str | None = None
         self.saved_value: list[str] = []
-        self.checks: SelectionList[str] = SelectionList(compact=True)
+        self.checks: SelectionList[str] = SignList(compact=True)
         self.status = Static("", classes="fstatus")
         self._quiet = 0
 
@@ -66,9 +83,9 @@ class SignChecks(Saving, Horizontal):
         """Tick the given signs (kept choices)."""
         self.saved_value = list(value or [])
 
-    def mark_saved(self, note: str = "") -> None:
-        """The store took the signs."""
-        self.saved_value = self.value()
+    def mark_saved(self, note: str = "", value: Any = ...) -> None:
+        """The store took these signs (a sign ticked since is saved by its own message)."""
+        self.saved_value = self.value() if value is ... else list(value)
         self.show_saved(note)
 
     def on_selection_list_selected_changed(self, event: SelectionList.SelectedChanged) -> None:

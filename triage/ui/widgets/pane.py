@@ -15,9 +15,10 @@ from typing import Any
 from textual.app import ComposeResult
 from textual.containers import VerticalScroll
 from textual.coordinate import Coordinate
-from textual.widgets import DataTable, Static
+from textual.widgets import DataTable, Input, Static
 
 from triage.ui.data import Refused, rule_of
+from triage.ui.focus import focus_now
 from triage.ui.messages import FieldAccepted
 from triage.ui.widgets.field import Choice, Field, Tick, set_text
 
@@ -161,11 +162,7 @@ class ItemPane(VerticalScroll):
         """Switch the form to an existing item, or to a new one."""
         self.editing = index
         self.show_form()
-        first = next(iter(self.form.values()), None)
-        if isinstance(first, Field):
-            first.focus_input()
-        elif first is not None:
-            first.children[1].focus() if len(first.children) > 1 else None
+        self.focus_first()
 
     first_key = ""  # the form field where entry starts (the first text field when empty)
 
@@ -173,7 +170,7 @@ class ItemPane(VerticalScroll):
         """Put the cursor where entry of a new item starts."""
         w = self.form.get(self.first_key)
         if isinstance(w, Choice):
-            w.select.focus()
+            focus_now(w.select)
             return
         if isinstance(w, Field) and w.display:
             w.focus_input()
@@ -182,6 +179,27 @@ class ItemPane(VerticalScroll):
             if isinstance(w, Field) and w.display:
                 w.focus_input()
                 return
+
+    def enter_pressed(self, widget: Any) -> bool:
+        """Enter, acted on at once (the app's priority binding; see triage/ui/focus.py).
+
+        On a row: edit that item, the cursor in its form. In a text field of a new item: add
+        it, the form ready for the next. In a field of an item being edited: on to the next
+        field (leaving a field saves it). Anything else takes Enter the usual way.
+        """
+        if widget is self.table:
+            if self.table.row_count == 0:
+                return False
+            self.edit(self.table.cursor_row)
+            return True
+        f = widget.parent
+        if not (isinstance(widget, Input) and isinstance(f, Field) and f in self.form.values()):
+            return False
+        if self.editing is None:
+            self.add_item()
+        else:
+            widget.screen.focus_next()
+        return True
 
     def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
         """Enter or a click on a row edits that item."""
@@ -246,6 +264,9 @@ class ItemPane(VerticalScroll):
             return
         n = len(self.items())
         self.after_add()
+        if n:
+            self.table.move_cursor(row=n - 1, animate=False)  # the new row in view
+        self.focus_first()
         set_text(self.note, f"✓ saved: {self.noun} {n} added")
         for w in self.form.values():
             if hasattr(w, "show_note") and w.status_text.startswith("✗"):

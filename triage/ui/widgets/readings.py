@@ -34,6 +34,10 @@ class ReadingsPane(ItemPane):
     """
 
     first_key = "offset_mm"
+
+    def focus_first(self) -> None:
+        """The cursor in the offset, or the tilt for a tilt reading."""
+        (self.form["tilt_deg"] if self._tilt() else self.form["offset_mm"]).focus_input()
     noun = "reading"
     columns = (("#", 3), ("dir", 3), ("offset / gauge", 16), ("sd", 7), ("where", 15),
                ("drift", 7))
@@ -177,4 +181,3 @@ class ReadingsPane(ItemPane):
             if v is not None:
                 app.data.remember(setting, v)
         self.fill(None)
-        (self.form["tilt_deg"] if self._tilt() else self.form["offset_mm"]).focus_input()

@@ -219,3 +219,21 @@ def test_messages_name_the_field_in_words() -> None:
 def test_unknown_keys_read_plainly_never_fail() -> None:
     assert words("signs", "some_new_sign") == "some new sign"
     assert vocab.many("member_kinds", "slab") == "floor slabs"
+
+
+def test_running_text_reads_in_words() -> None:
+    from triage.standards.vocabulary import plain_text
+
+    assert plain_text("offset_mm and gauge_mm go together") == (
+        "offset (mm) and gauge (mm) go together")
+    assert plain_text("signs: 'cover_spalling' is not a sign of a brace") == (
+        "signs: cover spalled is not a sign of a brace")
+    assert plain_text("damage_class set by hand needs an override_reason") == (
+        "damage class set by hand needs an override reason")
+    # the model's refusal names the field in words at its end: said once
+    assert plain_text("storeys[0].readings[5].gauge_mm: must be at least 100 (1st storey from "
+                      "the bottom, reading 6, gauge (mm))", SURVEY) == (
+        "storey G, reading 6, gauge (mm): must be at least 100")
+    assert plain_text("a falling_hazard above storeys[1]", SURVEY) == (
+        "a falling hazard above storey 1")
+    assert plain_text("no key here: 0.2% is fine.") == "no key here: 0.2% is fine."

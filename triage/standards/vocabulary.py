@@ -276,4 +276,59 @@ def message_words(message: str, survey: Any = None) -> str:
     if m is None:
         return message
     said = field_words(m.group(1), survey)
-    return message if said == m.group(1) else f"{said}: {message[m.end():]}"
+    if said == m.group(1):
+        return message
+    rule = message[m.end():]
+    # the model's refusals end with the field in words, as it read them: said once is enough
+    for named in (said, field_words(m.group(1))):
+        if rule.endswith(f" ({named})"):
+            rule = rule[: -len(named) - 3]
+            break
+    return f"{said}: {rule}"
+
+
+# --- keys left in running text --------------------------------------------------------------
+
+_PATH_ANYWHERE = re.compile(r"\b(?:storeys|hazards|building|inspection)(?:\[\d+\])?"
+                            r"(?:\.[A-Za-z_][A-Za-z0-9_]*(?:\[\d+\])*)*")
+_KEYISH = re.compile(r"'?\b([A-Za-z][A-Za-z0-9]*(?:_[A-Za-z0-9]+)+)\b'?")
+# where a key met in running text is looked up, first found wins
+_KEY_SECTIONS = ("signs", "hazards", "systems", "member_kinds", "assumptions")
+
+
+@cache
+def _key_index() -> dict[str, str]:
+    index: dict[str, str] = {}
+    voc = vocabulary()
+    for section in _KEY_SECTIONS:
+        for k, e in voc.get(section, {}).items():
+            index.setdefault(k, e.words)
+    for name, section_entries in voc.items():
+        if name.startswith("fields."):
+            for k, e in section_entries.items():
+                if e.unit:  # 'gauge_mm' reads 'gauge (mm)'; other keys read as plain words
+                    index.setdefault(k, e.with_unit)
+    return index
+
+
+def plain_text(text: str, survey: Any = None) -> str:
+    """Running text with the keys in it put in words, for a person to read.
+
+    A leading 'path: ' and any survey path in the text ('storeys[0].readings[5]') read as
+    their words; a key such as cover_spalling or falling_hazard (quoted or not) as its words.
+    Any other word with underscores reads with spaces ('override_reason': 'override reason').
+    """
+    text = message_words(text, survey)
+
+    def path(m: re.Match[str]) -> str:
+        said = field_words(m.group(0), survey)
+        return m.group(0) if said == m.group(0) else said
+
+    if "[" in text or "." in text:
+        text = _PATH_ANYWHERE.sub(path, text)
+    index = _key_index()
+
+    def key(m: re.Match[str]) -> str:
+        return index.get(m.group(1), _plain(m.group(1)))
+
+    return _KEYISH.sub(key, text) if "_" in text else text

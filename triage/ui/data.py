@@ -29,11 +29,26 @@ class Refused(Exception):
 
 
 def rule_of(message: str) -> str:
-    """The rule part of a one-line message `field.path: rule` (the field is shown beside it)."""
+    """The rule of a one-line message `field.path: rule`, in words (the field is beside it).
+
+    The field's own name in words, which the model adds at the end, is left out too; any key
+    left in the rule reads as words (triage.standards.vocabulary.plain_text).
+    """
+    from triage.standards.vocabulary import plain_text
+
     head, sep, rest = message.partition(": ")
     if sep and (re.fullmatch(r"[\w\[\].]+", head) is not None):
-        return rest
-    return message
+        said = plain_text(message)
+        _, sep2, rule = said.partition(": ")
+        return rule if sep2 else plain_text(rest)
+    return plain_text(message)
+
+
+def said(message: str, survey: Any = None) -> str:
+    """A one-line message for a person: its field and any key in it as words."""
+    from triage.standards.vocabulary import plain_text
+
+    return plain_text(message, survey)
 
 
 def now_local(clock: Clock | None = None) -> datetime:

@@ -19,7 +19,10 @@ from triage.ui.widgets.field import Choice, Field
 
 def system_options() -> list[tuple[str, str]]:
     """The eight structural systems, each with its one-line description."""
-    return [(f"{k}: {s.description}", k) for k, s in standards.load().systems.items()]
+    from triage.standards.vocabulary import words
+
+    return [(f"{words('systems', k)}: {s.description}", k)
+            for k, s in standards.load().systems.items()]
 
 
 class NewSurveyScreen(Screen[str | None]):

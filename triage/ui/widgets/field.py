@@ -100,6 +100,11 @@ class Saving:
         self.status.set_class(False, "refused")
         self.status.set_class(False, "saved")
 
+    def clear_refusal(self) -> None:
+        """The value was changed: a refusal of the old one no longer stands beside it."""
+        if self.status.has_class("refused"):
+            self.show_note("")
+
     @property
     def status_text(self) -> str:
         """What the status beside the field says (for tests and the help screen)."""
@@ -181,6 +186,10 @@ class Field(Saving, Horizontal):
         """Enter accepts the value (the event goes on up: a form may move to the next field)."""
         self.accept(force=self.path is None)
 
+    def on_input_changed(self, event: Input.Changed) -> None:
+        """A change clears the refusal shown (the event goes on up: a form may preview)."""
+        self.clear_refusal()
+
     def on_input_blurred(self, event: Input.Blurred) -> None:
         """Leaving the field accepts the value."""
         event.stop()
@@ -252,6 +261,7 @@ class Choice(Saving, Horizontal):
     def on_select_changed(self, event: Select.Changed) -> None:
         """A pick asks to be saved when it differs from the stored value."""
         event.stop()
+        self.clear_refusal()
         v = self.value()
         if v == self.saved_value:
             return
@@ -298,6 +308,7 @@ class Tick(Saving, Horizontal):
     def on_checkbox_changed(self, event: Checkbox.Changed) -> None:
         """A change asks to be saved."""
         event.stop()
+        self.clear_refusal()
         if self.value() == self.saved_value:
             return
         self.post_message(FieldAccepted(self, self.path or "", self.value()))

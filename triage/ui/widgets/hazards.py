@@ -7,6 +7,7 @@ from typing import Any
 from textual.app import ComposeResult
 
 from triage.assess import tier_words
+from triage.standards.vocabulary import words
 from triage.ui.choices import hazard_choices
 from triage.ui.widgets.field import Choice, Field, set_text
 from triage.ui.widgets.pane import ItemPane, values_of
@@ -41,13 +42,13 @@ class HazardsPane(ItemPane):
         if a is not None:
             res = next((h for h in a.hazards if h.index == index), None)
         keep = "" if res is None or res.keep_out_m is None else f"{res.keep_out_m:g} m"
-        return (str(index + 1), item.kind, item.where or "", item.storey or "",
+        return (str(index + 1), words("hazards", item.kind), item.where or "", item.storey or "",
                 "" if item.height_above_ground_m is None else f"{item.height_above_ground_m:g}",
                 keep, "" if res is None else tier_words(res.tier))
 
     def _options(self) -> list[tuple[str, str]]:
         s = self.survey_screen.survey
-        return [(f"{key} ({group})", key)
+        return [(f"{words('hazards', key)} ({group})", key)
                 for group, key, _ in hazard_choices((s.building.system.x,
                                                      s.building.system.y))]
 

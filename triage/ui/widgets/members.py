@@ -5,10 +5,12 @@ from __future__ import annotations
 from typing import Any
 
 from textual.app import ComposeResult
-from textual.containers import Horizontal
+from textual.containers import Horizontal, Vertical
 from textual.widgets import Label, OptionList, SelectionList, Static
 
+from triage import standards
 from triage.standards import CLASSES
+from triage.standards.vocabulary import words
 from triage.ui.choices import class_texts, member_kinds, sign_choices
 from triage.ui.messages import FieldAccepted
 from triage.ui.widgets.field import Choice, Field, Saving, set_text
@@ -41,9 +43,11 @@ class SignChecks(Saving, Horizontal):
     DEFAULT_CSS = """
     SignChecks { height: auto; width: 1fr; }
     SignChecks > Label { width: 15; }
-    SignChecks > SelectionList { width: 1fr; height: auto; max-height: 8; }
-    SignChecks > .fstatus { width: 16; padding-left: 1; color: $text-muted; }
-    SignChecks > .fstatus.refused { color: $accent; text-style: bold; width: 30; }
+    SignChecks > Vertical { width: 1fr; height: auto; }
+    SignChecks SelectionList { width: 1fr; height: auto; max-height: 10; }
+    SignChecks .sign-note { height: auto; color: $text-muted; }
+    SignChecks .fstatus { height: auto; width: 1fr; color: $text-muted; }
+    SignChecks .fstatus.refused { color: $accent; text-style: bold; }
     MembersPane > .class-line { height: 2; }
     """
 
@@ -53,24 +57,48 @@ class SignChecks(Saving, Horizontal):
         self.saved_value: list[str] = []
         self.checks: SelectionList[str] = SignList(compact=True)
         self.status = Static("", classes="fstatus")
+        self.sign_note = Static("", classes="sign-note")
         self._quiet = 0
 
     def compose(self) -> ComposeResult:
-        """Label, list, status."""
+        """Label; the list, what the highlighted sign implies, the status."""
         yield Label("signs seen")
-        yield self.checks
-        yield self.status
+        with Vertical():
+            yield self.checks
+            yield self.sign_note
+            yield self.status
 
     def set_choices(self, choices: list[tuple[str, str]], selected: list[str]) -> None:
-        """Offer these signs, ticking the ones given."""
+        """Offer these signs in words with their whole hint, ticking the ones given."""
         self.saved_value = list(selected)
         self._quiet += 1
         self.checks.clear_options()
         keys = [k for k, _ in choices]
         extra = [(s, "not on this kind's form") for s in selected if s not in keys]
         for key, hint in choices + extra:
-            self.checks.add_option((f"{key}: {hint}", key, key in selected))
+            self.checks.add_option((f"{words('signs', key)}: {hint}", key, key in selected))
+        self.show_sign()
         self.call_after_refresh(self._unquiet)
+
+    def show_sign(self) -> None:
+        """Under the list: the class the highlighted sign implies, and on what basis."""
+        i = self.checks.highlighted
+        if i is None or not self.checks.option_count:
+            set_text(self.sign_note, "Space ticks the highlighted sign")
+            return
+        key = str(self.checks.get_option_at_index(i).value)
+        sign = standards.load().signs.get(key)
+        if sign is None:
+            set_text(self.sign_note, "")
+            return
+        set_text(self.sign_note, f"{words('signs', key)} implies class {sign.damage_class} "
+                 f"({sign.basis}) · Space ticks it")
+
+    def on_selection_list_selection_highlighted(
+            self, event: SelectionList.SelectionHighlighted[str]) -> None:
+        """Another sign highlighted: say what it implies."""
+        event.stop()
+        self.show_sign()
 
     def _unquiet(self) -> None:
         self._quiet = max(0, self._quiet - 1)
@@ -93,6 +121,7 @@ class SignChecks(Saving, Horizontal):
         event.stop()
         if self._quiet:
             return
+        self.clear_refusal()
         v = self.value()
         if sorted(v) == sorted(self.saved_value):
             return
@@ -104,8 +133,8 @@ class MembersPane(ItemPane):
 
     first_key = "count"
     noun = "member group"
-    columns = (("#", 3), ("ref", 5), ("kind", 10), ("count", 5), ("crack", 6), ("signs", 5),
-               ("class", 5), ("eta", 5), ("from", 8))
+    columns = (("#", 3), ("mark", 5), ("kind", 11), ("count", 5), ("crack", 5), ("signs", 5),
+               ("class", 5), ("from", 11))
 
     def list_path(self) -> str:
         """E.g. storeys[1].members."""
@@ -146,15 +175,15 @@ class MembersPane(ItemPane):
         """One group, with its assessed class and eta."""
         res = self.result(index)
         cls = "—" if res is None else (res.damage_class or "none")
-        eta = "—" if res is None or res.eta is None else f"{res.eta:g}"
-        frm = "" if res is None or res.class_from is None else res.class_from
-        return (str(index + 1), item.ref or "", item.kind, str(item.count),
-                "" if not item.crack_mm else f"{item.crack_mm:g}", str(len(item.signs)) or "",
-                cls, eta, frm)
+        frm = "" if res is None or res.class_from is None else words("class_from",
+                                                                     res.class_from)
+        return (str(index + 1), item.ref or "", words("member_kinds", item.kind),
+                str(item.count), "" if not item.crack_mm else f"{item.crack_mm:g}",
+                str(len(item.signs)) if item.signs else "", cls, frm)
 
     def form_widgets(self) -> ComposeResult:
         """Kind, count, ductility, crack, ref, direction, signs, class set by hand."""
-        kinds = [(k, k) for k in member_kinds(self.systems())]
+        kinds = [(words("member_kinds", k), k) for k in member_kinds(self.systems())]
         w: list[Any] = [
             Choice("kind", None, kinds, "column", id="m-kind"),
             Field("count", None, 1, kind="int", id="m-count"),
@@ -217,7 +246,7 @@ class MembersPane(ItemPane):
         cls = res.damage_class or "none (undamaged)"
         eta = "—" if res.eta is None else f"{res.eta:g}"
         look = class_texts(self.systems()).get(res.damage_class or "", "")
-        origin = f" from {res.class_from}" if res.class_from else ""
+        origin = f" ({words('class_from', res.class_from)})" if res.class_from else ""
         set_text(self.class_line, f"class {cls}{origin} · eta {eta}"
                  + (f" · {look}" if look else ""), fixed=True)
 

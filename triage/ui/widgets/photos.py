@@ -6,6 +6,7 @@ from typing import Any
 
 from textual.app import ComposeResult
 
+from triage.standards.vocabulary import words
 from triage.ui.widgets.field import Choice, Field
 from triage.ui.widgets.pane import ItemPane, values_of
 
@@ -30,10 +31,11 @@ class PhotosPane(ItemPane):
         out = [(f"storey {st.label}" if st is not None else "storey", "storey")]
         if st is not None:
             for j, m in enumerate(st.members):
-                out.append((f"member group {j + 1}: {m.kind}" + (f" {m.ref}" if m.ref else ""),
+                out.append((f"member group {j + 1}: {words('member_kinds', m.kind)}"
+                            + (f" {m.ref}" if m.ref else ""),
                             f"members[{j}]"))
         for k, h in enumerate(scr.survey.hazards):
-            out.append((f"hazard {k + 1}: {h.kind}", f"hazards[{k}]"))
+            out.append((f"hazard {k + 1}: {words('hazards', h.kind)}", f"hazards[{k}]"))
         return out
 
     def _owner(self) -> Any:

@@ -13,6 +13,7 @@ from textual.widgets import Static
 
 from triage.assess import tier_words
 from triage.assess.drift import pct
+from triage.standards.vocabulary import plain_text, words
 from triage.ui.messages import CAUTION_FULL, CAUTION_SHORT, PROBABILITY_NOTE
 from triage.ui.widgets.profile import drift_profile
 
@@ -21,9 +22,9 @@ def governing_text(a: Any) -> str:
     """What sets the tier, in a few words."""
     g = a.governing
     if g.basis == "no-data":
-        return "nothing logged yet"
+        return words("basis", "no-data")
     where = f"storey {g.storey}" if g.storey else "the building"
-    return f"{g.basis}, {where}" + (f" {g.dir}" if g.dir else "")
+    return f"{words('basis', g.basis)}, {where}" + (f" {g.dir}" if g.dir else "")
 
 
 def verdict_summary(a: Any) -> str:
@@ -85,7 +86,7 @@ def verdict_lines(survey: Any, a: Any, width: int = 76) -> Text:
     t.append(CAUTION_FULL + "\n\n", style="italic")
     t.append("Reasons\n", style="bold underline")
     for r in a.reasons or ("none: nothing logged sets a level yet",):
-        t.append(f" • {r}\n")
+        t.append(f" • {plain_text(r, survey)}\n")
     t.append("\nTier probabilities ", style="bold underline")
     t.append(f"({PROBABILITY_NOTE})\n", style="italic")
     t.append("  " + "   ".join(f"{tier_words(k)} {v:.2f}" for k, v in a.tier_probability.items())
@@ -94,7 +95,7 @@ def verdict_lines(survey: Any, a: Any, width: int = 76) -> Text:
     if a.measure_next is not None:
         m = a.measure_next
         at = f" ({m.where})" if m.where else ""
-        t.append(f"  storey {m.storey}, {m.dir}{at}: {m.why}\n")
+        t.append(f"  storey {m.storey}, {m.dir}{at}: {plain_text(m.why, survey)}\n")
     else:
         t.append("  nothing near a threshold\n")
     t.append("\nKeep-out and hazards\n", style="bold underline")
@@ -103,7 +104,8 @@ def verdict_lines(survey: Any, a: Any, width: int = 76) -> Text:
             keep = (f"; keep {h.keep_out_m:g} m clear below it" if h.keep_out_m is not None
                     else "; no height given, no keep-out distance")
             where = f" at {h.where}" if h.where else ""
-            t.append(f"  {h.kind}{where}: at least {tier_words(h.tier)}{keep}\n")
+            t.append(f"  {words('hazards', h.kind)}{where}: at least {tier_words(h.tier)}"
+                     f"{keep}\n")
     else:
         t.append("  none logged\n")
     t.append("\nDrift profile\n", style="bold underline")
@@ -120,11 +122,11 @@ def verdict_lines(survey: Any, a: Any, width: int = 76) -> Text:
     if a.notes:
         t.append("\nNotes\n", style="bold underline")
         for n in a.notes:
-            t.append(f"  • {n}\n")
+            t.append(f"  • {plain_text(n, survey)}\n")
     if a.defaulted:
         t.append("\nUncertainties from instrument defaults\n", style="bold underline")
         for d in a.defaulted:
-            t.append(f"  • {d}\n")
+            t.append(f"  • {plain_text(d, survey)}\n")
     t.append(f"\nThe tier is indicative. {CAUTION_FULL}\n", style="italic")
     return t
 

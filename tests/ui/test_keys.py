@@ -38,12 +38,14 @@ async def test_readings_typed_ahead_each_land_in_their_field(db: Path, make_app)
         before = len(scr.survey.storeys[0].readings)
         field(pilot, "r-offset").focus_input()
         await settle(pilot)
-        # offset, Tab, gauge, Enter adds; the next reading's offset follows at once
-        await burst(pilot, "4.5", "<tab>", "1500", "<enter>", "6", "<tab>", "1500", "<enter>")
+        # offset, Tab, where, Tab, gauge, Enter adds; the next reading follows at once
+        await burst(pilot, "4.5", "<tab>", "C1", "<tab>", "1500", "<enter>",
+                    "6", "<tab>", "C2", "<enter>")
     with Store.open(db, refresh=False) as st:
         rs = st.load_survey(SID).storeys[0].readings
     new = rs[before:]
-    assert [(r.offset_mm, r.gauge_mm) for r in new] == [(4.5, 1500.0), (6.0, 1500.0)]
+    assert [(r.offset_mm, r.where, r.gauge_mm) for r in new] == [
+        (4.5, "C1", 1500.0), (6.0, "C2", 1500.0)]  # the gauge kept for the next reading
 
 
 async def test_down_after_ticking_a_sign_moves_on(db: Path, make_app) -> None:
@@ -101,7 +103,7 @@ async def test_open_from_the_list_then_typing(db: Path, make_app) -> None:
     async with app.run_test(size=(80, 24)) as pilot:
         await settle(pilot)
         # the list starts on the newest survey; Down to the other, open, type a reading
-        await burst(pilot, "Bakery", "<enter>", "5", "<tab>", "2000", "<enter>")
+        await burst(pilot, "Bakery", "<enter>", "5", "<tab>", "<tab>", "2000", "<enter>")
         assert app.screen.survey_id == SID
     with Store.open(db, refresh=False) as st:
         r = st.load_survey(SID).storeys[0].readings[-1]
@@ -117,8 +119,8 @@ async def test_paste_lands_in_order(db: Path, make_app) -> None:
         before = len(app.screen.survey.storeys[0].readings)
         field(pilot, "r-offset").focus_input()
         await settle(pilot)
-        for ev in (events.Paste("12.5"), "tab", events.Paste("2500"), "tab", "tab",
-                   events.Paste("north-west corner"), "enter"):
+        for ev in (events.Paste("12.5"), "tab", events.Paste("north-west corner"), "tab",
+                   events.Paste("2500"), "enter"):
             if isinstance(ev, str):
                 from drive import key_event
 

@@ -64,17 +64,18 @@ def test_keys_typed_ahead_through_a_terminal_are_all_saved(tmp_path: Path) -> No
     try:
         _wait("the survey list", lambda: "Harbour Bakery" in screen())
         # One burst, written to the terminal without a pause: filter, open, two readings
-        # (offset, Tab, gauge, Enter each), the second typed before the first is saved.
-        tm("send-keys", "-t", "t", "Bakery", "Enter", "5", "Tab", "2000", "Enter",
-           "7.5", "Tab", "2000", "Enter")
+        # (offset, Tab, where, Tab, gauge, Enter each), the second typed before the first is
+        # saved.
+        tm("send-keys", "-t", "t", "Bakery", "Enter", "5", "Tab", "grid A1", "Tab", "2000",
+           "Enter", "7.5", "Tab", "grid A2", "Tab", "2000", "Enter")
 
         def saved() -> list[tuple[float | None, float | None]]:
             with Store.open(db, refresh=False, check=False) as st:
                 rs = st.load_survey(SID).storeys[0].readings[before:]
-            return [(r.offset_mm, r.gauge_mm) for r in rs]
+            return [(r.offset_mm, r.where, r.gauge_mm) for r in rs]
 
         _wait("both readings saved", lambda: len(saved()) >= 2, shown=screen)
-        assert saved() == [(5.0, 2000.0), (7.5, 2000.0)]
+        assert saved() == [(5.0, "grid A1", 2000.0), (7.5, "grid A2", 2000.0)]
         tm("send-keys", "-t", "t", "C-q")
         _wait("triage to quit", lambda: subprocess.run(
             [tmux, "-L", sock, "has-session", "-t", "t"], capture_output=True).returncode != 0)

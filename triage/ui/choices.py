@@ -8,11 +8,19 @@ from __future__ import annotations
 
 from typing import Any
 
+# How storeys above ground are named, chosen when a survey is made (basements are B1, B2 …
+# either way): the ground storey G then 1, 2 …, or 1, 2, 3 … from the ground storey up.
+NAMINGS: tuple[tuple[str, str], ...] = (("G, 1, 2 … (ground storey G)", "G"),
+                                       ("1, 2, 3 … (ground storey 1)", "1"))
 
-def storey_labels(above: int, below: int) -> list[str]:
-    """Storey labels bottom to top: B2, B1 below ground, then G, 1, 2, … above."""
+
+def storey_labels(above: int, below: int, naming: str = "G") -> list[str]:
+    """Storey labels bottom to top: B2, B1 below ground, then G, 1, 2 … (or 1, 2, 3 …)."""
     labels = [f"B{i}" for i in range(below, 0, -1)]
-    labels += ["G" if i == 0 else str(i) for i in range(above)]
+    if naming == "1":
+        labels += [str(i + 1) for i in range(above)]
+    else:
+        labels += ["G" if i == 0 else str(i) for i in range(above)]
     return labels
 
 

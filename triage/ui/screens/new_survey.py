@@ -11,10 +11,27 @@ from textual.screen import Screen
 from textual.widgets import Button, Footer, Input, Static
 
 from triage import standards
-from triage.ui.choices import storey_labels
-from triage.ui.data import Refused, rule_of
+from triage.ui.choices import NAMINGS, storey_labels
+from triage.ui.data import Refused, rule_of, said
 from triage.ui.messages import FieldAccepted
-from triage.ui.widgets.field import Choice, Field
+from triage.ui.widgets.field import Choice, Field, parse_team, team_text, when_text
+
+
+def when_field(app: Any, label: str, path: str, value: Any, fid: str) -> Field:
+    """A date and time field; a time typed without offset takes the laptop's (or the test's)."""
+    from triage.ui.widgets.field import parse_when
+
+    def parse(text: str) -> str:
+        return parse_when(text, app.now().tzinfo)
+
+    return Field(label, path, value, show=when_text, parse=parse, required=True, id=fid,
+                 width=24, placeholder="YYYY-MM-DD HH:MM")
+
+
+def team_field(label: str, path: str, value: Any, fid: str) -> Field:
+    """The others of the team: 'Ana Rewi (NZ-42); Tom Hale'."""
+    return Field(label, path, value, show=team_text, parse=parse_team, id=fid, width=40,
+                 placeholder="name (id); name (id)")
 
 
 def system_options() -> list[tuple[str, str]]:
@@ -45,6 +62,8 @@ class NewSurveyScreen(Screen[str | None]):
             yield Field("address", "building.address", required=True, id="f-address", width=40)
             yield Field("use", "building.use", id="f-use", width=24,
                         placeholder="e.g. clinic")
+            yield Field("year built", "building.year_built", kind="int", id="f-year",
+                        placeholder="e.g. 1978")
             yield Field("latitude", "building.location.lat", kind="float", unit="deg",
                         id="f-lat")
             yield Field("longitude", "building.location.lon", kind="float", unit="deg",
@@ -58,6 +77,8 @@ class NewSurveyScreen(Screen[str | None]):
             yield Field("above ground", "storeys.above", 2, kind="int", required=True,
                         id="f-above")
             yield Field("below ground", "storeys.below", 0, kind="int", id="f-below")
+            yield Choice("named", "storeys.naming", list(NAMINGS),
+                         app.data.setting("last_storey_naming") or "G", id="f-naming", width=30)
             yield Field("typical height", "storeys.height_m", typical, kind="float", unit="m",
                         required=True, id="f-height")
             yield Static("Inspector", classes="section")
@@ -66,6 +87,14 @@ class NewSurveyScreen(Screen[str | None]):
                         id="f-inspector", width=30)
             yield Field("id", "inspection.inspector.id", app.data.setting("last_inspector_id"),
                         id="f-inspector-id", width=16)
+            yield team_field("team", "inspection.team", app.data.setting("last_team"), "f-team")
+            yield when_field(app, "date and time", "inspection.at", app.now(), "f-at")
+            yield Field("event", "inspection.event", app.data.setting("last_event"),
+                        id="f-event", width=40, placeholder="the earthquake or aftershock")
+            yield Field("weather", "inspection.weather", id="f-weather", width=30,
+                        placeholder="e.g. rain, dusk")
+            yield Field("not inspected", "inspection.not_inspected", id="f-not-inspected",
+                        width=40, placeholder="what could not be seen, and why")
             yield Static("Nothing is stored until the survey is created (ctrl+s); from then "
                          "on every field is saved as soon as it is accepted.", classes="hint")
             yield Button("create survey", id="create", compact=True)
@@ -123,15 +152,22 @@ class NewSurveyScreen(Screen[str | None]):
         }
         if values["f-use"]:
             building["use"] = values["f-use"]
+        if values["f-year"] is not None:
+            building["year_built"] = values["f-year"]
         if values["f-lat"] is not None or values["f-lon"] is not None:
             building["location"] = {"lat": values["f-lat"], "lon": values["f-lon"]}
         inspector = {"name": values["f-inspector"]}
         if values["f-inspector-id"]:
             inspector["id"] = values["f-inspector-id"]
+        naming = self.query_one("#f-naming", Choice).value() or "G"
         storeys = [{"label": lab, "height_m": height, "below_grade": lab.startswith("B")}
-                   for lab in storey_labels(above, below)]
-        return {"format": "triage-survey/1", "building": building,
-                "inspection": {"inspector": inspector}, "storeys": storeys}
+                   for lab in storey_labels(above, below, naming)]
+        inspection: dict[str, Any] = {"inspector": inspector, "at": values["f-at"]}
+        for key, fid in (("team", "f-team"), ("event", "f-event"), ("weather", "f-weather"),
+                         ("not_inspected", "f-not-inspected")):
+            if values[fid]:
+                inspection[key] = values[fid]
+        return {"building": building, "inspection": inspection, "storeys": storeys}
 
     def _field_for(self, message: str) -> Any:
         path = message.partition(":")[0]
@@ -162,11 +198,14 @@ class NewSurveyScreen(Screen[str | None]):
             f = self._field_for(str(err))
             if f is not None:
                 f.show_refused(rule_of(str(err)))
-            status.update(f"not created: {err}")
+            status.update(f"not created: {said(str(err))}")
             return
         app.data.remember("last_inspector_name", who)
         app.data.remember("last_inspector_id", data["inspection"]["inspector"].get("id"))
         app.data.remember("last_storey_height_m", data["storeys"][0]["height_m"])
+        app.data.remember("last_storey_naming", self.query_one("#f-naming", Choice).value())
+        app.data.remember("last_team", data["inspection"].get("team"))
+        app.data.remember("last_event", data["inspection"].get("event"))
         app.who = who
         self.dismiss(sid)
 

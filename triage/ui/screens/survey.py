@@ -30,9 +30,10 @@ from triage.ui.widgets.pane import ItemPane
 from triage.ui.widgets.photos import PhotosPane
 from triage.ui.widgets.readings import ReadingsPane
 from triage.ui.widgets.storey_pane import StoreyPane
+from triage.ui.widgets.survey_pane import SurveyPane
 from triage.ui.widgets.verdict import VerdictLine, verdict_lines
 
-TABS = ("storey", "readings", "members", "hazards", "photos")
+TABS = ("storey", "readings", "members", "hazards", "photos", "survey")
 WIDE = 150  # columns from which the full verdict sits beside the form
 
 
@@ -58,6 +59,8 @@ class SurveyScreen(Screen[None]):
         Binding("f7", "tab('members')", "members tab", priority=True, show=False),
         Binding("f8", "tab('hazards')", "hazards tab", priority=True, show=False),
         Binding("f9", "tab('photos')", "photos tab", priority=True, show=False),
+        Binding("f10", "tab('survey')", "building and inspection tab", priority=True,
+                show=False),
     ]
 
     def __init__(self, survey_id: str) -> None:
@@ -106,6 +109,8 @@ class SurveyScreen(Screen[None]):
                     yield HazardsPane(id="hazards-pane")
                 with TabPane("photos [dim]f9[/]", id="photos"):
                     yield PhotosPane(id="photos-pane")
+                with TabPane("survey [dim]f10[/]", id="survey"):
+                    yield SurveyPane(id="survey-pane")
             with VerticalScroll(id="side"):
                 yield Static("", id="side-verdict")
         yield VerdictLine(id="verdict-line")
@@ -168,6 +173,7 @@ class SurveyScreen(Screen[None]):
     def load_all(self, keep_forms: bool = False) -> None:
         """Redraw every pane for the storey in view."""
         self.query_one(StoreyPane).load(refill=not keep_forms)
+        self.query_one(SurveyPane).load(refill=not keep_forms)
         for pane in self.query(ItemPane).results():
             pane.reload(keep_form=keep_forms)
 
@@ -240,7 +246,7 @@ class SurveyScreen(Screen[None]):
         for node in widget.ancestors_with_self:
             if isinstance(node, ItemPane):
                 return bool(node.enter_pressed(widget))
-            if isinstance(node, StoreyPane):
+            if isinstance(node, (StoreyPane, SurveyPane)):
                 if isinstance(widget, Input):
                     self.focus_next()  # leaving the field saves it
                     return True
@@ -260,7 +266,8 @@ class SurveyScreen(Screen[None]):
             event.field.show_refused(rule_of(str(err)))
             return
         event.field.mark_saved(value=event.value)
-        self.after_save(rev, structural=event.path.endswith(".label"))
+        self.after_save(rev, structural=event.path.endswith(".label") or event.path.startswith(
+            ("building.", "inspection.")))
         pane = next((a for a in event.field.ancestors if isinstance(a, ItemPane)), None)
         if pane is not None:
             pane.retry_refused(event.field)

@@ -10,6 +10,9 @@ rule beside it, and nothing is saved.
 from __future__ import annotations
 
 import math
+import re
+from collections.abc import Callable
+from datetime import datetime, tzinfo
 from typing import Any
 
 from textual.app import ComposeResult
@@ -74,6 +77,75 @@ def show_text(value: Any) -> str:
     return str(value)
 
 
+WHEN_FORMATS = ("%Y-%m-%d %H:%M %z", "%Y-%m-%d %H:%M:%S %z", "%Y-%m-%d %H:%M",
+                "%Y-%m-%d %H:%M:%S", "%Y-%m-%dT%H:%M")
+
+
+def when_text(value: Any) -> str:
+    """A time as a field shows it: '2026-11-29 14:05 +13:00' (its own offset kept)."""
+    if value is None or value == "":
+        return ""
+    dt = value if isinstance(value, datetime) else datetime.fromisoformat(str(value))
+    text = dt.strftime("%Y-%m-%d %H:%M")
+    if dt.second:
+        text += dt.strftime(":%S")
+    off = dt.strftime("%z")
+    return f"{text} {off[:3]}:{off[3:]}" if off else text
+
+
+def parse_when(text: str, tz: tzinfo | None) -> str:
+    """A typed date and time as ISO 8601 with offset (the laptop's when none is typed)."""
+    text = " ".join(text.split())
+    if not text:
+        raise ValueError("required")
+    dt: datetime | None = None
+    for fmt in WHEN_FORMATS:
+        try:
+            dt = datetime.strptime(text, fmt)
+            break
+        except ValueError:
+            continue
+    if dt is None:
+        try:
+            dt = datetime.fromisoformat(text)
+        except ValueError:
+            raise ValueError("a date and time such as 2026-11-29 14:05") from None
+    if dt.tzinfo is None:
+        dt = dt.replace(tzinfo=tz) if tz is not None else dt.astimezone()
+    return dt.isoformat()
+
+
+_PERSON = re.compile(r"^(?P<name>[^()]*?)\s*(?:\((?P<id>[^()]*)\))?$")
+
+
+def team_text(value: Any) -> str:
+    """Team members as a field shows them: 'Ana Rewi (NZ-42); Tom Hale'."""
+    out = []
+    for p in value or ():
+        name = p.get("name") if isinstance(p, dict) else p.name
+        pid = p.get("id") if isinstance(p, dict) else p.id
+        out.append(f"{name} ({pid})" if pid else str(name))
+    return "; ".join(out)
+
+
+def parse_team(text: str) -> list[dict[str, str]]:
+    """'Ana Rewi (NZ-42); Tom Hale' as the survey keeps a team: names with their ids."""
+    out: list[dict[str, str]] = []
+    for part in text.split(";"):
+        part = part.strip()
+        if not part:
+            continue
+        m = _PERSON.match(part)
+        if m is None or not m.group("name").strip():
+            raise ValueError(f"{part!r}: a name, then its id in brackets if there is one; "
+                             "people separated by ;")
+        person = {"name": m.group("name").strip()}
+        if m.group("id") and m.group("id").strip():
+            person["id"] = m.group("id").strip()
+        out.append(person)
+    return out
+
+
 class Saving:
     """The saved / refused status shared by the field widgets."""
 
@@ -125,14 +197,17 @@ class Field(Saving, Horizontal):
     def __init__(self, label: str, path: str | None, value: Any = None, *, kind: str = "text",
                  unit: str = "", required: bool = False, width: int | None = None,
                  placeholder: str = "", password: bool = False, id: str | None = None,
-                 classes: str | None = None) -> None:
+                 classes: str | None = None, show: Callable[[Any], str] | None = None,
+                 parse: Callable[[str], Any] | None = None) -> None:
         super().__init__(id=id, classes=classes)
         self.label_text = label
         self.path = path
         self.kind = kind
         self.unit = unit
         self.required = required
-        self.saved_text = show_text(value)
+        self.show = show or show_text
+        self.parse = parse
+        self.saved_text = self.show(value)
         self._width = width
         self.input = Input(self.saved_text, placeholder=placeholder or unit, compact=True,
                            password=password, select_on_focus=True)
@@ -157,13 +232,17 @@ class Field(Saving, Horizontal):
 
     def set_value(self, value: Any, saved: bool = True) -> None:
         """Put a value in the field (as stored)."""
-        t = show_text(value)
+        t = self.show(value)
         self.input.value = t
         if saved:
             self.saved_text = t
 
     def value(self) -> Any:
         """The field's value; ValueError with the rule when it breaks the field's own rule."""
+        if self.parse is not None:
+            if not self.input.value.strip() and not self.required:
+                return None
+            return self.parse(self.input.value)
         return parse_value(self.input.value, self.kind, self.unit, self.required)
 
     def accept(self, force: bool = False) -> None:

@@ -16,7 +16,7 @@ from triage.ui.messages import FieldAccepted
 from triage.ui.widgets.field import Choice, Field, Saving, set_text
 from triage.ui.widgets.pane import ItemPane, values_of
 
-KEYS = ["kind", "count", "ductility", "crack_mm", "crack_sd_mm", "ref", "dir",
+KEYS = ["kind", "count", "ductility", "crack_mm", "crack_sd_mm", "ref", "dir", "weight",
         "override_reason", "damage_class"]
 
 
@@ -197,8 +197,10 @@ class MembersPane(ItemPane):
             Field("ref", None, id="m-ref", placeholder="e.g. C3"),
             Choice("acts in", None, [("x", "x"), ("y", "y")], None, allow_blank=True,
                    id="m-dir"),
+            Field("weight", None, 1, kind="float", id="m-weight",
+                  placeholder="1: share of the storey"),
         ]
-        for widget, k in zip(w, KEYS[:7], strict=True):
+        for widget, k in zip(w, KEYS[:8], strict=True):
             widget.key = k
         yield from w
         self.signs = SignChecks(id="m-signs")
@@ -221,6 +223,7 @@ class MembersPane(ItemPane):
             for k in ("crack_mm", "crack_sd_mm", "ref", "override_reason"):
                 self.form[k].set_value(None)
             self.form["count"].set_value(1)
+            self.form["weight"].set_value(1.0)
             self.form["dir"].set_value(None)
             self.form["damage_class"].set_value(None)
             self.form["ductility"].set_value("ductile")
@@ -276,6 +279,8 @@ class MembersPane(ItemPane):
         data = values_of(self.form, KEYS)
         if "count" not in data:
             raise ValueError("count: how many members the group holds is needed")
+        if data.get("weight") == 1:
+            del data["weight"]  # the default: left out of the survey
         signs = self.signs.value()
         if signs:
             data["signs"] = signs

@@ -15,8 +15,11 @@ from triage.ui.widgets.field import Choice, Field, set_text, show_text
 from triage.ui.widgets.pane import ItemPane, values_of
 from triage.ui.widgets.verdict import storey_drift_text
 
-OFFSET_KEYS = ["dir", "offset_mm", "gauge_mm", "sd_mm", "where"]
-TILT_KEYS = ["dir", "tilt_deg", "sd_deg", "where"]
+OFFSET_KEYS = ["dir", "offset_mm", "where", "gauge_mm", "sd_mm", "baseline_mm",
+               "baseline_sd_mm"]
+TILT_KEYS = ["dir", "tilt_deg", "where", "sd_deg", "baseline_deg", "baseline_sd_deg"]
+ALL_KEYS = ["dir", "offset_mm", "tilt_deg", "where", "gauge_mm", "sd_mm", "sd_deg",
+            "baseline_mm", "baseline_sd_mm", "baseline_deg", "baseline_sd_deg"]
 
 
 def reading_text(r: Reading) -> str:
@@ -75,26 +78,33 @@ class ReadingsPane(ItemPane):
         by = Choice("taken as", None, [("offset over a gauge", "offset"),
                                        ("tilt angle", "tilt")], "offset", id="r-by")
         off = Field("offset", None, kind="float", unit="mm", id="r-offset")
+        tilt = Field("tilt", None, kind="float", unit="deg", id="r-tilt")
+        where = Field("where", None, id="r-where", width=30, placeholder="e.g. grid B2")
         gauge = Field("gauge length", None, kind="float", unit="mm", id="r-gauge")
         sd = Field("uncertainty", None, kind="float", unit="mm", id="r-sd",
                    placeholder="default")
-        tilt = Field("tilt", None, kind="float", unit="deg", id="r-tilt")
         sd_deg = Field("uncertainty", None, kind="float", unit="deg", id="r-sd-deg",
                        placeholder="default")
-        where = Field("where", None, id="r-where", width=30, placeholder="e.g. grid B2")
-        for w, k in ((d, "dir"), (off, "offset_mm"), (gauge, "gauge_mm"), (sd, "sd_mm"),
-                     (tilt, "tilt_deg"), (sd_deg, "sd_deg"), (where, "where")):
+        base = Field("as-built", None, kind="float", unit="mm", id="r-base",
+                     placeholder="offset there")
+        base_sd = Field("as-built ±", None, kind="float", unit="mm", id="r-base-sd",
+                        placeholder="default")
+        base_deg = Field("as-built", None, kind="float", unit="deg", id="r-base-deg",
+                         placeholder="tilt there")
+        base_sd_deg = Field("as-built ±", None, kind="float", unit="deg", id="r-base-sd-deg",
+                            placeholder="default")
+        pairs = ((d, "dir"), (off, "offset_mm"), (tilt, "tilt_deg"), (where, "where"),
+                 (gauge, "gauge_mm"), (sd, "sd_mm"), (sd_deg, "sd_deg"), (base, "baseline_mm"),
+                 (base_sd, "baseline_sd_mm"), (base_deg, "baseline_deg"),
+                 (base_sd_deg, "baseline_sd_deg"))
+        for w, k in pairs:
             w.key = k
         by.key = ""
         self.by = by
         yield d
         yield by
-        yield off
-        yield gauge
-        yield sd
-        yield tilt
-        yield sd_deg
-        yield where
+        for w, _ in pairs[1:]:
+            yield w
         self.drift_line = Static("", classes="pane-note drift-line")
         yield self.drift_line
 
@@ -103,9 +113,9 @@ class ReadingsPane(ItemPane):
 
     def _show_kind(self) -> None:
         tilt = self._tilt()
-        for k in ("offset_mm", "gauge_mm", "sd_mm"):
+        for k in ("offset_mm", "gauge_mm", "sd_mm", "baseline_mm", "baseline_sd_mm"):
             self.form[k].display = not tilt
-        for k in ("tilt_deg", "sd_deg"):
+        for k in ("tilt_deg", "sd_deg", "baseline_deg", "baseline_sd_deg"):
             self.form[k].display = tilt
         self.by.select.disabled = self.editing is not None
 
@@ -115,7 +125,8 @@ class ReadingsPane(ItemPane):
         if item is None:
             keep_dir = self.form["dir"].value() or "x"
             self.form["dir"].set_value(keep_dir)
-            for k in ("offset_mm", "tilt_deg", "where"):
+            for k in ("offset_mm", "tilt_deg", "where", "baseline_mm", "baseline_sd_mm",
+                      "baseline_deg", "baseline_sd_deg"):
                 self.form[k].set_value(None)
             gauge = app.data.setting("last_gauge_mm")
             self.form["gauge_mm"].set_value(float(gauge) if gauge else None)
@@ -123,7 +134,7 @@ class ReadingsPane(ItemPane):
             self.form["sd_deg"].set_value(app.data.setting("last_sd_deg"))
         else:
             self.by.set_value("tilt" if item.tilt_deg is not None else "offset")
-            for k in ("dir", "offset_mm", "gauge_mm", "sd_mm", "tilt_deg", "sd_deg", "where"):
+            for k in ALL_KEYS:
                 self.form[k].set_value(getattr(item, k))
         self._show_kind()
         self.preview()

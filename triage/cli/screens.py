@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import argparse
+import shutil
+import sys
 import tempfile
 from pathlib import Path
 
@@ -16,7 +18,17 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
     p.set_defaults(func=run)
 
 
+def _terminal() -> None:
+    """Refuse in one line when there is no terminal to draw on (the screens draw on stderr)."""
+    streams = (sys.stdin, sys.__stderr__)
+    if not all(s is not None and s.isatty() for s in streams):
+        raise UserError("the screens need a terminal (input and standard error are not one); "
+                        "run triage in a terminal, or a command such as triage list "
+                        "(triage --help lists them)")
+
+
 def _open(db: Path, samples: Path | None = None) -> int:
+    _terminal()
     from triage.ui.app import build_app
 
     app = build_app(db, demo_samples=samples)
@@ -30,8 +42,14 @@ def run(args: argparse.Namespace) -> int:
     """`triage demo`: the screens on a scratch database loaded with the sample surveys."""
     from triage.resources import samples_dir
 
+    _terminal()
     folder = Path(tempfile.mkdtemp(prefix="triage-demo-"))
-    return _open(folder / "demo.db", samples_dir())
+    try:
+        return _open(folder / "demo.db", samples_dir())
+    finally:
+        shutil.rmtree(folder, ignore_errors=True)
+        if folder.exists():
+            print(f"triage demo: its scratch database is left in {folder}", file=sys.stderr)
 
 
 def run_default(args: argparse.Namespace) -> int:

@@ -172,6 +172,14 @@ class Saving:
         self.status.set_class(False, "refused")
         self.status.set_class(False, "saved")
 
+    def on_descendant_focus(self, event: Any) -> None:
+        """The cursor came into this field: its label marks it."""
+        self.set_class(True, "-here")  # type: ignore[attr-defined]
+
+    def on_descendant_blur(self, event: Any) -> None:
+        """The cursor left this field."""
+        self.set_class(False, "-here")  # type: ignore[attr-defined]
+
     def clear_refusal(self) -> None:
         """The value was changed: a refusal of the old one no longer stands beside it."""
         if self.status.has_class("refused"):

@@ -23,13 +23,14 @@ from triage.ui.widgets.field import (
 )
 
 # (id, path, label, options): the fields in the order an inspector fills them in
-TEXT = (("v-name", "building.name", "name", {"required": True, "width": 40}),
-        ("v-address", "building.address", "address", {"required": True, "width": 40}),
-        ("v-use", "building.use", "use", {"width": 24}),
-        ("v-year", "building.year_built", "year built", {"kind": "int"}))
-INSPECTION = (("v-event", "inspection.event", "event", {"width": 40}),
-              ("v-weather", "inspection.weather", "weather", {"width": 30}),
-              ("v-not", "inspection.not_inspected", "not inspected", {"width": 40}))
+Spec = tuple[tuple[str, str, str, dict[str, Any]], ...]
+TEXT: Spec = (("v-name", "building.name", "name", {"required": True, "width": 40}),
+              ("v-address", "building.address", "address", {"required": True, "width": 40}),
+              ("v-use", "building.use", "use", {"width": 24}),
+              ("v-year", "building.year_built", "year built", {"kind": "int"}))
+INSPECTION: Spec = (("v-event", "inspection.event", "event", {"width": 40}),
+                    ("v-weather", "inspection.weather", "weather", {"width": 30}),
+                    ("v-not", "inspection.not_inspected", "not inspected", {"width": 40}))
 
 
 def _get(obj: Any, path: str) -> Any:

@@ -52,7 +52,7 @@ def two_surveys() -> list[dict[str, Any]]:
 def db(tmp_path: Path) -> Path:
     """A database holding the two surveys."""
     path = tmp_path / "field.db"
-    with Store.open(path) as st:
+    with Store.open(path, clock=lambda: NOW.astimezone(timezone.utc)) as st:
         for d in two_surveys():
             st.add_survey(parse_survey(d), "Tess Tester", "test")
         st.settings_set("last_inspector_name", "Tess Tester")

@@ -89,9 +89,9 @@ async def test_history_lists_changes_and_undoes(db: Path, make_app) -> None:
         assert isinstance(app.screen, HistoryScreen)
         log = app.screen.query_one("#log")
         newest = log.get_row_at(0)
-        assert newest[1] == "height m (storey #1)" and newest[2] == "3.2" and newest[3] == "4.1"
+        assert newest[1] == "height m (storey #1)" and newest[2] == "3.2 m" and newest[3] == "4.1 m"
         detail = str(app.screen.query_one("#history-detail").render())
-        assert "revision 2" in detail and "height m (storey #1): 3.2 → 4.1" in detail
+        assert "revision 2" in detail and "height m (storey #1): 3.2 m → 4.1 m" in detail
         await pilot.press("ctrl+z")
         await settle(pilot)
         status = str(app.screen.query_one("#history-status").render())

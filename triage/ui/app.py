@@ -21,11 +21,22 @@ from textual.worker import Worker, WorkerState
 
 # One accent hue (a slate blue) in stronger or weaker weight; no traffic-light colours: the
 # theme's success, warning and error colours are the same hue, so no widget turns green,
-# amber or red.
+# amber or red. Three themes of that one hue: dark, light (for sunlight) and high contrast;
+# meaning is carried by words and marks (tier words, ✓ saved, ✗ not saved, the reversed
+# label of the focused field), never by colour alone.
 ACCENT = "#6c8ebf"
 THEME = Theme(name="triage", primary=ACCENT, secondary="#4f6a94", accent=ACCENT,
               success=ACCENT, warning=ACCENT, error="#93b1dc", foreground="#dde3ea",
               background="#15191f", surface="#1d232b", panel="#262e38", dark=True)
+LIGHT = Theme(name="triage-light", primary="#35598c", secondary="#4f6a94", accent="#35598c",
+              success="#35598c", warning="#35598c", error="#284670", foreground="#111820",
+              background="#f7f8fa", surface="#eceff4", panel="#dde3ec", dark=False)
+CONTRAST = Theme(name="triage-contrast", primary="#a8c8ff", secondary="#a8c8ff",
+                 accent="#a8c8ff", success="#a8c8ff", warning="#a8c8ff", error="#c9dcff",
+                 foreground="#ffffff", background="#000000", surface="#000000",
+                 panel="#202020", dark=True)
+THEMES = {"triage": ("dark", THEME), "triage-light": ("light", LIGHT),
+          "triage-contrast": ("high contrast", CONTRAST)}
 
 
 class TriageApp(App[None]):
@@ -37,6 +48,8 @@ class TriageApp(App[None]):
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("ctrl+q", "quit", "quit", priority=True, show=False),
         Binding("f1", "help", "help", priority=True),
+        Binding("f12", "next_theme", "theme: dark, light, high contrast", priority=True,
+                show=False),
         # Focus moves at once, before the next key is taken (triage/ui/focus.py).
         Binding("tab", "next_field(1)", "next field", priority=True, show=False),
         Binding("shift+tab", "next_field(-1)", "previous field", priority=True, show=False),
@@ -88,9 +101,12 @@ class TriageApp(App[None]):
     def on_mount(self) -> None:
         """Draw the survey list at once; open the database behind it."""
         from triage.ui.screens.survey_list import SurveyListScreen
+        from triage.ui.settings import load_settings
 
-        self.register_theme(THEME)
-        self.theme = "triage"
+        for _, theme in THEMES.values():
+            self.register_theme(theme)
+        saved = load_settings().get("theme")
+        self.theme = saved if saved in THEMES else "triage"
         self.push_screen(SurveyListScreen())
         # after the first frame, so the heavy imports do not hold it up
         self.call_after_refresh(self.load_worker)
@@ -173,6 +189,18 @@ class TriageApp(App[None]):
         await drain(widget)
         if self.focused is not widget or not handler(widget):
             raise SkipAction()
+
+    def action_next_theme(self) -> None:
+        """F12: the next theme (dark, light, high contrast), remembered for next time."""
+        from triage.ui.settings import save_setting
+
+        names = list(THEMES)
+        name = names[(names.index(self.theme) + 1) % len(names)] if self.theme in names \
+            else names[0]
+        self.theme = name
+        kept = save_setting("theme", name)
+        self.notify(f"theme: {THEMES[name][0]}" + ("" if kept else
+                    " (for this session: the settings file could not be written)"))
 
     def action_help(self) -> None:
         """Show the keys of the screen in view."""

@@ -67,10 +67,10 @@ def describe_change(op: str, path: str, new: Any = None) -> str:
     return f"undone: {text}" if op == "undo" else text
 
 
-def _local(at: str, fmt: str) -> str:
-    """A stored UTC time stamp as this laptop's local time."""
+def _local(at: str, fmt: str, tz: Any = None) -> str:
+    """A stored UTC time stamp as this laptop's local time (the app clock's zone)."""
     try:
-        return datetime.fromisoformat(at).astimezone().strftime(fmt)
+        return datetime.fromisoformat(at).astimezone(tz).strftime(fmt)
     except ValueError:
         return at
 
@@ -113,9 +113,10 @@ class HistoryScreen(Screen[bool]):
         t.clear()
         self.entries = {str(c.seq): c for c in app.data.changes(self.survey_id)}
         for key, c in self.entries.items():
-            what = describe_change(c.op, c.path, c.new)
-            t.add_row(_local(str(c.at), "%d %b %H:%M"), _short(what, 28), _short(c.old, 10),
-                      _short(c.new, 10), _short(c.who, 8), key=key)
+            what = self.what(c)
+            t.add_row(_local(str(c.at), "%d %b %H:%M", self.tz), _short(what, 28),
+                      _short(self.value(c, c.old), 10), _short(self.value(c, c.new), 10),
+                      _short(c.who, 8), key=key)
         t.focus()
         if not self.entries:
             self.query_one("#history-detail", Static).update("")
@@ -125,11 +126,35 @@ class HistoryScreen(Screen[bool]):
         c = self.entries.get(str(event.row_key.value))
         if c is None:
             return
-        what = describe_change(c.op, c.path, c.new)
-        values = "" if c.op in _OP else f": {_short(c.old, 60)} → {_short(c.new, 60)}"
+        what = self.what(c)
+        values = "" if c.op in _OP else (f": {_short(self.value(c, c.old), 60)} → "
+                                         f"{_short(self.value(c, c.new), 60)}")
         self.query_one("#history-detail", Static).update(
-            f"{_local(str(c.at), '%Y-%m-%d %H:%M:%S %Z')}, {c.who}, revision {c.revision}\n"
-            f"{what}{values}")
+            f"{_local(str(c.at), '%Y-%m-%d %H:%M %z', self.tz)}, {c.who}, revision "
+            f"{c.revision}\n{what}{values}")
+
+    @property
+    def tz(self) -> Any:
+        """The zone times are shown in: the laptop's (or the test clock's)."""
+        app: Any = self.app
+        return app.now().tzinfo
+
+    def what(self, c: Any) -> str:
+        """A change in words; a survey made on this screen was created, not imported."""
+        if c.op == "import":
+            app: Any = self.app
+            row = app.data.row(self.survey_id)
+            if row is not None and row.source == "new survey":
+                return "survey created"
+        return describe_change(c.op, c.path, c.new)
+
+    def value(self, c: Any, v: Any) -> str:
+        """An old or new value in words, with its unit; a whole survey is not shown."""
+        from triage.standards.vocabulary import value_words
+
+        if c.op in _OP or c.path in ("", "hidden"):
+            return "—"
+        return value_words(c.path, v)
 
     def action_undo(self) -> None:
         """Undo the last change not yet undone."""

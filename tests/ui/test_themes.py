@@ -1,0 +1,109 @@
+"""Themes: dark, light and high contrast, switched with F12 and remembered outside the database;
+and a snapshot at 80 x 24 of every screen in each theme."""
+
+from __future__ import annotations
+
+import json
+import os
+from pathlib import Path
+
+import pytest
+from drive import settle, type_in
+
+from triage.ui.app import THEMES
+
+SID = "11111111-1111-4111-8111-111111111111"
+
+
+async def test_f12_switches_and_remembers_the_theme(db: Path, make_app) -> None:
+    home = Path(os.environ["TRIAGE_HOME"])
+    app = make_app(db)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        assert app.theme == "triage"
+        await pilot.press("f12")
+        await settle(pilot)
+        assert app.theme == "triage-light"
+    assert json.loads((home / "settings.json").read_text())["theme"] == "triage-light"
+    again = make_app(db)
+    async with again.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        assert again.theme == "triage-light"
+        await pilot.press("f12", "f12")
+        await settle(pilot)
+        assert again.theme == "triage"  # round: light, high contrast, dark
+
+
+def _start(theme: str) -> None:
+    home = Path(os.environ["TRIAGE_HOME"])
+    home.mkdir(parents=True, exist_ok=True)
+    (home / "settings.json").write_text(json.dumps({"theme": theme}))
+
+
+async def _to_list(pilot) -> None:
+    await settle(pilot)
+
+
+async def _to_new(pilot) -> None:
+    await settle(pilot)
+    await pilot.press("ctrl+n")
+    await settle(pilot)
+
+
+async def _to_logging(pilot) -> None:
+    await settle(pilot)
+    await type_in(pilot, "r-offset", "4.5", enter=False)
+
+
+async def _to_members(pilot) -> None:
+    await settle(pilot)
+    await pilot.press("f7")
+    await settle(pilot)
+
+
+async def _to_survey_tab(pilot) -> None:
+    await settle(pilot)
+    await pilot.press("f10")
+    await settle(pilot)
+
+
+async def _to_verdict(pilot) -> None:
+    await settle(pilot)
+    await pilot.press("f2")
+    await settle(pilot)
+
+
+async def _to_history(pilot) -> None:
+    await settle(pilot)
+    await pilot.press("f3")
+    await settle(pilot)
+
+
+async def _to_report(pilot) -> None:
+    await settle(pilot)
+    await pilot.press("f4")
+    await settle(pilot)
+
+
+async def _to_help(pilot) -> None:
+    await settle(pilot)
+    await pilot.press("f1")
+    await settle(pilot)
+
+
+SCREENS = {"list": (_to_list, False), "new-survey": (_to_new, False),
+           "readings": (_to_logging, True), "members": (_to_members, True),
+           "survey-tab": (_to_survey_tab, True), "verdict": (_to_verdict, True),
+           "history": (_to_history, True), "report": (_to_report, True),
+           "help": (_to_help, True)}
+
+
+@pytest.mark.parametrize("theme", list(THEMES))
+@pytest.mark.parametrize("screen", list(SCREENS))
+def test_every_screen_in_each_theme(theme: str, screen: str, db: Path, make_app,
+                                    snap_compare) -> None:
+    _start(theme)
+    before, opened = SCREENS[screen]
+    kw = {"report_dir": Path("/srv/reports")}  # shown on the report screen, never written
+    app = make_app(db, open_survey=SID, **kw) if opened else make_app(db, **kw)
+    assert snap_compare(app, terminal_size=(80, 24), run_before=before)

@@ -120,3 +120,14 @@ def test_new_fields_and_provisional_storeys_are_printed():
     for want in ("1968", "Mere Kawa (id T-9)", "Kōwhai Bay swarm, main shock",
                  "roof space above level 1", "rain, 12 °C", "storey 1 (no member group)"):
         assert want in allt, want
+
+
+def test_a_reading_whose_place_is_at_the_text_limit_is_still_reported():
+    # A "where" of 2,000 characters (the model's text limit) makes a readings row taller than a
+    # page; the row must split across pages rather than the report being refused.
+    d = clinic_dict()
+    place = " ".join(["north-west corner column face beside the stair"] * 42)[:2000]
+    d["storeys"][0]["readings"][0]["where"] = place
+    survey = parse_survey(d)
+    text = flat("".join(pages(render_report(survey, assess(survey)))))
+    assert flat(place[:200]) in text and flat(place[-40:]) in text

@@ -57,7 +57,8 @@ def _p(text: str, style: str = "body", markup: str | None = None) -> Paragraph:
 
 def _grid(rows: list[list[Any]], widths: list[float], header: bool = True,
           zebra: bool = True) -> Table:
-    t = Table(rows, colWidths=widths, repeatRows=1 if header else 0)
+    # splitInRow: a row taller than a page (a 2,000-character "where") splits across pages.
+    t = Table(rows, colWidths=widths, repeatRows=1 if header else 0, splitInRow=1)
     regular, bold = register()
     cmds: list[tuple[Any, ...]] = [
         ("FONTNAME", (0, 0), (-1, -1), regular),

@@ -1,11 +1,7 @@
-"""The survey: the interchange format `triage-survey/2` as pydantic models.
+"""The survey's blocks as frozen pydantic models, and the whole `Survey`.
 
-`triage-survey/2` is `triage-survey/1` plus optional keys; files of either format are read,
-and every survey is written as `/2` (see docs/formats.md).
-
-Data is validated once, here, at the edge (a form field, an imported file); the assessment
-trusts it. Every rule a user can break has a message naming the field path and the rule
-(`SurveyError`, built by `parse_survey` / `format_error`).
+Photo, location, systems, building, inspector, inspection, reading, member group, storey and
+hazard; the survey derives its ids and gives its canonical text.
 """
 
 from __future__ import annotations
@@ -13,88 +9,32 @@ from __future__ import annotations
 import json
 import math
 import uuid
-from typing import Annotated, Any, Literal, get_args
+from typing import Annotated, Any, Literal
 
-from pydantic import (
-    AfterValidator,
-    AwareDatetime,
-    BaseModel,
-    BeforeValidator,
-    ConfigDict,
-    Field,
-    StringConstraints,
-    ValidationError,
-    WithJsonSchema,
-    model_validator,
-)
+from pydantic import AfterValidator, AwareDatetime, Field, model_validator
 
 from triage import model_rules as rules
 from triage import standards
-from triage.errors import InputRefused
 from triage.model_rules import RuleBroken
 
-FORMAT = "triage-survey/2"
-"""The format every survey is written as."""
-FORMATS: tuple[str, ...] = ("triage-survey/1", FORMAT)
-"""The formats this version reads (each a superset of the one before)."""
-
-# The optional keys `/2` added, by where they sit: a survey's derived id is taken over its
-# text as `/1` wrote it, so these are left out of that text when absent (ids do not change).
-_V2_KEYS: dict[str, tuple[str, ...]] = {
-    "building": ("year_built",),
-    "inspection": ("team", "event", "not_inspected", "weather"),
-    "reading": ("baseline_sd_mm", "baseline_sd_deg"),
-    "photo": ("sha256",),
-}
-
-# Ids absent from a file are derived as UUID 5 under this namespace of ours.
-ID_NAMESPACE = uuid.UUID("6f1c0c3e-2b9a-5d4e-9a61-7d2f0b8e4c11")
-
-Dir = Literal["x", "y"]
-MemberKind = Literal["column", "wall", "beam", "brace", "connection", "slab", "infill"]
-MEMBER_KINDS: tuple[str, ...] = get_args(MemberKind)   # the same kinds, as a tuple to iterate
-DamageClass = standards.DamageClass
-Access = Literal["full", "partial", "none"]
-
-
-def _known(keys: tuple[str, ...], what: str, value: str) -> str:
-    if value not in keys:
-        raise ValueError(f"{value!r} is not a known {what} (known: {', '.join(keys)})")
-    return value
-
-
-def _system(value: str) -> str:
-    return _known(standards.system_keys(), "structural system", value)
-
-
-def _sign(value: str) -> str:
-    return _known(standards.sign_keys(), "damage sign", value)
-
-
-def _hazard(value: str) -> str:
-    return _known(standards.hazard_keys(), "hazard kind", value)
-
-
-# Numbers are finite, of at most 15 digits before the point, never true/false or text; text
-# holds no lone surrogate and has a length limit (triage.model_rules has the limits).
-Num = Annotated[float, BeforeValidator(rules.strict_number)]
-Int = Annotated[int, BeforeValidator(rules.strict_integer)]
-Text = Annotated[str, StringConstraints(max_length=rules.MAX_TEXT),
-                 BeforeValidator(rules.plain_text)]
-Notes = Annotated[str, StringConstraints(max_length=rules.MAX_NOTES),
-                  BeforeValidator(rules.plain_text)]
-
-# Keys checked against the tables of triage.standards (one table each; never redefined here).
-SystemKey = Annotated[str, AfterValidator(_system),
-                      WithJsonSchema({"type": "string", "enum": list(standards.system_keys())})]
-SignKey = Annotated[str, AfterValidator(_sign),
-                    WithJsonSchema({"type": "string", "enum": list(standards.sign_keys())})]
-HazardKey = Annotated[str, AfterValidator(_hazard),
-                      WithJsonSchema({"type": "string", "enum": list(standards.hazard_keys())})]
-
-
-class _Model(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True, validate_default=True)
+from .fields import (
+    _V2_KEYS,
+    FORMAT,
+    FORMATS,
+    ID_NAMESPACE,
+    Access,
+    DamageClass,
+    Dir,
+    HazardKey,
+    Int,
+    MemberKind,
+    Notes,
+    Num,
+    SignKey,
+    SystemKey,
+    Text,
+    _Model,
+)
 
 
 class Photo(_Model):
@@ -408,180 +348,3 @@ class Survey(_Model):
 def canonical_json(data: Any) -> str:
     """Sorted keys, no spaces, UTF-8 characters kept: the canonical text of JSON data."""
     return json.dumps(data, sort_keys=True, separators=(",", ":"), ensure_ascii=False)
-
-
-class SurveyError(InputRefused, ValueError):
-    """A survey broke a rule; `str()` is one line naming the field path and the rule."""
-
-    def __init__(self, message: str, all_messages: list[str] | None = None) -> None:
-        super().__init__(message)
-        self.all_messages = all_messages or [message]
-
-
-def _loc(loc: tuple[int | str, ...]) -> tuple[int | str, ...]:
-    """A pydantic location without the names of validators and unions."""
-    return tuple(p for p in loc if not (isinstance(p, str) and p.startswith(
-        ("function-", "tagged-union", "json-or-python", "lax-or-strict"))))
-
-
-def _rule(e: Any) -> tuple[tuple[int | str, ...], str]:
-    """(path, rule) of one pydantic error, the rule in our words with its limit."""
-    loc = _loc(tuple(e.get("loc", ())))
-    kind = e.get("type", "")
-    ctx = e.get("ctx") or {}
-    cause = ctx.get("error")
-    if isinstance(cause, RuleBroken):
-        return loc + cause.path, cause.rule
-    if kind == "extra_forbidden":
-        return loc, f"unknown key {loc[-1]!r} (not part of {FORMAT})"
-    if kind == "missing":
-        return loc, "required field is missing"
-    if kind == "string_too_long":
-        n = len(e["input"]) if isinstance(e.get("input"), str) else 0
-        return loc, f"{n:,} characters; at most {ctx.get('max_length', 0):,}"
-    if kind == "too_long":
-        return loc, (f"{ctx.get('actual_length', 0):,} items; at most "
-                     f"{ctx.get('max_length', 0):,}")
-    msg = str(e.get("msg", ""))
-    for prefix in ("Value error, ", "Assertion failed, "):
-        if msg.startswith(prefix):
-            msg = msg[len(prefix):]
-    if msg.startswith("Input should"):
-        msg = "must" + msg[len("Input should"):]
-    return loc, (msg[0].lower() + msg[1:]) if msg else kind
-
-
-def error_lines(err: ValidationError, doc: Any = None,
-                prefix: tuple[int | str, ...] = ()) -> list[str]:
-    """One line per pydantic error: `field.path: the rule (the field in words)`.
-
-    `doc` is the whole survey's data, for naming storeys by label; `prefix` the path of the
-    part validated when it is not the whole survey (the store validates one item at a time).
-    """
-    lines = []
-    errors = err.errors(include_url=False)
-    locs = [_loc(tuple(e.get("loc", ()))) for e in errors]
-    for e, loc in zip(errors, locs, strict=True):
-        # A list left short only because its items failed is a consequence, not a rule broken.
-        if e.get("type") == "too_short" and any(
-                other[:len(loc)] == loc and len(other) > len(loc) for other in locs):
-            continue
-        path, rule = _rule(e)
-        lines.append(rules.line(prefix + path, rule, doc))
-    return lines
-
-
-def format_error(err: ValidationError, doc: Any = None,
-                 prefix: tuple[int | str, ...] = ()) -> str:
-    """The first error as one line, with a count of the rest."""
-    lines = error_lines(err, doc, prefix)
-    more = f" (and {len(lines) - 1} more)" if len(lines) > 1 else ""
-    return lines[0] + more
-
-
-def rule_error(err: RuleBroken, doc: Any = None, prefix: tuple[int | str, ...] = ()) -> str:
-    """A rule broken outside pydantic (the store's edit API calls the rules) as one line."""
-    return rules.line(prefix + err.path, err.rule, doc)
-
-
-def parse_survey(data: Any) -> Survey:
-    """Validate survey JSON data; raise `SurveyError` with one line naming field and rule."""
-    if not isinstance(data, dict):
-        raise SurveyError("(survey): a survey is a JSON object")
-    fmt = data.get("format")
-    if fmt is not None and fmt not in FORMATS:
-        shown = fmt if isinstance(fmt, str) and len(fmt) <= 40 and fmt.isprintable() else "it"
-        raise SurveyError(f"format: {shown!r} is not a survey format this version reads "
-                          f"({', '.join(FORMATS)}); a newer triage may read it")
-    try:
-        return Survey.model_validate(data)
-    except ValidationError as err:
-        lines = error_lines(err, data)
-        more = f" (and {len(lines) - 1} more)" if len(lines) > 1 else ""
-        raise SurveyError(lines[0] + more, lines) from None
-    except RecursionError:   # only reachable by data built in Python: files are depth-checked
-        raise SurveyError(f"(survey): nested over {rules.MAX_DEPTH} levels deep") from None
-
-
-def _object(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
-    """A JSON object whose keys are text (a lone surrogate in a key is refused, as in values)."""
-    for key, _ in pairs:
-        try:
-            rules.plain_text(key)
-        except ValueError as err:
-            raise SurveyError(f"(file): a key {err}") from None
-    return dict(pairs)
-
-
-def load_json_text(text: str) -> Any:
-    """JSON data of a survey file's text, checked for depth and number size before parsing.
-
-    Raises `SurveyError` (one line, with line and column) for text that is not JSON, nests
-    over 20 levels or holds a number of over 15 digits before the point.
-    """
-    try:
-        rules.check_json_text(text)
-    except RuleBroken as err:
-        raise SurveyError(f"(file): {err.rule}") from None
-    try:
-        return json.loads(text, object_pairs_hook=_object)
-    except SurveyError:
-        raise
-    except json.JSONDecodeError as err:
-        raise SurveyError(f"(file): not JSON: {err.msg} at line {err.lineno} column {err.colno}"
-                          ) from None
-    except (ValueError, RecursionError) as err:   # the scan above should leave none
-        raise SurveyError(f"(file): not JSON a survey may hold ({type(err).__name__})"
-                          ) from None
-
-
-def parse_survey_text(text: str) -> Survey:
-    """Parse and validate a survey file's text."""
-    return parse_survey(load_json_text(text))
-
-
-def survey_warnings(survey: Survey) -> list[str]:
-    """Kept-but-doubtful values, one line each (a drift over the large-drift warning)."""
-    limit = standards.load().assumptions.large_drift_warning
-    out = []
-    for si, st in enumerate(survey.storeys):
-        for ri, r in enumerate(st.readings):
-            d = abs(r.drift_ratio())
-            if d > limit:
-                out.append(f"storeys[{si}].readings[{ri}]: drift ratio {d:.1%} is over "
-                           f"{limit:.0%}; kept, but check it is not a mis-entry")
-    return out
-
-
-def gauge_notes(survey: Survey) -> list[str]:
-    """Notes (kept, not refused) on offset readings over a gauge under a quarter storey."""
-    return rules.short_gauge_notes(survey.storeys)
-
-
-_BOUNDS = {"gt": "exclusiveMinimum", "ge": "minimum", "lt": "exclusiveMaximum", "le": "maximum"}
-
-
-def _json_schema_bounds(node: Any) -> Any:
-    """Bounds in JSON Schema's words (`exclusiveMinimum`, `maximum`, ...).
-
-    pydantic leaves `gt`/`le` raw on an optional number whose type carries a validator (our
-    strict `Num`); they are renamed where they sit beside a `type`.
-    """
-    if isinstance(node, dict):
-        out = {}
-        for k, v in node.items():
-            key = _BOUNDS.get(k, k) if "type" in node and not isinstance(v, dict | list) else k
-            out[key] = _json_schema_bounds(v)
-        return out
-    if isinstance(node, list):
-        return [_json_schema_bounds(v) for v in node]
-    return node
-
-
-def json_schema() -> dict[str, Any]:
-    """The JSON Schema of `triage-survey/2` (which `/1` files also meet), from these models."""
-    schema = _json_schema_bounds(Survey.model_json_schema())
-    schema["$schema"] = "https://json-schema.org/draft/2020-12/schema"
-    schema["$id"] = f"urn:triage:{FORMAT}"
-    schema["title"] = FORMAT
-    return schema

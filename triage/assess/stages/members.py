@@ -1,0 +1,168 @@
+"""Stage 2, members: per storey, member classes, capacity, damage floors and collapse rule.
+
+Capacity is R and the JBDPA grade; the collapse rule is the all-class-V one. With their reason
+lines.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from pydantic import TypeAdapter
+
+from triage.standards import CLASSES, LEVELS, Grade
+
+from .. import damage as dmg
+from ..context import DIRS, JBDPA_SOURCE, Context
+from ..floors import VERTICAL_KINDS, GroupFloor
+from ..levels import Level
+from ..result import MemberResult
+from ..stats import sig6
+from ..uncertainty import MemberModel
+
+_MEMBERS = TypeAdapter(tuple[MemberResult, ...])
+
+
+@dataclass(frozen=True)
+class Capacity:
+    """A storey's residual seismic capacity: the worse direction's R, grade and level."""
+
+    dir: str
+    r: float
+    grade: Grade
+    level: Level
+
+
+@dataclass(frozen=True)
+class Floor:
+    """The damage floor a storey's members set at their point classes."""
+
+    level: Level
+    group: int | None  # the group that sets it (None: no class sets a floor)
+    collapse: bool  # the all-class-V rule applies
+    vertical_members: int  # members of column and wall groups logged
+
+
+@dataclass(frozen=True)
+class StoreyMembers:
+    """One storey's member groups: classes, R, grade, floors and the component level."""
+
+    storey: int
+    classes: dmg.ClassTable
+    floors: tuple[GroupFloor, ...]
+    r_by_dir: dict[str, float | None]
+    capacity: Capacity | None
+    floor: Floor | None  # None: no member group logged
+    model: MemberModel
+    level: Level | None  # the member component's point level; None: no member group
+    results: tuple[MemberResult, ...]
+    defaulted: tuple[str, ...]
+
+
+def member_stage(ctx: Context, si: int) -> StoreyMembers:
+    """One storey's member classes, R, grade, damage floors and all-class-V collapse rule.
+
+    A group's class is its override, else the worse of its crack class and its sign class.
+    """
+    std, a = ctx.std, ctx.a
+    st = ctx.survey.storeys[si]
+    table = dmg.member_classes(st.members, std, a)
+    defaulted = tuple(
+        f"storey {st.label}, {m.kind} group {gi + 1}{' ' + m.ref if m.ref else ''}: crack_sd_mm "
+        f"{a.sd_crack_mm:g} mm (instrument default, common practice)"
+        for gi, (m, c) in enumerate(zip(st.members, table.items, strict=True)) if c.sd_defaulted)
+    etas = [dmg.eta_table(m, std) for m in st.members]
+    terms = dmg.capacity_terms_all(st, etas, ctx.rc)
+    r_by_dir: dict[str, float | None] = {}
+    for d in ctx.rc:
+        r_by_dir[d] = None
+        if d in terms:
+            t = terms[d]
+            point = table.point[list(t.groups)]
+            eta = t.etas[np.arange(len(point)), point]
+            r_by_dir[d] = float(np.round((eta * t.weights).sum() / t.total, 9))
+    capacity = None
+    measured = [d for d in DIRS if r_by_dir.get(d) is not None]
+    if measured:
+        worst = min(measured, key=lambda d: (r_by_dir[d], d))
+        r = r_by_dir[worst]
+        assert r is not None
+        grade = dmg.grade_of(r, std)
+        capacity = Capacity(worst, r, grade, Level.of(a.grade_to_level[grade]))
+    floors = tuple(ctx.group_floor(m) for m in st.members)
+    floor_table = (np.array([f.by_class for f in floors], dtype=int) if floors
+                   else np.zeros((0, len(CLASSES) + 1), dtype=int))
+    vertical = np.array([m.kind in VERTICAL_KINDS for m in st.members], dtype=bool)
+    n_vertical = sum(m.count for m in st.members if m.kind in VERTICAL_KINDS)
+    collapse_rule = bool(vertical.any()) and n_vertical >= a.collapse_min_vertical_members
+    gb = std.capacity.grades
+    model = MemberModel(
+        probs=table.probs, point=table.point, terms=terms, floors=floor_table,
+        grade_bounds=np.array([gb["slight"], gb["light"], gb["moderate"]]) / 100.0,
+        level_of_grade=np.array([Level.of(a.grade_to_level[g])
+                                 for g in ("slight", "light", "moderate", "severe")]),
+        vertical=vertical, collapse_rule=collapse_rule)
+    floor = None
+    level = None
+    if st.members:
+        at_point = floor_table[np.arange(len(floors)), table.point]
+        g = int(np.argmax(at_point))
+        collapse = collapse_rule and bool((table.point[vertical] == 5).all())
+        floor = Floor(Level(int(at_point[g])), g if at_point[g] > 0 else None, collapse,
+                      n_vertical)
+        # The same as model.level(point): the worst of the capacity level, the floor and the
+        # collapse rule (a test checks the two agree).
+        level = (Level.BEYOND_CP if collapse else
+                 max(floor.level, capacity.level if capacity is not None else Level.IO))
+    counted = set().union(*(t.groups for t in terms.values())) if terms else set()
+    point_l = table.point.tolist()
+    floor_l = floor_table[np.arange(len(floors)), table.point].tolist() if floors else []
+    results = _MEMBERS.validate_python([
+        {"index": gi, "ref": m.ref, "kind": m.kind, "count": m.count,
+         "damage_class": CLASSES[point_l[gi] - 1] if point_l[gi] else None,
+         "floor": LEVELS[floor_l[gi]] if point_l[gi] else None,
+         "eta": (sig6(float(eta_t[point_l[gi]])) if gi in counted and eta_t is not None
+                 else None),
+         "class_from": c.class_from}
+        for gi, (m, c, eta_t) in enumerate(zip(st.members, table.items, etas, strict=True))])
+    return StoreyMembers(si, table, floors, r_by_dir, capacity, floor, model, level, results,
+                         defaulted)
+
+
+def capacity_reason(ctx: Context, sm: StoreyMembers) -> str:
+    """The reason line of a storey's R and grade."""
+    c = sm.capacity
+    assert c is not None
+    st = ctx.survey.storeys[sm.storey]
+    walls1 = any(m.kind == "wall" and m.weight == 1.0 for m in st.members)
+    wall_note = ("; walls counted at weight 1 each, as a column (a wall is usually worth "
+                 "several)") if walls1 else ""
+    return (f"storey {st.label}, {c.dir}: residual seismic capacity ratio R = {c.r:.1%} is "
+            f"damage grade {c.grade} ({JBDPA_SOURCE}), taken as {c.level.word} (our link of "
+            f"grade to level){wall_note}")
+
+
+def floor_reason(ctx: Context, sm: StoreyMembers) -> str:
+    """The reason line of a storey's damage floor (or of its collapse rule)."""
+    f = sm.floor
+    assert f is not None
+    label = ctx.label(sm.storey)
+    if f.collapse:
+        return (f"storey {label}: every vertical member group is class V, all {f.vertical_members}"
+                f" of the {f.vertical_members} vertical members logged: grade collapse, beyond "
+                "CP (a rule of ours, not a JBDPA grade)")
+    if f.group is None:
+        return f"storey {label}: no member group's class sets a damage floor (a rule of ours)"
+    m = ctx.survey.storeys[sm.storey].members[f.group]
+    c = sm.classes.items[f.group]
+    row = sm.floors[f.group].row_at(c.point, ctx.a)
+    ref = f" {m.ref}" if m.ref else ""
+    brittle = ", brittle" if m.ductility == "brittle" else ""
+    text = (f"storey {label}: {m.kind} group{ref} ({m.count}{brittle}) is class "
+            f"{dmg.class_name(c.point)} (from {c.class_from}), which holds the structure to "
+            f"{f.level.word} at best (damage floor of a {row.label}, a rule of ours)")
+    if sm.capacity is not None and f.level > sm.capacity.level:
+        text += (f"; the JBDPA grade alone is {sm.capacity.grade} (R = {sm.capacity.r:.1%}, "
+                 f"{sm.capacity.level.word})")
+    return text

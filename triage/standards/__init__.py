@@ -12,11 +12,21 @@ from functools import cache
 from pathlib import Path
 from typing import Any, Literal
 
-from pydantic import BaseModel, ConfigDict, Field
+from pydantic import Field, model_validator
+
+from triage.standards.base import Frozen as _Frozen
+from triage.standards.base import Source, Status
+from triage.standards.capacity_tables import (
+    SEVERITIES,
+    Severity,
+    SteelTable,
+    WallTable,
+    steel_table,
+    wall_table,
+)
 
 HERE = Path(__file__).resolve().parent
 
-Status = Literal["checked", "secondary", "memory"]
 Level = Literal["IO", "LS", "CP", "beyond-CP"]
 DamageClass = Literal["I", "II", "III", "IV", "V"]
 Grade = Literal["slight", "light", "moderate", "severe", "collapse"]
@@ -25,25 +35,6 @@ LEVELS: tuple[Level, ...] = ("IO", "LS", "CP", "beyond-CP")
 CLASSES: tuple[DamageClass, ...] = ("I", "II", "III", "IV", "V")
 GRADES: tuple[Grade, ...] = ("slight", "light", "moderate", "severe", "collapse")
 DIRS: tuple[Literal["x", "y"], ...] = ("x", "y")
-
-
-class _Frozen(BaseModel):
-    model_config = ConfigDict(frozen=True, extra="forbid")
-
-
-class Source(_Frozen):
-    """Where a table's figures come from."""
-
-    document: str
-    edition: str
-    table: str
-    status: Status
-    status_note: str = ""
-
-    def cite(self) -> str:
-        """A short citation: document, edition, table; 'from memory' where it is."""
-        text = f"{self.document} ({self.edition}) {self.table}"
-        return text + (", from memory" if self.status == "memory" else "")
 
 
 class DriftRow(_Frozen):
@@ -198,6 +189,31 @@ class Assumptions(_Frozen):
     damage_floors: dict[str, dict[DamageClass, Level]]
     collapse_min_vertical_members: int = Field(ge=1)
     vertical_kinds: tuple[str, ...]
+    fema352_fractured_type: str
+    fema352_index_levels: dict[Literal["IO", "LS", "CP"], float]
+    fema352_class_of_index: dict[Literal["II", "III", "IV", "V"], float]
+    fema352_min_sample: int = Field(ge=2)
+    fema306_severity_class: dict[Severity, DamageClass]
+    fema306_extreme_lambda: dict[Literal["k", "q", "d"], float]
+    fema306_grade_bounds: dict[Literal["slight", "light", "moderate"], float]
+
+    @model_validator(mode="after")
+    def _capacity_links(self) -> Assumptions:
+        steps = [self.fema352_index_levels[k] for k in ("IO", "LS", "CP")]
+        if not 0 <= steps[0] < steps[1] < steps[2]:
+            raise ValueError("fema352_index_levels: IO < LS < CP, each at least 0")
+        cls = [self.fema352_class_of_index[k] for k in ("II", "III", "IV", "V")]
+        if not 0 < cls[0] < cls[1] < cls[2] <= cls[3]:
+            raise ValueError("fema352_class_of_index: II < III < IV <= V, each over 0")
+        order = [CLASSES.index(self.fema306_severity_class[s]) for s in SEVERITIES]
+        if order != sorted(order):
+            raise ValueError("fema306_severity_class: a worse severity never has a lesser class")
+        if any(not 0 <= v <= 1 for v in self.fema306_extreme_lambda.values()):
+            raise ValueError("fema306_extreme_lambda: each factor from 0 to 1")
+        g = self.fema306_grade_bounds
+        if not 1 >= g["slight"] > g["light"] > g["moderate"] > 0:
+            raise ValueError("fema306_grade_bounds: 1 >= slight > light > moderate > 0")
+        return self
 
     def with_overrides(self, **changes: Any) -> Assumptions:
         """A copy with some values replaced, validated like the defaults."""
@@ -220,6 +236,15 @@ class Standards(_Frozen):
     hazards: dict[str, HazardKind]
     assumption_notes: dict[str, Assumption]
     assumptions: Assumptions
+    steel: SteelTable
+    walls: WallTable
+
+    @model_validator(mode="after")
+    def _fractured_type(self) -> Standards:
+        t = self.assumptions.fema352_fractured_type
+        if t not in self.steel.types:
+            raise ValueError(f"fema352_fractured_type: {t!r} is not a type of the FEMA 352 table")
+        return self
 
     def sources(self) -> list[str]:
         """Every published table the method rests on, cited."""
@@ -227,6 +252,7 @@ class Standards(_Frozen):
                self.damage_states.source.cite()]
         out += [r.source.cite() for r in self.repairability]
         out += [t.source.cite() for t in self.plumbness]
+        out += [self.steel.source.cite(), self.walls.source.cite()]
         return out
 
 
@@ -253,6 +279,8 @@ def load() -> Standards:
     signs = _read("signs.toml")
     hazards = _read("hazards.toml")["hazards"]
     assumptions = _read("assumptions.toml")
+    steel = _read("fema352_connections.toml")
+    walls = _read("fema306_walls.toml")
     return Standards(
         drift=DriftTable(source=_source(drift), title=drift["title"], systems=drift["systems"]),
         capacity=CapacityTable(source=_source(cap), classes=cap["classes"], grades=cap["grades"]),
@@ -275,7 +303,26 @@ def load() -> Standards:
         hazards={k: HazardKind(key=k, **v) for k, v in hazards.items()},
         assumption_notes={k: Assumption(key=k, **v) for k, v in assumptions.items()},
         assumptions=Assumptions(**{k: v["value"] for k, v in assumptions.items()}),
+        steel=steel_table(steel, _source(steel)),
+        walls=wall_table(walls, _source(walls)),
     )
+
+
+def with_tables(std: Standards, *, steel: Path | None = None,
+                walls: Path | None = None) -> Standards:
+    """The tables with the FEMA 352 or FEMA 306 table read from another file of the same shape.
+
+    Both are recalled, not read (status memory): when the printed tables are at hand, a file
+    holding them replaces ours here, and the assessment runs on it (`assess(survey, std=...)`).
+    A malformed file raises a pydantic ValidationError naming the field.
+    """
+    update: dict[str, Any] = {}
+    for key, path, build in (("steel", steel, steel_table), ("walls", walls, wall_table)):
+        if path is not None:
+            with open(path, "rb") as f:
+                raw = tomllib.load(f)
+            update[key] = build(raw, _source(raw))
+    return Standards.model_validate({**dict(std), **update})
 
 
 def system_keys() -> tuple[str, ...]:

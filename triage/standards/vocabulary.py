@@ -119,6 +119,9 @@ def describe(section: str, key: Any) -> str:
 
     Falls back to the vocabulary's meaning line for the other sections.
     """
+    if section == "connection_types":
+        found = load().steel.types.get(str(key))
+        return found.description if found is not None else ""
     attr = _DESCRIBED.get(section)
     if attr is not None:
         table = getattr(load(), attr)
@@ -293,7 +296,7 @@ _PATH_ANYWHERE = re.compile(r"\b(?:storeys|hazards|building|inspection)(?:\[\d+\
                             r"(?:\.[A-Za-z_][A-Za-z0-9_]*(?:\[\d+\])*)*")
 _KEYISH = re.compile(r"'?\b([A-Za-z][A-Za-z0-9]*(?:_[A-Za-z0-9]+)+)\b'?")
 # where a key met in running text is looked up, first found wins
-_KEY_SECTIONS = ("signs", "hazards", "systems", "member_kinds", "assumptions")
+_KEY_SECTIONS = ("signs", "hazards", "systems", "member_kinds", "assumptions", "wall_modes")
 
 
 @cache

@@ -1,0 +1,142 @@
+"""Residual capacity beyond reinforced concrete, per storey and direction.
+
+Steel moment frames by FEMA 352 (`steel.py`), concrete and masonry walls by FEMA 306
+(`walls.py`); reinforced concrete's JBDPA ratio R stays in the member stage (`damage.py`). Where
+a storey direction has two (a concrete-wall storey with JBDPA's R and FEMA 306), the worse is
+taken and both are shown. Each result is a point value: the inspector's types, modes and
+severities are choices, not measurements, and enter the tier probabilities as certain (a crack
+near a FEMA 306 bound is classed at its point value; docs/method.md says so).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from triage.model import MemberGroup, Survey
+from triage.standards import Assumptions, Grade, Standards
+
+from . import steel, walls
+from .levels import Level
+
+DIRS = ("x", "y")
+
+
+@dataclass(frozen=True)
+class DirCapacity:
+    """One method's residual capacity of one storey direction."""
+
+    dir: str
+    method: str  # "fema352", "fema306" (JBDPA's R is the member stage's)
+    ratio: float | None  # None: not established (nothing inspected, too small a sample)
+    level: Level | None
+    grade: Grade | None
+    index: float | None  # FEMA 352's floor damage index D
+    inspected: int
+    count: int
+    sampled: bool  # only some members inspected
+    reason: str
+
+
+@dataclass(frozen=True)
+class StoreyCapacity:
+    """A storey's residual capacity results beyond concrete, and what they add to the notes."""
+
+    storey: int
+    results: tuple[DirCapacity, ...]
+    notes: tuple[str, ...]
+
+    @property
+    def level(self) -> Level | None:
+        """The worst level of the results (None: none sets a level)."""
+        levels = [r.level for r in self.results if r.level is not None]
+        return max(levels) if levels else None
+
+    @property
+    def open(self) -> bool:
+        """Whether some result could not be established (the survey is then provisional)."""
+        return any(r.ratio is None for r in self.results)
+
+    def ratio(self, d: str) -> float | None:
+        """The worse ratio of direction `d` over these methods (None: none)."""
+        found = [r.ratio for r in self.results if r.dir == d and r.ratio is not None]
+        return min(found) if found else None
+
+
+def storey_capacity(survey: Survey, si: int, std: Standards, a: Assumptions) -> StoreyCapacity:
+    """FEMA 352 and FEMA 306 results of storey `si` in each direction they cover."""
+    st = survey.storeys[si]
+    systems = survey.building.system
+    out: list[DirCapacity] = []
+    notes: list[str] = []
+    for d in DIRS:
+        f = steel.steel_floor(st, d, systems, std, a)
+        if f is not None:
+            out.append(DirCapacity(d, "fema352", f.ratio, f.level, None, f.index, f.inspected,
+                                   f.count, f.sampled, steel.steel_reason(st.label, f, std)))
+        w = walls.walls_in(st, d, systems, std, a)
+        if w is not None:
+            out.append(DirCapacity(d, "fema306", w.ratio, w.level, w.grade, None, w.inspected,
+                                   w.count, w.inspected < w.count,
+                                   walls.walls_reason(st.label, w, std)))
+            for gi in w.not_kept:
+                m = st.members[gi]
+                comp = std.walls.component_of(m.kind, getattr(systems, d))
+                assert comp is not None
+                notes.append(f"storey {st.label}, {m.kind} group {gi + 1}: mode {m.mode} is not "
+                             f"one FEMA 306 gives a {comp[1].name} in the tool: taken as not "
+                             "known (the worst of its type's modes)")
+    for gi, m in enumerate(st.members):
+        if m.connection_type is not None and not any(
+                getattr(systems, d) == steel.SYSTEM for d in DIRS
+                if m.dir is None or m.dir == d):
+            notes.append(f"storey {st.label}, connection group {gi + 1}: FEMA 352 type "
+                         f"{m.connection_type} is read for steel moment frames only; here it "
+                         "sets the group's damage class alone")
+    return StoreyCapacity(si, tuple(out), tuple(notes))
+
+
+def recorded_class(m: MemberGroup, std: Standards, a: Assumptions) -> tuple[int, str | None]:
+    """The worst class (0 none, 1..5) a group's signs, FEMA 352 type or chosen FEMA 306
+    severity imply, and which of them ("signs", "type", "severity") set it."""
+    best, by = 0, None
+    for cls, name in ((max((_sign(s, std) for s in m.signs), default=0), "signs"),
+                      (steel.type_class(m, std, a), "type"),
+                      (walls.severity_class(m, a), "severity")):
+        if cls > best:
+            best, by = cls, name
+    return best, by
+
+
+def _sign(key: str, std: Standards) -> int:
+    from triage.standards import CLASSES
+
+    return CLASSES.index(std.signs[key].damage_class) + 1
+
+
+def partial_notes(survey: Survey) -> list[str]:
+    """A note per member group of which only some members were inspected."""
+    out = []
+    for st in survey.storeys:
+        for gi, m in enumerate(st.members):
+            if m.seen < m.count:
+                ref = f" {m.ref}" if m.ref else ""
+                out.append(f"storey {st.label}, {m.kind} group {gi + 1}{ref}: {m.seen} of "
+                           f"{m.count} inspected; ratios are over the members seen, those not "
+                           "seen never counted as undamaged; the survey is provisional")
+    return out
+
+
+def uncovered(survey: Survey, rc: tuple[str, ...], std: Standards) -> str | None:
+    """The reason line naming the systems no residual capacity method in the tool covers."""
+    covered = set(rc)
+    for d in DIRS:
+        system = getattr(survey.building.system, d)
+        if system == steel.SYSTEM or any(system in c.systems
+                                         for c in std.walls.components.values()):
+            covered.add(d)
+    left = sorted({getattr(survey.building.system, d) for d in DIRS if d not in covered})
+    if not left:
+        return None
+    return ("residual capacity: not computed for " + " or ".join(left) + "; the tool's methods "
+            "cover reinforced concrete (JBDPA), steel moment frames (FEMA 352) and concrete "
+            "and masonry walls (FEMA 306)")

@@ -4,4 +4,4 @@ The tier this package computes is indicative only: the licensed engineer of reco
 local building authority make the binding decision, under local codes.
 """
 
-__version__ = "0.2.0"
+__version__ = "0.3.0"

@@ -228,6 +228,36 @@ def storey_rules(st: Any) -> None:
             f"{MAX_CAPACITY:,}"))
 
 
+def capacity_rules(m: Any, modes: tuple[str, ...]) -> None:
+    """The keys of residual capacity beyond concrete on one member group (docs/formats.md).
+
+    `inspected` at most `count`, and at least one when damage is recorded; `connection_type`
+    on connection groups only; `mode` and `severity` on wall and infill groups only, `mode`
+    one of `modes` (the FEMA 306 modes of the group's kind).
+    """
+    kind = _get(m, "kind")
+    seen = _get(m, "inspected")
+    count = _get(m, "count")
+    if seen is not None and isinstance(count, int) and seen > count:
+        raise RuleBroken(("inspected",), f"{seen:,} inspected of a group of {count:,}; at most "
+                         "its count")
+    if seen == 0 and (_get(m, "crack_mm") or _get(m, "signs") or _get(m, "damage_class")
+                      or _get(m, "connection_type") or _get(m, "severity")):
+        raise RuleBroken(("inspected",), "none inspected, yet damage is recorded; a crack, "
+                         "sign, class, type or severity needs at least one member seen")
+    if _get(m, "connection_type") is not None and kind != "connection":
+        raise RuleBroken(("connection_type",), f"a FEMA 352 damage type belongs on a connection "
+                         f"group, not on a {kind}")
+    for key, what in (("mode", "behaviour mode"), ("severity", "severity")):
+        if _get(m, key) is not None and kind not in ("wall", "infill"):
+            raise RuleBroken((key,), f"a FEMA 306 {what} belongs on a wall or infill group, not "
+                             f"on a {kind}")
+    mode = _get(m, "mode")
+    if mode is not None and mode not in modes:
+        raise RuleBroken(("mode",), f"{mode!r} is not a FEMA 306 mode of a {kind} (modes: "
+                         f"{', '.join(modes)})")
+
+
 # --- the whole survey -----------------------------------------------------------------------
 
 def survey_sizes(doc: Any) -> None:

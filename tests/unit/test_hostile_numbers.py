@@ -38,6 +38,7 @@ NUMERIC = {
     ("MemberGroup", "crack_mm"): "storeys[0].members[0].crack_mm",
     ("MemberGroup", "crack_sd_mm"): "storeys[0].members[0].crack_sd_mm",
     ("MemberGroup", "weight"): "storeys[0].members[0].weight",
+    ("MemberGroup", "inspected"): "storeys[0].members[0].inspected",
     ("Hazard", "height_above_ground_m"): "hazards[0].height_above_ground_m",
 }
 PATHS = sorted(NUMERIC.values())

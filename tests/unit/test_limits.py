@@ -171,6 +171,10 @@ CASES = [
          "storeys[1].label", "storey G, label", "used twice"),
     Case("hazard names a storey", lambda d: None, "set", "hazards[0].storey", "7",
          "hazards[0].storey", "hazard 1 (falling hazard), storey", "names no storey"),
+    Case("inspected at most the count", _set("storeys[0].members[0].inspected", 10), "set",
+         "storeys[0].members[0].inspected", 11, "storeys[0].members[0].inspected",
+         "storey G, member group 1 (C1), members inspected",
+         "11 inspected of a group of 10; at most its count"),
 ]
 IDS = [c.name for c in CASES]
 

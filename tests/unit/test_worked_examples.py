@@ -35,7 +35,7 @@ def test_concrete_frame_governed_by_drift():
 def test_braced_steel_governed_by_member_damage_floor():
     # Drifts 2/2000 = 0.10% <= 0.20% IO. One buckled brace: class IV (rule of ours: a load path
     # gone) -> member-damage floor LS -> hold, basis damage, storey 1, no direction.
-    # R is not computed: the JBDPA method covers reinforced concrete only.
+    # No residual capacity: no method in the tool covers braced steel frames.
     s = make([storey("1", [reading("x", 2.0), reading("y", -1.0)],
                      [{"kind": "column", "count": 12}, {"kind": "brace", "count": 7},
                       {"kind": "brace", "count": 1, "dir": "x", "signs": ["brace_buckled"],
@@ -49,7 +49,7 @@ def test_braced_steel_governed_by_member_damage_floor():
     assert a.storey("1").members[2].damage_class == "IV"
     assert a.storey("1").members[2].class_from == "signs"
     assert a.storey("1").residual_capacity is None
-    assert any("JBDPA method covers reinforced concrete only" in r for r in a.reasons)
+    assert any("residual capacity: not computed for steel_braced_frame" in r for r in a.reasons)
 
 
 def test_timber_house_governed_by_a_hazard():

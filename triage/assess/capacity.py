@@ -10,7 +10,8 @@ near a FEMA 306 bound is classed at its point value; docs/method.md says so).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
+from typing import Any
 
 from triage.model import MemberGroup, Survey
 from triage.standards import Assumptions, Grade, Standards
@@ -44,6 +45,8 @@ class StoreyCapacity:
     storey: int
     results: tuple[DirCapacity, ...]
     notes: tuple[str, ...]
+    steel: dict[int, steel.ConnectionIndex] = field(default_factory=dict)  # by group
+    walls: dict[int, walls.WallState] = field(default_factory=dict)  # by group, the worst
 
     @property
     def level(self) -> Level | None:
@@ -68,13 +71,20 @@ def storey_capacity(survey: Survey, si: int, std: Standards, a: Assumptions) -> 
     systems = survey.building.system
     out: list[DirCapacity] = []
     notes: list[str] = []
+    by_steel: dict[int, steel.ConnectionIndex] = {}
+    by_wall: dict[int, walls.WallState] = {}
     for d in DIRS:
         f = steel.steel_floor(st, d, systems, std, a)
         if f is not None:
+            by_steel.update({g.group: g for g in f.groups})
             out.append(DirCapacity(d, "fema352", f.ratio, f.level, None, f.index, f.inspected,
                                    f.count, f.sampled, steel.steel_reason(st.label, f, std)))
         w = walls.walls_in(st, d, systems, std, a)
         if w is not None:
+            for ws in w.states:
+                old = by_wall.get(ws.group)
+                if old is None or ws.lambdas.q < old.lambdas.q:
+                    by_wall[ws.group] = ws
             out.append(DirCapacity(d, "fema306", w.ratio, w.level, w.grade, None, w.inspected,
                                    w.count, w.inspected < w.count,
                                    walls.walls_reason(st.label, w, std)))
@@ -92,25 +102,19 @@ def storey_capacity(survey: Survey, si: int, std: Standards, a: Assumptions) -> 
             notes.append(f"storey {st.label}, connection group {gi + 1}: FEMA 352 type "
                          f"{m.connection_type} is read for steel moment frames only; here it "
                          "sets the group's damage class alone")
-    return StoreyCapacity(si, tuple(out), tuple(notes))
+    return StoreyCapacity(si, tuple(out), tuple(notes), by_steel, by_wall)
 
 
-def recorded_class(m: MemberGroup, std: Standards, a: Assumptions) -> tuple[int, str | None]:
-    """The worst class (0 none, 1..5) a group's signs, FEMA 352 type or chosen FEMA 306
-    severity imply, and which of them ("signs", "type", "severity") set it."""
-    best, by = 0, None
-    for cls, name in ((max((_sign(s, std) for s in m.signs), default=0), "signs"),
-                      (steel.type_class(m, std, a), "type"),
-                      (walls.severity_class(m, a), "severity")):
-        if cls > best:
-            best, by = cls, name
-    return best, by
-
-
-def _sign(key: str, std: Standards) -> int:
-    from triage.standards import CLASSES
-
-    return CLASSES.index(std.signs[key].damage_class) + 1
+def member_capacity(sc: StoreyCapacity, gi: int, m: MemberGroup) -> dict[str, Any]:
+    """A member group's keys of the assessment for these methods (null where none applies)."""
+    c = sc.steel.get(gi)
+    w = sc.walls.get(gi)
+    return {"inspected": m.inspected,
+            "connection_type": c.type if c is not None else None,
+            "connection_index": c.index if c is not None else None,
+            "mode": w.mode if w is not None else None,
+            "severity": w.severity if w is not None else None,
+            "lambda_q": w.lambdas.q if w is not None else None}
 
 
 def partial_notes(survey: Survey) -> list[str]:

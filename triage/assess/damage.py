@@ -60,6 +60,33 @@ def sign_class(m: MemberGroup, std: Standards) -> int:
     return max((class_index(std.signs[s].damage_class) for s in m.signs), default=UNDAMAGED)
 
 
+def recorded_class(m: MemberGroup, std: Standards, a: Assumptions) -> tuple[int, str | None]:
+    """The worst class (0 none, 1..5) a group's signs, type or chosen severity imply.
+
+    Signs by signs.toml, a FEMA 352 type and a chosen FEMA 306 severity by our links
+    (docs/method.md section 4a); with which set it: "signs", "type" or "severity" (None when
+    none does).
+    """
+    best, by = sign_class(m, std), "signs"
+    if m.connection_type is not None:
+        c = steel_class_of_index(std.steel.types[m.connection_type].index, a)
+        if c > best:
+            best, by = c, "type"
+    if m.severity is not None:
+        c = class_index(a.fema306_severity_class[m.severity])
+        if c > best:
+            best, by = c, "severity"
+    return best, (by if best else None)
+
+
+def steel_class_of_index(index: float, a: Assumptions) -> int:
+    """The damage class index (0 none, 1..5 I..V) a FEMA 352 connection index implies (ours)."""
+    if index <= 0:
+        return UNDAMAGED
+    bounds = a.fema352_class_of_index
+    return 1 + sum(index >= bounds[k] for k in ("II", "III", "IV", "V"))
+
+
 @dataclass(frozen=True)
 class MemberClass:
     """A member group's point class, how it was set, and its class distribution."""
@@ -91,7 +118,8 @@ def member_classes(members: Sequence[MemberGroup], std: Standards,
     b2, b3, b4 = crack_bounds(std)
     probs = np.zeros((n, len(CLASSES) + 1))
     point = np.zeros(n, dtype=int)
-    sign = np.array([sign_class(m, std) for m in members], dtype=int)
+    recorded = [recorded_class(m, std, a) for m in members]
+    sign = np.array([c for c, _ in recorded], dtype=int)
     over = np.array([m.damage_class is not None for m in members], dtype=bool)
     crack = np.array([0.0 if m.damage_class is not None else (m.crack_mm or 0.0)
                       for m in members])
@@ -127,11 +155,11 @@ def member_classes(members: Sequence[MemberGroup], std: Standards,
         if over_l[i]:
             items.append(MemberClass(point_l[i], "override", row, None, False))
         elif cracked_l[i]:
-            how = "crack" if crack_class_of[i] >= sign_l[i] else "signs"
+            how = "crack" if crack_class_of[i] >= sign_l[i] else recorded[i][1]
             items.append(MemberClass(point_l[i], how, row, sd_l[i], m.crack_sd_mm is None))
         else:
-            items.append(MemberClass(point_l[i], "signs" if sign_l[i] else None, row, None,
-                                     False))
+            items.append(MemberClass(point_l[i], recorded[i][1] if sign_l[i] else None, row,
+                                     None, False))
     return ClassTable(items, point, probs)
 
 
@@ -193,12 +221,13 @@ def capacity_terms_all(storey: Storey, etas: Sequence[np.ndarray | None],
     """
     out = {}
     for d in dirs:
+        # members not inspected are left out of R, never counted as undamaged
         idx = [g for g, m in enumerate(storey.members)
-               if etas[g] is not None and counts_in(m, d)]
+               if etas[g] is not None and counts_in(m, d) and m.seen > 0]
         if idx:
             members = storey.members
             out[d] = CapacityTerms(tuple(idx),
-                                   np.array([members[g].count * members[g].weight for g in idx]),
+                                   np.array([members[g].seen * members[g].weight for g in idx]),
                                    np.array([etas[g] for g in idx]))
     return out
 

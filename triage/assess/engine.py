@@ -21,9 +21,11 @@ from __future__ import annotations
 
 from triage import __version__
 from triage.model import Survey, gauge_notes, survey_warnings
-from triage.standards import Assumptions, Grade, Standards, load
+from triage.standards import Assumptions, Standards, load
 
 from . import damage as dmg
+from .capacity import partial_notes
+from .capacity_out import capacity_method, capacity_results, worse_grade, worse_ratio
 from .context import DIRS, Context, seed_of
 from .drift import figures
 from .levels import Level
@@ -75,7 +77,8 @@ def assess(survey: Survey, assumptions: Assumptions | None = None,
     return _assessment(ctx, drift, members, hazards, lv, gov, prob, advice)
 
 
-def _provisional(ctx: Context, drift: DriftStage, lv: LevelStage) -> tuple[bool, list[str]]:
+def _provisional(ctx: Context, drift: DriftStage, lv: LevelStage,
+                 members: list[StoreyMembers]) -> tuple[bool, list[str]]:
     provisional = lv.structure is None
     notes = []
     for si, st in enumerate(ctx.survey.storeys):
@@ -85,6 +88,10 @@ def _provisional(ctx: Context, drift: DriftStage, lv: LevelStage) -> tuple[bool,
         elif not st.below_grade and (not st.members or any((si, d) not in drift.dirs
                                                                for d in DIRS)):
             provisional = True
+    partial = partial_notes(ctx.survey)
+    if partial or any(sm.beyond.open for sm in members):
+        provisional = True
+    notes += partial
     return provisional, notes
 
 
@@ -92,8 +99,9 @@ def _assessment(ctx: Context, drift: DriftStage, members: list[StoreyMembers],
                 hazards: HazardStage, lv: LevelStage, gov: GoverningStage,
                 prob: ProbabilityStage, advice: AdviceStage) -> Assessment:
     survey, std, a = ctx.survey, ctx.std, ctx.a
-    provisional, notes = _provisional(ctx, drift, lv)
+    provisional, notes = _provisional(ctx, drift, lv, members)
     notes = list(drift.notes) + notes + list(advice.notes)
+    notes += [n for sm in members for n in sm.beyond.notes]
     notes += gauge_notes(survey)   # a gauge under a quarter storey (docs/formats.md)
     non_rc = sorted({getattr(survey.building.system, d) for d in DIRS}
                     - {getattr(survey.building.system, d) for d in ctx.rc})
@@ -136,7 +144,8 @@ def _assessment(ctx: Context, drift: DriftStage, members: list[StoreyMembers],
             reading=gs.readings[0])),
         settled_by=advice.settled_by,
         tier_probability_se={t: sig6(v) for t, v in prob.se.items()},
-        residual_capacity_method=std.capacity.source.cite() if ctx.rc else None)
+        residual_capacity_method=capacity_method(ctx, members),
+        residual_capacity=capacity_results(ctx, members))
 
 
 def _storey_result(ctx: Context, si: int, drift: DriftStage, sm: StoreyMembers,
@@ -147,10 +156,12 @@ def _storey_result(ctx: Context, si: int, drift: DriftStage, sm: StoreyMembers,
     if sm.level is not None:
         levels.append(sm.level)
     level = max(levels) if levels else None
-    grade: Grade | None = sm.capacity.grade if sm.capacity is not None else None
+    grade = worse_grade([sm.capacity.grade if sm.capacity is not None else None]
+                        + [c.grade for c in sm.beyond.results])
     if (sm.floor is not None and sm.floor.collapse) or st.label in hazards.collapse_storeys:
         grade, level = "collapse", Level.BEYOND_CP
-    r = [v for v in sm.r_by_dir.values() if v is not None]
+    by_dir = {d: worse_ratio(sm.r_by_dir.get(d), sm.beyond.ratio(d)) for d in DIRS}
+    r = [v for v in by_dir.values() if v is not None]
     return StoreyResult(
         label=st.label, height_m=st.height_m, below_grade=st.below_grade, access=st.access,
         drift_ratio=PerDir(**{d: sig6_opt(abs(dd.top.value)) if dd else None
@@ -165,7 +176,7 @@ def _storey_result(ctx: Context, si: int, drift: DriftStage, sm: StoreyMembers,
         performance_level=LevelPerDir(**{d: dd.level.word if dd else None
                                          for d, dd in dirs.items()}),
         residual_capacity=sig6_opt(min(r) if r else None),
-        residual_capacity_by_dir=PerDir(**{d: sig6_opt(sm.r_by_dir.get(d)) for d in DIRS}),
+        residual_capacity_by_dir=PerDir(**{d: sig6_opt(by_dir[d]) for d in DIRS}),
         damage_grade=grade,
         damage_floor=sm.floor.level.word if sm.floor is not None else None,
         level=level.word if level is not None else None,

@@ -12,7 +12,7 @@ from typing import Any, Literal
 
 from pydantic import BaseModel, ConfigDict, Field
 
-from triage.standards import DamageClass, Grade, Level
+from triage.standards import DamageClass, Grade, Level, Severity
 
 FORMAT = "triage-assessment/1"
 
@@ -160,7 +160,36 @@ class MemberResult(_Out):
     floor: Level | None = Field(default=None, description="the least level its class holds "
                                 "the structure to (damage floor, ours)")
     eta: float | None = Field(description="JBDPA eta; null where R does not apply")
-    class_from: Literal["crack", "signs", "override"] | None
+    class_from: Literal["crack", "signs", "override", "type", "severity"] | None
+    inspected: int | None = Field(default=None, description="members seen; null: all")
+    connection_type: str | None = Field(
+        default=None, description="FEMA 352 damage type taken (a broken connection without "
+        "one: our default); null where FEMA 352 does not apply")
+    connection_index: float | None = Field(
+        default=None, description="FEMA 352 damage index of each connection, 0 to 10")
+    mode: str | None = Field(default=None, description="FEMA 306 behaviour mode taken")
+    severity: Severity | None = Field(
+        default=None, description="FEMA 306 severity; null: undamaged or FEMA 306 not applied")
+    lambda_q: float | None = Field(default=None, description="FEMA 306 lambda Q taken")
+
+
+class CapacityResult(_Out):
+    """One method's residual capacity of one storey direction (docs/method.md, 4 and 4a)."""
+
+    storey: str
+    dir: Dir
+    method: Literal["jbdpa", "fema352", "fema306"]
+    ratio: float | None = Field(description="R, our FEMA 352 ratio 1 - D/10, or our FEMA 306 "
+                                "strength ratio; null: not established")
+    level: Level | None
+    grade: Grade | None = Field(description="JBDPA grade, or ours of the FEMA 306 ratio")
+    index: float | None = Field(description="FEMA 352 floor damage index D, 0 to 10")
+    inspected: int = Field(description="members seen that the method counts")
+    count: int = Field(description="members the method covers in that direction")
+    sampled: bool = Field(description="only some were inspected")
+    taken: bool = Field(description="the worse of the methods of that storey direction: the "
+                        "one residual_capacity_by_dir shows")
+    source: str
 
 
 class StoreyResult(_Out):
@@ -242,7 +271,10 @@ class Assessment(_Out):
         default_factory=lambda: dict.fromkeys(TIERS, 0.0),
         description="standard error of each sampled probability; 0 where exact")
     residual_capacity_method: str | None = Field(
-        default=None, description="the published method behind R; null where none applies")
+        default=None, description="the published methods behind the residual capacities, "
+        "'; ' between them; null where none applies")
+    residual_capacity: tuple[CapacityResult, ...] = Field(
+        default=(), description="per storey, direction and method, the residual capacity")
 
     def to_json(self) -> str:
         """The `triage-assessment/1` JSON text (sorted keys off: the schema's own order)."""

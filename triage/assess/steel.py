@@ -6,11 +6,13 @@ when recorded, else the type of the assumption `fema352_fractured_type` when the
 the sign `connection_fractured`, else 0 (inspected, no damage). The floor's index D in that
 direction is over the connections inspected (`inspected`, all of the group when absent): their
 mean when every connection was inspected, else the document's upper estimate of the mean
-(`SteelTable.sample`). Connections not inspected are never counted, as undamaged or otherwise.
+(`SteelTable.sample`), with the sample's standard deviation replaced by a bound of ours that
+never falls when an index rises (so more damage never raises the capacity). Connections not
+inspected are never counted, as undamaged or otherwise.
 
 Ours, not the document's: the residual capacity ratio 1 - D / 10, the level of D
 (`fema352_index_levels`) and the damage class a type implies for the damage floors
-(`fema352_class_of_index`).
+(`fema352_class_of_index`, in `damage.recorded_class`).
 """
 
 from __future__ import annotations
@@ -56,25 +58,6 @@ def connection_index(m: MemberGroup, std: Standards, a: Assumptions) -> tuple[st
     return None, 0.0, "none"
 
 
-def class_of_index(index: float, a: Assumptions) -> int:
-    """The damage class index (0 none, 1..5 I..V) a connection index implies (ours)."""
-    if index <= 0:
-        return 0
-    bounds = a.fema352_class_of_index
-    cls = 1
-    for k, name in ((2, "II"), (3, "III"), (4, "IV"), (5, "V")):
-        if index >= bounds[name]:   # type: ignore[index]
-            cls = k
-    return cls
-
-
-def type_class(m: MemberGroup, std: Standards, a: Assumptions) -> int:
-    """The class a recorded `connection_type` implies (0 when none is recorded)."""
-    if m.connection_type is None:
-        return 0
-    return class_of_index(std.steel.types[m.connection_type].index, a)
-
-
 def level_of_index(index: float, a: Assumptions) -> Level:
     """Our link of a floor's index to a level (`fema352_index_levels`)."""
     d = round(index, 9)
@@ -112,8 +95,11 @@ def acts_in(m: MemberGroup, d: str) -> bool:
 
 def steel_floor(st: Storey, d: str, systems: Systems, std: Standards,
                 a: Assumptions) -> SteelFloor | None:
-    """The floor's index in direction `d`; None when `d` is no steel moment frame or the
-    storey logged no connection group acting in it."""
+    """The floor's index in direction `d`.
+
+    None when `d` is no steel moment frame or the storey logged no connection group acting in
+    it.
+    """
     if getattr(systems, d) != SYSTEM:
         return None
     groups = []
@@ -140,8 +126,12 @@ def steel_floor(st: Storey, d: str, systems: Systems, std: Standards,
                           f"{n} of {total} connections inspected: too few to estimate the "
                           f"rest (at least {a.fema352_min_sample}, ours)")
     else:
-        t = t_quantile(std.steel.sample.confidence, n - 1)
-        index = min(mean + t * sd / math.sqrt(n) * math.sqrt(1.0 - n / total),
+        # Ours: the sample's standard deviation s is replaced by its bound
+        # sqrt(sum(d^2) / (n - 1)) >= s, which never falls when an index rises; with s itself,
+        # raising a low index towards the others shrinks the spread and can lower the estimate.
+        tq = t_quantile(std.steel.sample.confidence, n - 1)
+        spread = math.sqrt(sum(g.seen * g.index ** 2 for g in groups) / (n - 1))
+        index = min(mean + tq * spread / math.sqrt(n) * math.sqrt(1.0 - n / total),
                     std.steel.scale_max)
     index = round(index, 9)
     ratio = min(max(1.0 - index / std.steel.scale_max, 0.0), 1.0)
@@ -160,8 +150,8 @@ def steel_reason(label: str, f: SteelFloor, std: Standards) -> str:
         assert f.sd is not None
         how = (f"upper estimate {f.index:.2f} from {f.inspected} of {f.count} connections "
                f"inspected (mean {f.mean:.2f}, sd {f.sd:.2f}, "
-               f"{std.steel.sample.confidence:.0%} one-sided); those not inspected are "
-               "never counted as undamaged")
+               f"{std.steel.sample.confidence:.0%} one-sided, spread bounded from above, "
+               "ours); those not inspected are never counted as undamaged")
     else:
         how = f"mean {f.index:.2f} of all {f.count} connections inspected"
     return (f"{head}: FEMA 352 floor damage index D = {f.index:.2f} of "

@@ -72,10 +72,13 @@ class MemberModel:
     level_of_grade: np.ndarray  # level index per grade index 0..3 (slight..severe)
     vertical: np.ndarray  # (n_groups,) bool: columns and walls, for the collapse rule
     collapse_rule: bool  # enough vertical members logged for the all-class-V rule
+    # The least level the storey's FEMA 352 and FEMA 306 capacities set (point values: the
+    # inspector's types, modes and severities are choices, not measurements).
+    fixed: int = 0
 
     def level(self, k: np.ndarray) -> np.ndarray:
         """Component level index for class assignments `k` (shape (m, n_groups))."""
-        lv = np.zeros(k.shape[0], dtype=int)
+        lv = np.full(k.shape[0], self.fixed, dtype=int)
         for t in self.terms.values():
             cls = k[:, list(t.groups)]
             eta = t.etas[np.arange(len(t.groups))[None, :], cls]

@@ -41,16 +41,9 @@ def severity_of_class(cls: int, a: Assumptions) -> str | None:
         return None
     found = None
     for s in SEVERITIES:
-        if CLASSES.index(a.fema306_severity_class[s]) + 1 <= cls:   # type: ignore[index]
+        if CLASSES.index(a.fema306_severity_class[s]) + 1 <= cls:
             found = s
     return found
-
-
-def severity_class(m: MemberGroup, a: Assumptions) -> int:
-    """The class index (1..5) a chosen `severity` implies; 0 when none was chosen."""
-    if m.severity is None:
-        return 0
-    return CLASSES.index(a.fema306_severity_class[m.severity]) + 1
 
 
 def crack_severity(crack_mm: float | None, row: ModeRow) -> str | None:

@@ -33,6 +33,7 @@ _V2_KEYS: dict[str, tuple[str, ...]] = {
     "inspection": ("team", "event", "not_inspected", "weather"),
     "reading": ("baseline_sd_mm", "baseline_sd_deg"),
     "photo": ("sha256",),
+    "member": ("inspected", "connection_type", "mode", "severity"),
 }
 
 # Ids absent from a file are derived as UUID 5 under this namespace of ours.
@@ -63,6 +64,10 @@ def _hazard(value: str) -> str:
     return _known(standards.hazard_keys(), "hazard kind", value)
 
 
+def _connection_type(value: str) -> str:
+    return _known(standards.connection_type_keys(), "FEMA 352 connection damage type", value)
+
+
 # Numbers are finite, of at most 15 digits before the point, never true/false or text; text
 # holds no lone surrogate and has a length limit (triage.model_rules has the limits).
 Num = Annotated[float, BeforeValidator(rules.strict_number)]
@@ -79,6 +84,12 @@ SignKey = Annotated[str, AfterValidator(_sign),
                     WithJsonSchema({"type": "string", "enum": list(standards.sign_keys())})]
 HazardKey = Annotated[str, AfterValidator(_hazard),
                       WithJsonSchema({"type": "string", "enum": list(standards.hazard_keys())})]
+ConnectionTypeKey = Annotated[
+    str, AfterValidator(_connection_type),
+    WithJsonSchema({"type": "string", "enum": list(standards.connection_type_keys())})]
+# FEMA 306 behaviour modes and severities (triage/standards/fema306_walls.toml).
+WallMode = standards.WallMode
+Severity = standards.Severity
 
 
 class _Model(BaseModel):

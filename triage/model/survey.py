@@ -23,6 +23,7 @@ from .fields import (
     FORMATS,
     ID_NAMESPACE,
     Access,
+    ConnectionTypeKey,
     DamageClass,
     Dir,
     HazardKey,
@@ -30,9 +31,11 @@ from .fields import (
     MemberKind,
     Notes,
     Num,
+    Severity,
     SignKey,
     SystemKey,
     Text,
+    WallMode,
     _Model,
 )
 
@@ -189,11 +192,24 @@ class MemberGroup(_Model):
     ref: Text | None = Field(
         default=None, description="grid or member mark, e.g. C3; used once in a storey")
     photos: Photos = Field(default=(), description="photos of the group")
+    inspected: Int | None = Field(
+        default=None, ge=0, le=rules.MAX_COUNT,
+        description="how many of the group's members were seen (at most count); absent: all")
+    connection_type: ConnectionTypeKey | None = Field(
+        default=None, description="FEMA 352 damage type of a connection group (steel moment "
+        "frames; from memory)")
+    mode: WallMode | None = Field(
+        default=None, description="FEMA 306 behaviour mode of a wall or infill group; unknown "
+        "takes the worst")
+    severity: Severity | None = Field(
+        default=None, description="FEMA 306 damage severity of a wall or infill group (not a "
+        "JBDPA grade)")
 
     @model_validator(mode="after")
     def _rules(self) -> MemberGroup:
         if self.damage_class is not None and not (self.override_reason or "").strip():
             raise ValueError("damage_class set by hand needs an override_reason")
+        rules.capacity_rules(self, standards.wall_modes_of(self.kind))
         if self.dir is not None and self.kind == "column":
             raise RuleBroken(("dir",), "a column counts in both directions; dir is for walls, "
                              "braces and infill")
@@ -205,6 +221,11 @@ class MemberGroup(_Model):
         if len(set(self.signs)) != len(self.signs):
             raise RuleBroken(("signs",), "each sign is listed once")
         return self
+
+    @property
+    def seen(self) -> int:
+        """How many of the group's members were inspected (all when `inspected` is absent)."""
+        return self.count if self.inspected is None else self.inspected
 
     @property
     def cracked(self) -> bool:
@@ -320,6 +341,7 @@ class Survey(_Model):
                 strip(r, _V2_KEYS["reading"])
             for m in st["members"]:
                 photos(m)
+                strip(m, _V2_KEYS["member"])
         for h in body["hazards"]:
             photos(h)
         return body

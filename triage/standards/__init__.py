@@ -18,8 +18,10 @@ from triage.standards.base import Frozen as _Frozen
 from triage.standards.base import Source, Status
 from triage.standards.capacity_tables import (
     SEVERITIES,
+    WALL_MODES,
     Severity,
     SteelTable,
+    WallMode,
     WallTable,
     steel_table,
     wall_table,
@@ -338,3 +340,21 @@ def sign_keys() -> tuple[str, ...]:
 def hazard_keys() -> tuple[str, ...]:
     """The hazard kinds."""
     return tuple(load().hazards)
+
+
+def connection_type_keys() -> tuple[str, ...]:
+    """The FEMA 352 connection damage type codes (from memory), in table order."""
+    return tuple(load().steel.types)
+
+
+def wall_modes_of(kind: str) -> tuple[str, ...]:
+    """The FEMA 306 behaviour modes a wall or infill group may record ("unknown" last)."""
+    found = [m for c in load().walls.components.values() if kind in c.kinds for m in c.modes]
+    return (*(m for m in WALL_MODES if m in found), "unknown")
+
+
+__all__ = ["CLASSES", "DIRS", "GRADES", "HERE", "LEVELS", "SEVERITIES", "WALL_MODES",
+           "Assumption", "Assumptions", "CapacityTable", "DamageClass", "DriftTable", "Grade",
+           "Level", "Severity", "Source", "Standards", "Status", "SteelTable", "WallMode",
+           "WallTable", "connection_type_keys", "hazard_keys", "load", "sign_keys",
+           "system_keys", "wall_modes_of", "with_tables"]

@@ -7,6 +7,7 @@ and `triage.assess.walls` read these objects.
 
 from __future__ import annotations
 
+import itertools
 from typing import Any, Literal
 
 from pydantic import Field, model_validator
@@ -93,7 +94,7 @@ class ModeRow(Frozen):
         if not 0 < a < b < c:
             raise ValueError("crack bounds rise from insignificant to moderate")
         rows = (NO_CHANGE, self.slight, self.moderate, self.heavy)
-        for lo, hi in zip(rows, rows[1:], strict=False):
+        for lo, hi in itertools.pairwise(rows):
             if hi.k > lo.k or hi.q > lo.q or hi.d > lo.d:
                 raise ValueError("a factor never rises with severity")
         return self
@@ -132,7 +133,7 @@ class Component(Frozen):
                            d=min(getattr(r, sev).d for r in rows))
 
         bounds = tuple(min(r.crack_mm[i] for r in rows) for i in range(3))
-        return ModeRow(crack_mm=bounds, slight=least("slight"),  # type: ignore[arg-type]
+        return ModeRow(crack_mm=bounds, slight=least("slight"),
                        moderate=least("moderate"), heavy=least("heavy"))
 
     def mode(self, key: str | None) -> tuple[str, ModeRow]:

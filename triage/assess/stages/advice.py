@@ -136,7 +136,7 @@ def measure_next(ctx: Context, drift: DriftStage, members: list[StoreyMembers],
         for gi, (m, c) in enumerate(zip(st.members, sm.classes.items, strict=True)):
             if c.class_from == "override" or not m.crack_mm or c.crack_sd is None:
                 continue
-            sign = dmg.sign_class(m, ctx.std)
+            sign = dmg.recorded_class(m, ctx.std, ctx.a)[0]
             cm = m.crack_mm
             # (bound, class under it, class over it, whether the crack is under it): under 0.2
             # mm is I; 0.2 to 1.0 mm II; over 1.0 to 2.0 mm III; over 2.0 mm IV.

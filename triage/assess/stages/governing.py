@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from ..capacity import uncovered
 from ..context import BASIS_ORDER, DIRS, URM_SYSTEMS, Context, Plumbness
 from ..levels import Level, Tier
 from ..result import Governing
@@ -22,6 +23,7 @@ class Candidate:
     basis: str  # drift, capacity, damage
     dir: str | None
     reason: str
+    ratio: float | None = None  # a capacity's ratio (R, or ours of FEMA 352 or FEMA 306)
 
 
 @dataclass(frozen=True)
@@ -42,7 +44,10 @@ def candidates(ctx: Context, drift: DriftStage, members: list[StoreyMembers],
     for sm in members:
         if sm.capacity is not None:
             out.append(Candidate(sm.capacity.level, sm.storey, "capacity", sm.capacity.dir,
-                                 capacity_reason(ctx, sm)))
+                                 capacity_reason(ctx, sm), sm.capacity.r))
+        for r in sm.beyond.results:
+            if r.level is not None:
+                out.append(Candidate(r.level, sm.storey, "capacity", r.dir, r.reason, r.ratio))
         if sm.floor is not None:
             lv = Level.BEYOND_CP if sm.floor.collapse else sm.floor.level
             out.append(Candidate(lv, sm.storey, "damage", None, floor_reason(ctx, sm)))
@@ -83,7 +88,7 @@ def governing_stage(ctx: Context, drift: DriftStage, members: list[StoreyMembers
         else:
             caps = [c for c in cands if c.basis == "capacity" and c.level == level]
             if caps:
-                lead = min(caps, key=lambda c: (round(_r_of(members, c), 9), c.storey,
+                lead = min(caps, key=lambda c: (round(c.ratio or 0.0, 9), c.storey,
                                                 c.dir or ""))
             else:
                 lead = min((c for c in cands if c.basis == "damage" and c.level == level),
@@ -97,17 +102,11 @@ def governing_stage(ctx: Context, drift: DriftStage, members: list[StoreyMembers
                     key=lambda c: (-c.level, c.storey, BASIS_ORDER[c.basis], c.dir or ""))
     reasons = lead_lines + [c.reason for c in others]
     reasons += [r for i, r in enumerate(hazards.reasons) if i != first_hazard]
-    if ctx.survey.storeys and not ctx.rc:
-        non_rc = sorted({getattr(ctx.survey.building.system, d) for d in DIRS})
-        reasons.append("residual capacity R: not computed; the JBDPA method covers reinforced "
-                       f"concrete only, not {' or '.join(non_rc)}")
+    reasons += [r.reason for sm in members for r in sm.beyond.results if r.ratio is None]
+    left = uncovered(ctx.survey, ctx.rc, ctx.std) if ctx.survey.storeys else None
+    if left is not None:
+        reasons.append(left)
     return GoverningStage(governing, spot, lead, tuple(reasons))
-
-
-def _r_of(members: list[StoreyMembers], c: Candidate) -> float:
-    cap = members[c.storey].capacity
-    assert cap is not None
-    return cap.r
 
 
 def _occupy_reason(ctx: Context, drift: DriftStage, lead: Candidate) -> str:

@@ -14,6 +14,7 @@ from pydantic import TypeAdapter
 from triage.standards import CLASSES, LEVELS, Grade
 
 from .. import damage as dmg
+from ..capacity import StoreyCapacity, member_capacity, storey_capacity
 from ..context import DIRS, JBDPA_SOURCE, Context
 from ..floors import VERTICAL_KINDS, GroupFloor
 from ..levels import Level
@@ -58,6 +59,7 @@ class StoreyMembers:
     level: Level | None  # the member component's point level; None: no member group
     results: tuple[MemberResult, ...]
     defaulted: tuple[str, ...]
+    beyond: StoreyCapacity  # FEMA 352 and FEMA 306 results (docs/method.md section 4a)
 
 
 def member_stage(ctx: Context, si: int) -> StoreyMembers:
@@ -97,12 +99,14 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
     n_vertical = sum(m.count for m in st.members if m.kind in VERTICAL_KINDS)
     collapse_rule = bool(vertical.any()) and n_vertical >= a.collapse_min_vertical_members
     gb = std.capacity.grades
+    beyond = storey_capacity(ctx.survey, si, std, a)
+    fixed = beyond.level if beyond.level is not None else Level.IO
     model = MemberModel(
         probs=table.probs, point=table.point, terms=terms, floors=floor_table,
         grade_bounds=np.array([gb["slight"], gb["light"], gb["moderate"]]) / 100.0,
         level_of_grade=np.array([Level.of(a.grade_to_level[g])
                                  for g in ("slight", "light", "moderate", "severe")]),
-        vertical=vertical, collapse_rule=collapse_rule)
+        vertical=vertical, collapse_rule=collapse_rule, fixed=int(fixed))
     floor = None
     level = None
     if st.members:
@@ -111,10 +115,10 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
         collapse = collapse_rule and bool((table.point[vertical] == 5).all())
         floor = Floor(Level(int(at_point[g])), g if at_point[g] > 0 else None, collapse,
                       n_vertical)
-        # The same as model.level(point): the worst of the capacity level, the floor and the
+        # The same as model.level(point): the worst of the capacity levels, the floor and the
         # collapse rule (a test checks the two agree).
         level = (Level.BEYOND_CP if collapse else
-                 max(floor.level, capacity.level if capacity is not None else Level.IO))
+                 max(floor.level, capacity.level if capacity is not None else Level.IO, fixed))
     counted = set().union(*(t.groups for t in terms.values())) if terms else set()
     point_l = table.point.tolist()
     floor_l = floor_table[np.arange(len(floors)), table.point].tolist() if floors else []
@@ -124,10 +128,10 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
          "floor": LEVELS[floor_l[gi]] if point_l[gi] else None,
          "eta": (sig6(float(eta_t[point_l[gi]])) if gi in counted and eta_t is not None
                  else None),
-         "class_from": c.class_from}
+         "class_from": c.class_from, **member_capacity(beyond, gi, m)}
         for gi, (m, c, eta_t) in enumerate(zip(st.members, table.items, etas, strict=True))])
     return StoreyMembers(si, table, floors, r_by_dir, capacity, floor, model, level, results,
-                         defaulted)
+                         defaulted, beyond)
 
 
 def capacity_reason(ctx: Context, sm: StoreyMembers) -> str:

@@ -20,6 +20,7 @@ TYPES = sorted(load().steel.types, key=lambda k: (load().steel.types[k].index, k
 FRACTURES = [k for k in TYPES if load().steel.types[k].index >= 6]
 WALL_SYSTEMS = ["urm_wall", "urm_infill", "reinforced_masonry_wall", "rc_wall"]
 QUIET = [reading("x", 0.4), reading("y", -0.3)]
+SIGNS = {"wall": ["core_crushed", "out_of_plane"], "infill": ["out_of_plane"]}
 
 
 @st.composite
@@ -53,7 +54,7 @@ def wall(draw: Any, kind: str = "wall", damaged: bool = True) -> dict[str, Any]:
         elif pick == 2:
             m["crack_mm"] = draw(st.floats(0.05, 15).map(lambda v: round(v, 2)))
         elif pick == 3:
-            m["signs"] = [draw(st.sampled_from(["core_crushed", "out_of_plane"]))]
+            m["signs"] = [draw(st.sampled_from(SIGNS[kind]))]
     if draw(st.booleans()):
         m["dir"] = draw(st.sampled_from(["x", "y"]))
     return m
@@ -109,7 +110,7 @@ def _worse_wall(m: dict[str, Any], data: st.DataObject) -> dict[str, Any]:
     elif "crack_mm" in m:
         out["crack_mm"] = round(m["crack_mm"] + data.draw(st.floats(0, 10)), 2)
     else:
-        out["signs"] = ["core_crushed"]
+        out["signs"] = [SIGNS[m["kind"]][0]]
     return out
 
 
@@ -165,3 +166,37 @@ def test_every_wall_at_the_worst_severity_never_occupy(system: str, data: st.Dat
     a = _walls(groups, system)
     assert a.tier != "occupy"
     assert all(c.ratio == 0.0 for c in a.residual_capacity if c.method == "fema306")
+
+
+@given(st.lists(st.tuples(st.sampled_from([0.0, 1.0, 2.0, 4.0, 6.0, 8.0, 10.0]),
+                          st.integers(1, 6)), min_size=1, max_size=6),
+       st.integers(0, 30), st.data())
+def test_layered_estimate_never_falls_as_an_index_rises(vals: list[tuple[float, int]],
+                                                        extra: int, data: st.DataObject) -> None:
+    from triage.assess.steel import ConnectionIndex, layered_estimate
+
+    def groups(v: list[tuple[float, int]]) -> list[ConnectionIndex]:
+        return [ConnectionIndex(i, None, d, "type", k, k) for i, (d, k) in enumerate(v)]
+
+    n = sum(k for _, k in vals)
+    if n < 2:
+        return
+    total = n + extra + 1
+    std = load()
+    before = layered_estimate(groups(vals), n, total, std)
+    i = data.draw(st.integers(0, len(vals) - 1))
+    up = data.draw(st.sampled_from([d for d in (0.0, 1.0, 2.0, 4.0, 6.0, 8.0, 10.0)
+                                    if d >= vals[i][0]]))
+    raised = [*vals[:i], (up, vals[i][1]), *vals[i + 1:]]
+    assert layered_estimate(groups(raised), n, total, std) >= before - 1e-12
+    mean = sum(d * k for d, k in vals) / n
+    assert mean - 1e-12 <= before <= 10.0
+    assert before <= max(d for d, _ in vals) + 1e-12   # never over the highest index found
+    found = {d for d, _ in vals} - {0.0}
+    if len(found) == 1:   # one index besides 0: the document's form, at most that index
+        import math
+
+        from triage.assess.stats import t_quantile
+        s = math.sqrt(sum(k * (d - mean) ** 2 for d, k in vals) / (n - 1))
+        doc = mean + t_quantile(0.9, n - 1) * s / math.sqrt(n) * math.sqrt(1 - n / total)
+        assert abs(before - min(doc, max(found))) < 1e-9

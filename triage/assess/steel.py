@@ -6,8 +6,8 @@ when recorded, else the type of the assumption `fema352_fractured_type` when the
 the sign `connection_fractured`, else 0 (inspected, no damage). The floor's index D in that
 direction is over the connections inspected (`inspected`, all of the group when absent): their
 mean when every connection was inspected, else the document's upper estimate of the mean
-(`SteelTable.sample`), with the sample's standard deviation replaced by a bound of ours that
-never falls when an index rises (so more damage never raises the capacity). Connections not
+(`SteelTable.sample`), taken layer by layer of the index (ours, `layered_estimate`: the
+document's form where one damage index was found, and it never falls when an index rises). Connections not
 inspected are never counted, as undamaged or otherwise.
 
 Ours, not the document's: the residual capacity ratio 1 - D / 10, the level of D
@@ -126,17 +126,34 @@ def steel_floor(st: Storey, d: str, systems: Systems, std: Standards,
                           f"{n} of {total} connections inspected: too few to estimate the "
                           f"rest (at least {a.fema352_min_sample}, ours)")
     else:
-        # Ours: the sample's standard deviation s is replaced by its bound
-        # sqrt(sum(d^2) / (n - 1)) >= s, which never falls when an index rises; with s itself,
-        # raising a low index towards the others shrinks the spread and can lower the estimate.
-        tq = t_quantile(std.steel.sample.confidence, n - 1)
-        spread = math.sqrt(sum(g.seen * g.index ** 2 for g in groups) / (n - 1))
-        index = min(mean + tq * spread / math.sqrt(n) * math.sqrt(1.0 - n / total),
-                    std.steel.scale_max)
+        index = layered_estimate(groups, n, total, std)
     index = round(index, 9)
     ratio = min(max(1.0 - index / std.steel.scale_max, 0.0), 1.0)
     return SteelFloor(d, tuple(groups), n, total, mean, sd, index, sampled, ratio,
                       level_of_index(index, a), None)
+
+
+def layered_estimate(groups: tuple[ConnectionIndex, ...] | list[ConnectionIndex], n: int,
+                     total: int, std: Standards) -> float:
+    """The upper estimate of a floor's mean index from a sample, taken layer by layer (ours).
+
+    FEMA 352's form, mean + t * s / sqrt(n) * sqrt(1 - n / N) (from memory), applied to each
+    layer of the index: for each level l the fraction p(l) of connections inspected with an
+    index of at least l gets its upper estimate, p + t * sqrt(p (1 - p) n / (n - 1)) / sqrt(n)
+    * sqrt(1 - n / N), at most 1, and D is their sum over the layers (the mean is the same sum
+    of the plain fractions). Where the sample holds one index besides 0 this is the document's
+    form, at most that index; unlike it, it never falls when an index rises (with s itself,
+    raising a low index towards the others shrinks the spread and lowers the estimate).
+    """
+    tq = t_quantile(std.steel.sample.confidence, n - 1)
+    scale = tq / math.sqrt(n) * math.sqrt(1.0 - n / total) * math.sqrt(n / (n - 1))
+    levels = sorted({g.index for g in groups if g.seen > 0 and g.index > 0})
+    out, below = 0.0, 0.0
+    for lv in levels:
+        p = sum(g.seen for g in groups if g.index >= lv) / n
+        out += (lv - below) * min(1.0, p + scale * math.sqrt(p * (1.0 - p)))
+        below = lv
+    return min(out, std.steel.scale_max)
 
 
 def steel_reason(label: str, f: SteelFloor, std: Standards) -> str:
@@ -150,8 +167,8 @@ def steel_reason(label: str, f: SteelFloor, std: Standards) -> str:
         assert f.sd is not None
         how = (f"upper estimate {f.index:.2f} from {f.inspected} of {f.count} connections "
                f"inspected (mean {f.mean:.2f}, sd {f.sd:.2f}, "
-               f"{std.steel.sample.confidence:.0%} one-sided, spread bounded from above, "
-               "ours); those not inspected are never counted as undamaged")
+               f"{std.steel.sample.confidence:.0%} one-sided, layer by layer, ours); those "
+               "not inspected are never counted as undamaged")
     else:
         how = f"mean {f.index:.2f} of all {f.count} connections inspected"
     return (f"{head}: FEMA 352 floor damage index D = {f.index:.2f} of "

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from triage.model import Survey
+from triage.standards.vocabulary import words
 
 from .drift import pct
 from .result import (
@@ -84,6 +85,31 @@ def plumbness_words(a: Assessment) -> list[str]:
             "or a second method would settle it" for p in a.plumbness]
 
 
+def capacity_words(a: Assessment) -> list[str]:
+    """One line per storey, direction and method of residual capacity, the worse marked.
+
+    FEMA 352 and FEMA 306 ratios are ours, on tables from memory; a FEMA 306 grade is ours and
+    said so, so that it is not read as a JBDPA grade.
+    """
+    out = []
+    for c in a.residual_capacity:
+        head = f"storey {c.storey}, {c.dir}: {words('capacity_methods', c.method)}"
+        if c.ratio is None:
+            out.append(f"{head}: not established ({c.inspected} of {c.count} inspected)")
+            continue
+        text = f"{head} {c.ratio:.1%}"
+        if c.index is not None:
+            text += f" (D = {c.index:.2f} of 10)"
+        if c.grade is not None:
+            text += f", grade {c.grade}" + (" (ours)" if c.method == "fema306" else "")
+        text += f", {c.level}"
+        if c.sampled:
+            text += f"; {c.inspected} of {c.count} inspected"
+        text += f"; {c.source}" + ("  [taken]" if c.taken else "")
+        out.append(text)
+    return out
+
+
 def summary(survey: Survey, a: Assessment) -> str:
     """A short readable summary that starts with the caution."""
     b = survey.building
@@ -111,12 +137,15 @@ def summary(survey: Survey, a: Assessment) -> str:
     if a.plumbness:
         lines += ["", "plumbness (drift that cannot be told from construction lean):"]
         lines += [f"  - {line}" for line in plumbness_words(a)]
-    lines += ["", "storey   drift x   drift y   level x   level y   R        grade"]
+    lines += ["", "storey   drift x   drift y   level x   level y   capacity grade"]
     for s in reversed(a.storeys):
         r = "—" if s.residual_capacity is None else f"{s.residual_capacity:.1%}"
         lines.append(f"{s.label:<8} {_pct(s.drift_ratio.x):>8}  {_pct(s.drift_ratio.y):>8}  "
                      f"{s.performance_level.x or '—':<8}  {s.performance_level.y or '—':<8}  "
                      f"{r:<7}  {s.damage_grade or '—'}")
+    if a.residual_capacity:
+        lines += ["", "residual capacity (per storey, direction and method; the worse is taken):"]
+        lines += [f"  - {line}" for line in capacity_words(a)]
     if a.hazards:
         lines += ["", "hazards:"]
         for h in a.hazards:

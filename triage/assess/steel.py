@@ -7,8 +7,8 @@ the sign `connection_fractured`, else 0 (inspected, no damage). The floor's inde
 direction is over the connections inspected (`inspected`, all of the group when absent): their
 mean when every connection was inspected, else the document's upper estimate of the mean
 (`SteelTable.sample`), taken layer by layer of the index (ours, `layered_estimate`: the
-document's form where one damage index was found, and it never falls when an index rises). Connections not
-inspected are never counted, as undamaged or otherwise.
+document's form where one damage index was found, and it never falls when an index rises).
+Connections not inspected are never counted, as undamaged or otherwise.
 
 Ours, not the document's: the residual capacity ratio 1 - D / 10, the level of D
 (`fema352_index_levels`) and the damage class a type implies for the damage floors

@@ -51,8 +51,9 @@ def _refused(url: str, statement: str) -> str:
 
 def test_the_field_role_can_neither_update_delete_nor_truncate(centre, tmp_path):
     _synced(centre, tmp_path)
-    for table in [*DATA_TABLES, "schema_version"]:
-        col = "version" if table == "schema_version" else SENT[table][-1]
+    for table in [*DATA_TABLES, "schema_version", "survey_heads", "building_latest"]:
+        col = {"schema_version": "version", "survey_heads": "tier",
+               "building_latest": "tier"}.get(table) or SENT[table][-1]
         for statement in (f"UPDATE triage.{table} SET {col} = {col}",
                           f"DELETE FROM triage.{table}",
                           f"TRUNCATE triage.{table}"):
@@ -65,7 +66,8 @@ def test_the_field_role_can_neither_update_delete_nor_truncate(centre, tmp_path)
         for other in (c for c in SENT[table] if c not in KEYS[table]):
             assert "permission denied" in _refused(
                 centre.field, f"SELECT {other} FROM triage.{table}")
-    for view in ("survey_list", "buildings", "conflicts", "current_versions", "building_map"):
+    for view in ("survey_list", "buildings", "conflicts", "current_versions", "building_map",
+                 "survey_heads", "building_latest"):
         assert "permission denied" in _refused(centre.field, f"SELECT * FROM triage.{view}")
     # Nothing changed by any of it.
     assert centre.rows("SELECT count(*) FROM triage.versions") == [(8,)]
@@ -172,25 +174,38 @@ def test_an_older_schema_is_upgraded_in_place_keeping_every_row(pg, tmp_path, cl
     assert code == 0 and "nothing to send" in out, err
 
 
-def test_a_version_2_centre_gets_the_summary_snapshot_filled_and_current(pg, tmp_path, cli,
-                                                                          monkeypatch):
-    from triage.centre import reader, schema
+def test_a_version_3_centre_gets_its_tables_filled_and_kept_current(pg, tmp_path, cli,
+                                                                     monkeypatch):
+    from tests.centre.conftest import Centre
+    from triage.centre import schema
 
-    pg.createdb("second")
-    url = pg.url("second")
+    pg.createdb("third")
+    url = pg.url("third")
     with monkeypatch.context() as m:
-        m.setattr(schema, "MIGRATIONS", schema.MIGRATIONS[:2])
+        m.setattr(schema, "MIGRATIONS", schema.MIGRATIONS[:3])
         schema.init(url)
         laptop(tmp_path / "lap.db", 8)
         with Store.open(tmp_path / "lap.db") as st:
-            assert sync(st, pg.url("second", "field4", password("field4"))).versions == 8
-        assert pg.sql("SELECT to_regclass('triage.building_summary')", "second") == ""
-        assert pg.sql("SELECT count(*) FROM triage.building_map", "second") == "7"
+            st.set_value(st.list_surveys()[0].id, "storeys[0].notes", "looked again")
+            assert sync(st, pg.url("third", "field4", password("field4"))).versions == 8
+        assert pg.sql("SELECT to_regclass('triage.survey_heads')", "third") == ""
     code, out, err = cli("centre", "init", url)
-    assert code == 0 and "schema upgraded to version 3" in out, err
-    assert pg.sql("SELECT count(*) FROM triage.building_summary", "second") == "7"
-    with psycopg.connect(pg.url("second", "reader", password("reader"))) as c:
-        fresh = c.execute(reader._SNAPSHOT).fetchall()
-        live = c.execute(reader._BUILDINGS).fetchall()
-    assert len(fresh) == 7 and sorted(fresh) == sorted(live)
-    assert pg.sql("SELECT count(*) FROM triage.building_map", "second") == "7"
+    assert code == 0 and "schema upgraded to version 4" in out, err
+    assert pg.sql("SELECT to_regclass('triage.building_summary')", "third") == ""
+    centre = Centre(pg, "third")
+    assert centre.check_maintained() == 7
+    assert pg.sql("SELECT count(*) FROM triage.building_map", "third") == "7"
+    # Rows sent after the upgrade reach the tables in their own transaction.
+    laptop(tmp_path / "more.db", 9, seed="more")
+    with Store.open(tmp_path / "more.db") as st:
+        sync(st, pg.url("third", "field4", password("field4")))
+    assert centre.check_maintained() == 8
+
+
+def test_a_writer_outside_read_committed_is_refused(centre):
+    with psycopg.connect(centre.admin) as c:
+        c.execute("SET TRANSACTION ISOLATION LEVEL REPEATABLE READ")
+        with pytest.raises(psycopg.errors.RaiseException, match="READ COMMITTED"):
+            c.execute("INSERT INTO triage.reports (survey_id, revision, at, who, origin) "
+                      "VALUES ('x', 1, 'now', 'me', 'o')")
+    assert centre.rows("SELECT count(*) FROM triage.reports") == [(0,)]

@@ -2,8 +2,10 @@
 
 `triage --db postgresql://… list|export|report|compare|summary` read through it and get the
 same output as from a local database holding the same surveys (a merged one): the rows come
-from the views `triage.survey_list` and `triage.buildings` (see `schema`), ordered here as the
-local store orders them (byte order of the text, ASCII letters folded for building names).
+from the view `triage.survey_list` and the table `triage.building_latest` (kept current by
+triggers: see `heads`), ordered as the local store orders them (byte order of the text, ASCII
+letters folded for building names). `summary` in text and GeoJSON takes its rows written by
+the server (`AreaLines`, SQL in `summary_sql`), in one repeatable-read transaction.
 
 It never writes: its session is read-only (`SET SESSION CHARACTERISTICS AS TRANSACTION READ
 ONLY`), and it has no `record_report`, so `triage report` from the centre writes only its PDF.
@@ -15,13 +17,15 @@ folder: `photo_dir` is None.
 from __future__ import annotations
 
 import json
+from collections.abc import Callable
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from triage.store import StoreError
-from triage.store.area import BuildingRow
+from triage.store.area import AreaTally, BuildingRow
 from triage.store.rows import SurveyRow
 
+from . import summary_sql as q
 from .connect import CentreError, connect, first_line, redact
 from .schema import check_schema
 
@@ -37,26 +41,6 @@ SELECT id, building_id, building, address, lat, lon, inspector, at, tier, level,
        conflict_of, conflict, reported_revision, at_utc, first_id, state, doc_sha256, rank
 FROM triage.survey_list
 """
-
-_COLUMNS = """
-SELECT building_id, building, address, lat, lon, inspected_at, inspector, tier, level,
-       gov_storey, provisional, conflict, survey_id, surveys
-"""
-# The local summary's order, by the server: ASCII letters folded in the name, then byte order
-# (COLLATE "C": code point order, as Python compares str) of name, address and id.
-_ORDER = """
-ORDER BY translate(building, 'ABCDEFGHIJKLMNOPQRSTUVWXYZ', 'abcdefghijklmnopqrstuvwxyz')
-         COLLATE "C", address COLLATE "C", building_id COLLATE "C"
-"""
-_BUILDINGS = _COLUMNS + "FROM triage.buildings" + _ORDER
-# The snapshot, only when its marker equals the live tables' (one statement: one view of
-# both); no rows when stale (or when the area is empty): then the live view.
-_SNAPSHOT = _COLUMNS + """FROM triage.building_summary
-WHERE EXISTS (SELECT 1 FROM triage.summary_state s, triage.summary_mark m
-              WHERE (s.versions_seq, s.versions_n, s.assessments_seq, s.assessments_n)
-                  = (m.versions_seq, m.versions_n, m.assessments_seq, m.assessments_n))
-""" + _ORDER
-
 
 
 class CentreReader:
@@ -80,6 +64,12 @@ class CentreReader:
             # more than running them; the sorts of a whole area fit in memory.
             conn.execute("SET jit = off")
             conn.execute("SET work_mem = '64MB'")
+            conn.execute("SET extra_float_digits = 1")   # shortest exact floats, as repr
+            # The summary's table is read whole, in order, from memory: by its index (the
+            # default cost of a random read assumes a spinning disk and sorts instead).
+            conn.execute("SET random_page_cost = 1.1")
+            # A reading of several statements (the summary's counts and rows) sees one state.
+            conn.isolation_level = psycopg.IsolationLevel.REPEATABLE_READ
             check_schema(conn, url)
         except psycopg.Error as err:
             conn.close()
@@ -94,7 +84,8 @@ class CentreReader:
         """The centre as messages name it: its URL without the password."""
         return redact(self.url)
 
-    def _query(self, sql: str, params: tuple[Any, ...] = ()) -> list[tuple[Any, ...]]:
+    def _query(self, sql: str, params: tuple[Any, ...] | dict[str, Any] = ()
+               ) -> list[tuple[Any, ...]]:
         import psycopg
 
         try:
@@ -213,13 +204,33 @@ class CentreReader:
         return data if hashlib.sha256(data).hexdigest() == sha256 else None
 
     def building_rows(self) -> list[BuildingRow]:
-        """One row per building: its latest visible survey; ordered as the local summary.
+        """One row per building: its latest visible survey; ordered as the local summary."""
+        return list(map(BuildingRow._make, self._query(q.BUILDINGS)))   # ordered by the server
 
-        From the snapshot `building_summary` when it is up to date, else the live view.
-        """
-        rows = self._query(_SNAPSHOT) or self._query(_BUILDINGS)   # ordered by the server
-        return [BuildingRow(r[0], r[1], r[2], r[3], r[4], r[5], r[6], r[7], r[8], r[9], r[10],
-                            bool(r[11]), r[12], int(r[13])) for r in rows]
+    def _reading(self, words: Callable[[str | None], str]) -> tuple[AreaTally, dict[str, Any]]:
+        """The counts, and the words of the tiers seen (in the caller's transaction)."""
+        counts = self._query(q.TALLY)
+        tiers = [t for t, _, _ in counts]
+        tally = AreaTally(sum(n for _, n, _ in counts), {t: int(n) for t, n, _ in counts},
+                          sum(int(c) for _, _, c in counts))
+        return tally, {"tiers": tiers, "words": [words(t) for t in tiers]}
+
+    def summary_text_rows(self, words: Callable[[str | None], str]
+                          ) -> tuple[AreaTally, list[tuple[str, float | None, float | None, str]]]:
+        """The counts and each building's text row but its location, laid out by the server."""
+        with self.conn.transaction():   # repeatable read: the counts agree with the rows
+            tally, params = self._reading(words)
+            params["words"] = [w.ljust(q.TIER_WIDTH) for w in params["words"]]
+            stored = self._query(q.STORED_LAYOUT) == [(q.LAYOUT,)]
+            return tally, self._query(q.TEXT_STORED if stored else q.TEXT_MADE, params)
+
+    def summary_features(self, words: Callable[[str | None], str], caution: str
+                         ) -> tuple[list[str], list[tuple[str, str]]]:
+        """Each located building's GeoJSON Feature written by the server, and those left out."""
+        with self.conn.transaction():
+            _, params = self._reading(words)
+            features = [r[0] for r in self._query(q.FEATURES, {**params, "caution": caution})]
+            return features, self._query(q.MISSING)
 
     def close(self) -> None:
         """Close the connection."""

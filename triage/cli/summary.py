@@ -12,7 +12,7 @@ from typing import TYPE_CHECKING, Any
 from .common import open_reader
 
 if TYPE_CHECKING:
-    from triage.store.area import BuildingRow
+    from triage.store.area import AreaLines, AreaTally, BuildingRow
     from triage.store.reader import SurveyReader
 
 
@@ -33,24 +33,41 @@ def _cut(text: str, n: int) -> str:
     return text if len(text) <= n else text[: n - 1] + "…"
 
 
-def summary_text(rows: list[BuildingRow]) -> str:
-    """The text form: caution, one row per building, counts per tier at the end."""
+def _head() -> list[str]:
+    from triage.assess import CAUTION
+    from triage.store.area import TEXT_COLUMNS, TEXT_GAP
+
+    return [f"CAUTION: {CAUTION}", "",
+            TEXT_GAP.join(f"{h:<{w}}" if w else h for h, w, _ in TEXT_COLUMNS)]
+
+
+def _foot(tally: AreaTally) -> list[str]:
     from triage.assess import CAUTION, TIERS
 
-    lines = [f"CAUTION: {CAUTION}", "",
-             f"{'building':<24}  {'address':<28}  {'location':<19}  {'inspected':<25}  "
-             f"{'inspector':<16}  {'tier':<12}  {'level':<9}  {'governing':<9}  "
-             f"{'provisional':<11}  conflict"]
+    n = tally.buildings
+    return ["", f"{n} building{'s' if n != 1 else ''}: "
+            + ", ".join(f"{_words(t)} {tally.tiers.get(t, 0)}" for t in TIERS)
+            + f", not assessed {tally.tiers.get(None, 0)}; {tally.conflicts} with a conflict "
+              "to resolve", f"The tiers are indicative. {CAUTION}"]
+
+
+def summary_text(rows: list[BuildingRow]) -> str:
+    """The text form: caution, one row per building, counts per tier at the end."""
+    from triage.assess import TIERS
+    from triage.store.area import TEXT_COLUMNS, TEXT_GAP, AreaTally
+
+    lines = _head()
     # One pass, the per-row work inlined (an area has 100,000 buildings): tier words and flag
     # words looked up, the cuts done in place; the same text as _cut, _words and yes_no give.
     words: dict[str | None, str] = {t: _words(t) for t in TIERS}
     words[None] = _words(None)
     flags = {None: "—", True: "yes", False: "no"}
     tally: dict[str | None, int] = dict.fromkeys(TIERS, 0)
+    tally[None] = 0
     conflicts = 0
     append = lines.append
     # %-formatting pads by characters as the header's f-string does, and is quicker.
-    row = "%-24s  %-28s  %-19s  %-25s  %-16s  %-12s  %-9s  %-9s  %-11s  %s"
+    row = TEXT_GAP.join(f"%-{w}s" if w else "%s" for _, w, _ in TEXT_COLUMNS)
     for r in rows:
         b, a, p, t = r.building, r.address, r.inspector, r.tier
         if len(b) > 24:
@@ -70,12 +87,17 @@ def summary_text(rows: list[BuildingRow]) -> str:
             conflicts += 1
         append(row % (b, a, loc, r.at, p, w, r.level or "—", r.governing_storey or "—",
                       flags[r.provisional], "CONFLICT" if r.conflict else "—"))
-    counts = {t: tally[t] for t in TIERS}
-    unassessed = sum(1 for r in rows if r.tier is None)
-    lines += ["", f"{len(rows)} building{'s' if len(rows) != 1 else ''}: "
-              + ", ".join(f"{_words(t)} {n}" for t, n in counts.items())
-              + f", not assessed {unassessed}; {conflicts} with a conflict to resolve",
-              f"The tiers are indicative. {CAUTION}"]
+    lines += _foot(AreaTally(len(rows), tally, conflicts))
+    return "\n".join(lines) + "\n"
+
+
+def summary_text_of(st: AreaLines) -> str:
+    """The same text from a reader that lays the rows out itself (the location done here)."""
+    tally, rows = st.summary_text_rows(_words)
+    lines = _head()
+    lines += [before + ("%.5f,%.5f" % (lat, lon) if lat is not None and lon is not None  # noqa: UP031
+                        else "—").ljust(19) + after for before, lat, lon, after in rows]
+    lines += _foot(tally)
     return "\n".join(lines) + "\n"
 
 
@@ -125,10 +147,30 @@ def summary_geojson(rows: list[BuildingRow]) -> dict[str, Any]:
     return {"type": "FeatureCollection", "caution": CAUTION, "features": features}
 
 
+def _geojson_of(st: AreaLines) -> tuple[str, list[tuple[str, str]]]:
+    """The GeoJSON text and the buildings left out, from a reader that writes the Features."""
+    from triage.assess import CAUTION
+
+    features, missing = st.summary_features(_words, json.dumps(CAUTION, ensure_ascii=False))
+    head = json.dumps({"type": "FeatureCollection", "caution": CAUTION, "features": []},
+                      ensure_ascii=False)
+    return head[:-2] + ", ".join(features) + "]}", missing
+
+
 def run(args: argparse.Namespace) -> int:
     """One row per building id, its latest survey, from the stored assessments."""
+    from triage.store.area import AreaLines
+
     st: SurveyReader = open_reader(args)
     try:
+        if isinstance(st, AreaLines) and args.format in ("text", "geojson"):
+            if args.format == "text":
+                sys.stdout.write(summary_text_of(st))
+                return 0
+            text, missing = _geojson_of(st)
+            sys.stdout.write(text + "\n")
+            _say_missing(missing)
+            return 0
         rows = st.building_rows()
     finally:
         st.close()
@@ -136,12 +178,15 @@ def run(args: argparse.Namespace) -> int:
         sys.stdout.write(summary_csv(rows))
     elif args.format == "geojson":
         sys.stdout.write(json.dumps(summary_geojson(rows), ensure_ascii=False) + "\n")
-        missing = [r for r in rows if not r.located]
-        if missing:
-            names = "; ".join(f"{r.building} ({r.building_id})" for r in missing)
-            sys.stderr.write(f"triage summary: {len(missing)} building"
-                             f"{'s' if len(missing) != 1 else ''} without a location, not "
-                             f"in the GeoJSON: {names}\n")
+        _say_missing([(r.building, r.building_id) for r in rows if not r.located])
     else:
         sys.stdout.write(summary_text(rows))
     return 0
+
+
+def _say_missing(missing: list[tuple[str, str]]) -> None:
+    if missing:
+        names = "; ".join(f"{name} ({bid})" for name, bid in missing)
+        sys.stderr.write(f"triage summary: {len(missing)} building"
+                         f"{'s' if len(missing) != 1 else ''} without a location, not "
+                         f"in the GeoJSON: {names}\n")

@@ -3,19 +3,69 @@
 Nothing here assesses: tier, level and governing storey are the columns stored with each
 survey after its last recompute. A building is flagged `conflict` while two versions of one of
 its surveys (kept by a merge) are both visible.
+
+`TEXT_COLUMNS` is the text summary's table, for `triage summary` and for a reader that lays
+the rows out itself (`AreaLines`: the centre does the per-building work on its server, so
+100,000 buildings never become 100,000 Python objects).
 """
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, NamedTuple, Protocol, runtime_checkable
 
 if TYPE_CHECKING:
     from .core import StoreCore
 
+# The text summary's columns: heading, width (padded with spaces to it; 0: the last column),
+# and whether a longer value is cut to the width with "…" (else it runs on).
+TEXT_COLUMNS: tuple[tuple[str, int, bool], ...] = (
+    ("building", 24, True), ("address", 28, True), ("location", 19, False),
+    ("inspected", 25, False), ("inspector", 16, True), ("tier", 12, False),
+    ("level", 9, False), ("governing", 9, False), ("provisional", 11, False),
+    ("conflict", 0, False))
+TEXT_GAP = "  "
+NONE_MARK = "—"     # an empty cell
+
 
 @dataclass(frozen=True)
-class BuildingRow:
+class AreaTally:
+    """The summary's counts: buildings, per tier (None: not assessed), with a conflict."""
+
+    buildings: int
+    tiers: dict[str | None, int]
+    conflicts: int
+
+
+# A text row as a reader lays it out: the cells before the location, latitude, longitude,
+# the cells after it (each with its gaps); the caller formats the location between.
+TextRow = tuple[str, float | None, float | None, str]
+
+
+@runtime_checkable
+class AreaLines(Protocol):
+    """A reader that does the summary's per-building work itself (the centre, in SQL)."""
+
+    def summary_text_rows(self, words: Callable[[str | None], str]
+                          ) -> tuple[AreaTally, list[TextRow]]:
+        """The counts and one `TextRow` per building in the summary's order, as one reading.
+
+        `words(tier)` gives a tier's words (None: not assessed) for the tier column.
+        """
+        ...
+
+    def summary_features(self, words: Callable[[str | None], str], caution: str
+                         ) -> tuple[list[str], list[tuple[str, str]]]:
+        """Each located building's GeoJSON Feature text, and each one left out (no location).
+
+        A Feature reads as `json.dumps` writes it, in the summary's order, with `caution` (a
+        JSON string) as its last property; a building left out is (name, id).
+        """
+        ...
+
+
+class BuildingRow(NamedTuple):
     """A building and the state of its latest survey."""
 
     building_id: str

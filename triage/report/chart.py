@@ -12,8 +12,9 @@ from typing import Any
 
 from reportlab.platypus import Flowable
 
-from .model import ChartFigure, ChartPoint, pct
+from .rows import ChartFigure, ChartPoint
 from .style import ACCENT, ACCENT_WEAK, INK, MUTED
+from .words import pct
 
 # Round tops of the drift axis (in units of a power of ten) and how many ticks divide each.
 _TOPS = ((1, 5), (1.2, 6), (1.5, 3), (2, 4), (2.5, 5), (3, 6), (4, 4), (5, 5), (6, 6), (8, 4),

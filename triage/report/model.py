@@ -4,27 +4,58 @@
 into a `ReportModel`. The drawing code (`triage.report.draw`) only lays these strings out, so
 what the report says can be tested without drawing a PDF. Strings here are the user's text as
 typed: the drawer escapes them for reportlab's markup, never this module.
+
+By concern: `words.py` (numbers, times, citations, engine lines in words), `rows.py` (the
+tables of storeys, readings, members, hazards, photos), `method.py` (the method page); this
+module puts page one together and holds the `ReportModel`.
 """
 
 from __future__ import annotations
 
 import hashlib
-import re
 from dataclasses import dataclass, field
-from functools import cache
 from pathlib import Path
 from typing import Any, Protocol
 
 from triage.assess import CAUTION, PROBABILITY_LABEL, TIERS, Assessment, tier_words
-from triage.assess.spots import Spot, spots_of_survey
 from triage.model import Survey
 from triage.photos import PhotoLoader, folder_loader
 from triage.standards import Assumptions, Standards, load
-from triage.standards.vocabulary import message_words, vocabulary, words
+from triage.standards.vocabulary import words
 
-DASH = "—"
-CLIP = 300  # longest text put in a table cell; longer ones are printed in full under Notes
-CLIPPED = "… (in full under Notes)"
+from .method import (
+    STATUS_WORDS,
+    AssumptionRow,
+    FigureRow,
+    MethodRow,
+    assumption_rows,
+    figure_rows,
+    method_rows,
+    method_text,
+)
+from .rows import (
+    ChartFigure,
+    ChartPoint,
+    HazardRow,
+    MemberRow,
+    PhotoItem,
+    SpotRow,
+    SpotTable,
+    StoreyRow,
+    chart,
+    hazard_rows,
+    member_rows,
+    photo_items,
+    provisional_storeys,
+    spot_tables,
+    storey_rows,
+)
+from .words import CLIP, CLIPPED, DASH, Clipper, in_words, pct, when_text
+
+__all__ = ["CLIP", "CLIPPED", "DASH", "AssumptionRow", "ChartFigure", "ChartPoint",
+           "Comparison", "FigureRow", "HazardRow", "MemberRow", "MethodRow", "PhotoItem",
+           "ReportModel", "Signer", "SpotRow", "SpotTable", "StoreyRow", "build_report_model",
+           "in_words", "pct", "provisional_storeys", "spot_tables", "survey_digest", "when_text"]
 
 
 class Comparison(Protocol):
@@ -45,120 +76,6 @@ class Signer:
     signed_at: str = ""  # as printed, e.g. "2026-12-01 20:00:00 UTC"
     covers: str = ""  # what the signature covers, in words
     not_inspector: str = ""  # the inspector ("name (id …)") when the signer is someone else
-
-
-@dataclass(frozen=True)
-class StoreyRow:
-    """One row of the storey table (bottom to top in the model, drawn top to bottom)."""
-
-    label: str
-    height: str
-    drift_x: str
-    drift_y: str
-    level_x: str
-    level_y: str
-    r: str
-    grade: str
-    access: str
-
-
-@dataclass(frozen=True)
-class SpotRow:
-    """One spot of a storey and direction: every reading taken there, so it can be rechecked."""
-
-    where: str
-    readings: str  # each reading as taken: "3 mm over 2000 mm (sd 1 mm)" or "tilt 0.12° (sd …)"
-    baseline: str
-    value: str  # signed drift ratio ± standard uncertainty, in percent
-    repeats: str  # "n repeats averaged", "1 reading", or the largest of disagreeing repeats
-
-
-@dataclass(frozen=True)
-class SpotTable:
-    """The spots of one storey in one direction."""
-
-    storey: str
-    dir: str
-    rows: list[SpotRow]
-
-
-@dataclass(frozen=True)
-class ChartPoint:
-    """One storey of the drift profile: residual drift ratio per direction (None: unmeasured)."""
-
-    label: str
-    x: float | None
-    y: float | None
-
-
-@dataclass(frozen=True)
-class ChartFigure:
-    """A level figure drawn on the drift chart: IO, LS or CP of one direction's system."""
-
-    dirs: str
-    level: str
-    ratio: float
-    system: str
-
-
-@dataclass(frozen=True)
-class MemberRow:
-    """A member group as the report lists it."""
-
-    storey: str
-    group: str
-    kind: str
-    count: str
-    damage_class: str
-    eta: str
-    class_from: str
-    seen: str
-
-
-@dataclass(frozen=True)
-class HazardRow:
-    """A hazard and what it does."""
-
-    kind: str
-    where: str
-    storey: str
-    effect: str
-    keep_out: str
-    note: str
-    height: str = DASH  # height above ground, m
-    factor: str = DASH  # keep-out width per metre of height
-
-@dataclass(frozen=True)
-class PhotoItem:
-    """A photo named in the survey: where it belongs, its caption and its checked bytes.
-
-    `data` is None when the photo is not at hand (a missing file, a blob not in the store).
-    """
-
-    belongs_to: str
-    caption: str
-    path: str
-    data: bytes | None
-
-
-@dataclass(frozen=True)
-class MethodRow:
-    """A table the method rests on: name, source and how sure we are of it."""
-
-    what: str
-    source: str
-    status: str
-    note: str
-
-
-@dataclass(frozen=True)
-class AssumptionRow:
-    """A named assumption applied, with the value used."""
-
-    key: str
-    value: str
-    status: str
-    why: str
 
 
 @dataclass(frozen=True)
@@ -208,34 +125,13 @@ class ReportModel:
     extra: dict[str, Any] = field(default_factory=dict)
     spot_tables: list[SpotTable] = field(default_factory=list)
     state: str = "UNSIGNED"  # the signed state printed on every page
-
-
+    figures: list[FigureRow] = field(default_factory=list)
+    status_words: list[tuple[str, str]] = field(default_factory=list)
     @property
     def footer(self) -> str:
         """The identification printed at the foot of every page (page number added there)."""
         rev = f" · store revision {self.revision}" if self.revision is not None else ""
         return f"survey {self.survey_id} · survey digest {self.survey_digest}{rev}"
-
-
-def pct(v: float | None) -> str:
-    """A drift ratio as a percentage (two decimals under 1%), a dash when unmeasured."""
-    if v is None:
-        return DASH
-    p = v * 100.0
-    return f"{p:.2f}%" if abs(p) < 1.0 else f"{p:.1f}%"
-
-
-class _Clipper:
-    """Shortens text for table cells, keeping every full text for the Notes section."""
-
-    def __init__(self) -> None:
-        self.full: list[tuple[str, str]] = []
-
-    def __call__(self, what: str, text: str) -> str:
-        if len(text) <= CLIP:
-            return text
-        self.full.append((what, text))
-        return text[:CLIP - len(CLIPPED)].rstrip() + CLIPPED
 
 
 def survey_digest(survey: Survey) -> str:
@@ -265,155 +161,6 @@ def _systems_text(survey: Survey, std: Standards) -> str:
     return f"x: {nx}; y: {ny}"
 
 
-@cache
-def _key_pattern() -> tuple[re.Pattern[str], dict[str, str]]:
-    table = {k: e.words for sec, entries in vocabulary().items() if not sec.startswith("fields")
-             for k, e in entries.items() if "_" in k}
-    keys = sorted(table, key=len, reverse=True)
-    return re.compile(r"(?<![\w/.])(" + "|".join(map(re.escape, keys)) + r")(?!\w|\.toml)"), table
-
-
-def in_words(text: str, survey: Survey | None = None) -> str:
-    """A line of the engine in the shared vocabulary's words: no internal key is left in it."""
-    text = message_words(text, survey)
-    pattern, table = _key_pattern()
-    return pattern.sub(lambda m: table[m.group(1)], text)
-
-
-def when_text(at: Any) -> str:
-    """A time as people read it, with its zone: '1 December 2026, 14:05 UTC+13:00'."""
-    off = at.utcoffset()
-    zone = ""
-    if off is not None:
-        mins = int(off.total_seconds() // 60)
-        sign = "+" if mins >= 0 else "-"
-        zone = "UTC" if mins == 0 else f"UTC{sign}{abs(mins) // 60:02d}:{abs(mins) % 60:02d}"
-    return f"{at.day} {at:%B %Y, %H:%M} {zone}".strip()
-
-
-def _num(v: float) -> str:
-    return f"{v:g}"
-
-
-def _ratio_pm(value: float, u: float) -> str:
-    """A signed drift ratio and its standard uncertainty, in percent."""
-    return f"{value * 100:+.3f}% ± {u * 100:.3f}%"
-
-
-def _spot_row(survey: Survey, sp: Spot, a: Assumptions) -> SpotRow:
-    st = survey.storeys[sp.storey]
-    texts = []
-    for i in sp.readings:
-        r = st.readings[i]
-        if r.tilt_deg is not None:
-            sd = f"{r.sd_deg:g}°" if r.sd_deg is not None else f"{a.sd_tilt_deg:g}° (default)"
-            texts.append(f"reading {i + 1}: tilt {r.tilt_deg:g}°, sd {sd}")
-        else:
-            sd = f"{r.sd_mm:g} mm" if r.sd_mm is not None else f"{a.sd_offset_mm:g} mm (default)"
-            texts.append(f"reading {i + 1}: {_num(r.offset_mm or 0.0)} mm over "
-                         f"{_num(r.gauge_mm or 0.0)} mm, sd {sd}")
-    first = st.readings[sp.readings[0]]
-    if sp.baseline is None:
-        base = "none"
-    elif sp.method == "tilt":
-        bsd = first.baseline_sd_deg
-        base = f"{sp.baseline:g}° (sd {bsd if bsd is not None else a.sd_tilt_deg:g}°)"
-    else:
-        bsd = first.baseline_sd_mm
-        base = f"{sp.baseline:g} mm (sd {bsd if bsd is not None else a.sd_offset_mm:g} mm)"
-    n = len(sp.readings)
-    if n == 1:
-        rep = "1 reading"
-    elif sp.disagree:
-        rep = f"{n} readings disagree: the largest taken"
-    else:
-        rep = f"{n} repeats averaged"
-    return SpotRow(where=sp.where or "not given", readings="\n".join(texts), baseline=base,
-                   value=_ratio_pm(sp.value, sp.u), repeats=rep)
-
-
-def spot_tables(survey: Survey, a: Assumptions) -> list[SpotTable]:
-    """Every spot of the survey, one table per storey and direction (survey order)."""
-    tables: list[SpotTable] = []
-    for sp in spots_of_survey(survey, a).spots:
-        if not tables or tables[-1].storey != sp.storey_label or tables[-1].dir != sp.dir:
-            tables.append(SpotTable(sp.storey_label, sp.dir, []))
-        tables[-1].rows.append(_spot_row(survey, sp, a))
-    return tables
-
-
-def provisional_storeys(survey: Survey) -> list[str]:
-    """Which storeys leave the survey provisional, and why (the engine's rule, in words)."""
-    out = []
-    for st in survey.storeys:
-        why = []
-        if st.access != "full":
-            why.append(f"access {words('access', st.access)}")
-        elif not st.below_grade:
-            dirs = {r.dir for r in st.readings}
-            missing = [d for d in ("x", "y") if d not in dirs]
-            if missing:
-                why.append("no reading in " + " or ".join(missing))
-            if not st.members:
-                why.append("no member group")
-        if why:
-            out.append(f"storey {st.label} ({', '.join(why)})")
-    return out
-
-
-def _photos(survey: Survey, load: PhotoLoader | None) -> list[PhotoItem]:
-    """Each photo with its bytes from `load` (checked there); a refusal there refuses all."""
-    found: list[PhotoItem] = []
-
-    def add(belongs: str, field: str, photos: Any) -> None:
-        for j, ph in enumerate(photos):
-            data = load(ph, f"{field}.photos[{j}]") if load is not None else None
-            found.append(PhotoItem(belongs, ph.caption, ph.path, data))
-
-    for si, st in enumerate(survey.storeys):
-        add(f"storey {st.label}", f"storeys[{si}]", st.photos)
-        for i, m in enumerate(st.members):
-            ref = f" {m.ref}" if m.ref else ""
-            add(f"storey {st.label}, {m.kind} group {i + 1}{ref}",
-                f"storeys[{si}].members[{i}]", m.photos)
-    for i, h in enumerate(survey.hazards):
-        where = f" at {h.where}" if h.where else ""
-        add(f"hazard {i + 1}, {words('hazards', h.kind)}{where}", f"hazards[{i}]", h.photos)
-    return found
-
-
-def _value_text(v: Any) -> str:
-    if isinstance(v, dict):
-        return ", ".join(f"{k} → {w}" for k, w in v.items())
-    if isinstance(v, list | tuple):
-        return ", ".join(str(w) for w in v)
-    return str(v)
-
-
-def _method(std: Standards) -> list[MethodRow]:
-    rows = [MethodRow("structural performance levels by residual drift (IO, LS, CP)",
-                      f"{std.drift.source.document} ({std.drift.source.edition}) "
-                      f"{std.drift.source.table}", std.drift.source.status,
-                      "the standard calls these drifts typical values illustrating the damage, "
-                      "not acceptance limits, and does not mean them for post-earthquake "
-                      "evaluation; used here as indicative thresholds only"),
-            MethodRow("damage classes, reduction factors eta, damage grades by R",
-                      f"{std.capacity.source.document} ({std.capacity.source.edition})",
-                      std.capacity.source.status, std.capacity.source.status_note),
-            MethodRow("residual drift damage states DS1–DS4",
-                      f"{std.damage_states.source.document} ({std.damage_states.source.edition})"
-                      f" {std.damage_states.source.table}", std.damage_states.source.status,
-                      std.damage_states.source.status_note)]
-    for r in std.repairability:
-        rows.append(MethodRow(f"repairability: {r.name}", r.label, r.source.status,
-                              r.source.table))
-    for t in std.plumbness:
-        rows.append(MethodRow("as-built plumbness tolerance",
-                              f"{t.source.document} ({t.source.edition}) {t.source.table}",
-                              t.source.status, f"{t.rule} ({t.drift_pct:g}%)"))
-    return rows
-
-
 def build_report_model(survey: Survey, assessment: Assessment, *, revision: int | None = None,
                        signer: Signer | None = None, comparison: Comparison | None = None,
                        photo_dir: Path | None = None, photos: PhotoLoader | None = None,
@@ -427,7 +174,7 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
     std = std or load()
     a = assessment
     b = survey.building
-    clip = _Clipper()
+    clip = Clipper()
     ins = survey.inspection
     inspector = ins.inspector.name + (f" (id {ins.inspector.id})" if ins.inspector.id else "")
     building = [("building", b.name), ("address", b.address), ("use", b.use or DASH),
@@ -464,67 +211,8 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
             keep_out.append(f"{words('hazards', h.kind)}{where}: keep {h.keep_out_m:g} m "
                             "clear around it")
 
-    storeys = [StoreyRow(label=clip(f"storey {s.label}", s.label), height=f"{s.height_m:g}",
-                         drift_x=pct(s.drift_ratio.x),
-                         drift_y=pct(s.drift_ratio.y), level_x=s.performance_level.x or DASH,
-                         level_y=s.performance_level.y or DASH,
-                         r=DASH if s.residual_capacity is None else f"{s.residual_capacity:.1%}",
-                         grade=s.damage_grade or DASH, access=words("access", s.access))
-               for s in a.storeys]
-    chart = [ChartPoint(s.label, s.drift_ratio.x, s.drift_ratio.y) for s in a.storeys]
-    figs: list[ChartFigure] = []
-    fx, fy = a.drift_figures.get("x"), a.drift_figures.get("y")
-    for lv in ("IO", "LS", "CP"):
-        if fx is not None and fy is not None and fx.system == fy.system:
-            figs.append(ChartFigure("x, y", lv, getattr(fx, lv), fx.system_name))
-        else:
-            for d, f in (("x", fx), ("y", fy)):
-                if f is not None:
-                    figs.append(ChartFigure(d, lv, getattr(f, lv), f.system_name))
-
-    members: list[MemberRow] = []
-    for st_survey, st in zip(survey.storeys, a.storeys, strict=True):
-        for mr in st.members:
-            mg = st_survey.members[mr.index]
-            seen = []
-            if mg.crack_mm:
-                sd = f" ± {mg.crack_sd_mm:g}" if mg.crack_sd_mm else ""
-                seen.append(f"crack {mg.crack_mm:g}{sd} mm")
-            if mg.signs:
-                seen.append("signs: " + ", ".join(words("signs", s) for s in mg.signs))
-            if mg.ductility == "brittle":
-                seen.append("brittle")
-            if mg.dir is not None:
-                seen.append(f"acts in {mg.dir}")
-            how = {"crack": "by crack width", "signs": "by signs",
-                   "override": f"set by the inspector: {mg.override_reason or ''}"}.get(
-                       mr.class_from or "", "undamaged")
-            group = f"{mr.index + 1}" + (f" {mr.ref}" if mr.ref else "")
-            what = f"storey {st.label}, member group {group}"
-            members.append(MemberRow(
-                storey=clip(f"storey {st.label}", st.label), group=clip(what, group),
-                kind=words("member_kinds", mr.kind), count=str(mr.count),
-                damage_class=mr.damage_class or DASH,
-                eta=DASH if mr.eta is None else f"{mr.eta:g}",
-                class_from=clip(f"{what}, how the class was set", how),
-                seen=clip(f"{what}, what was seen", "; ".join(seen) or "nothing seen")))
-
+    points, figs = chart(a)
     a_used = Assumptions.model_validate(a.engine.assumptions)
-    hazards = []
-    for hr in a.hazards:
-        hs = survey.hazards[hr.index]
-        kind = words("hazards", hr.kind)
-        what = f"hazard {hr.index + 1} ({kind})"
-        height = hs.height_above_ground_m
-        hazards.append(HazardRow(kind=kind, height=DASH if height is None else f"{height:g} m",
-                                 factor=DASH if height is None
-                                 else f"{a_used.keep_out_factor:g}",
-                                 where=clip(f"{what}, where", hr.where or DASH),
-                                 storey=clip(f"{what}, storey", hr.storey or DASH),
-                                 effect=f"at least {tier_words(hr.tier)}",
-                                 keep_out=DASH if hr.keep_out_m is None else f"{hr.keep_out_m:g} m",
-                                 note=clip(f"{what}, note", hs.note or "")))
-
     repair = [(r.name, DASH if r.probability is None else f"{r.probability:.3f}", r.source)
               for r in a.repairability]
     largest = max((v for s in a.storeys for v in (s.drift_ratio.x, s.drift_ratio.y)
@@ -532,25 +220,7 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
     basis = ("applied to the largest storey drift ratio, "
              f"{pct(largest)}; the published figures disagree, so each is shown on its own"
              if largest is not None else "no residual drift measured: no probability is given")
-
-    assumptions = []
-    for key, value in a.engine.assumptions.items():
-        note = std.assumption_notes.get(key)
-        assumptions.append(AssumptionRow(words("assumptions", key), _value_text(value),
-                                         note.status if note else "ours",
-                                         note.why if note else ""))
-    memory = [r.what for r in _method(std) if r.status == "memory"]
-    method_text = [
-        "The tier is computed from point values of the readings; the tier probabilities come "
-        "from the stated measurement uncertainties alone, not from any uncertainty of the "
-        "method, the tables or the building.",
-        "FEMA 356 calls its drift figures typical values illustrating the damage, not limits; "
-        "the tool uses them as indicative thresholds only.",
-        "Values recalled rather than read in the source (from memory): " + "; ".join(memory)
-        + ".",
-        f"The assessment was made by triage engine {a.engine.version} (seed {a.engine.seed}) "
-        "with the assumptions listed below.",
-    ]
+    method = method_rows(survey, a, std)
 
     return ReportModel(
         caution=CAUTION,
@@ -578,13 +248,16 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
                      if signer else
                      "UNSIGNED: this report carries no digital signature; nothing shows who "
                      "made it or that it is unchanged."),
-        storeys=storeys, chart=chart, chart_figures=figs, members=members, hazards=hazards,
+        storeys=storey_rows(a, clip), chart=points, chart_figures=figs,
+        members=member_rows(survey, a, clip), hazards=hazard_rows(survey, a, a_used, clip),
         repairability=repair, repairability_basis=basis,
-        photos=_photos(survey, photos if photos is not None
+        photos=photo_items(survey, photos if photos is not None
                        else folder_loader(photo_dir) if photo_dir is not None else None),
         storey_notes=[(s.label, s.notes) for s in survey.storeys if s.notes],
         notes=[in_words(n, survey) for n in a.notes], defaulted=list(a.defaulted),
-        method=_method(std), method_text=method_text, assumptions=assumptions,
+        method=method, method_text=method_text(a, method),
+        assumptions=assumption_rows(a, std), figures=figure_rows(a, std),
+        status_words=list(STATUS_WORDS),
         engine=f"triage {a.engine.version}",
         inspector=inspector,
         long_texts=clip.full,

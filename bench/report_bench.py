@@ -37,6 +37,7 @@ def table_rows(model: Any) -> int:
     return (1 + len(model.storeys) + (1 + spots) + 1 + len(model.members)
             + (1 + len(model.hazards))
             + 1 + len(model.repairability) + 1 + len(model.method) + 1 + len(model.assumptions)
+            + (1 + len(model.figures) if model.figures else 0) + 1 + len(model.status_words)
             + len(model.building) - 1)
 
 

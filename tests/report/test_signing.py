@@ -62,7 +62,7 @@ def test_signature_block_on_page_one(signed: Path, key):
 
     one = " ".join(PdfReader(signed).pages[0].extract_text().split())
     assert f"Digitally signed by Aroha Ngāti (id R-77), key fingerprint {key.fingerprint}" in one
-    assert re.search(r"signed at 20\d\d-\d\d-\d\d \d\d:\d\d:\d\d UTC; covers every byte of "
+    assert re.search(r"signed at \d{1,2} [A-Z][a-z]+ 20\d\d, \d\d:\d\d:\d\d UTC; covers every byte of "
                      r"this file but the signature", one)
     assert ("PAdES B-B" in one) == (key.algorithm == "ecdsa-p256")
     # the survey's inspector is Tess Tester (T-1), not the signer: the block says so

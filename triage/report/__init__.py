@@ -54,6 +54,7 @@ def render_report(survey: Survey, assessment: Assessment, *, key: SigningKey | N
     from .model import Signer, build_report_model
     from .pdfparts import ASSESSMENT_FILE, SIGNER_FILE, SURVEY_FILE
     from .signing import content_digests, file_digest, fill_slot, find_slot, payload
+    from .words import when_text
 
     if assessment.survey != str(survey.survey_id):
         raise ValueError(f"the assessment is of survey {assessment.survey}, "
@@ -85,7 +86,7 @@ def render_report(survey: Survey, assessment: Assessment, *, key: SigningKey | N
         ins = survey.inspection.inspector
         other = ins.name.strip() != key.name or bool(ins.id and ins.id.strip() != key.id)
         signer = Signer(key.name, key.id, key.fingerprint,
-                        signed_at=when.strftime("%Y-%m-%d %H:%M:%S UTC"), covers=covers,
+                        signed_at=when_text(when, seconds=True), covers=covers,
                         not_inspector=(ins.name + (f" (id {ins.id})" if ins.id else "")
                                        if other else ""))
     model = build_report_model(survey, assessment, revision=revision, signer=signer,

@@ -13,6 +13,7 @@ module puts page one together and holds the `ReportModel`.
 from __future__ import annotations
 
 import hashlib
+import re
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Protocol
@@ -50,7 +51,7 @@ from .rows import (
     spot_tables,
     storey_rows,
 )
-from .words import CLIP, CLIPPED, DASH, Clipper, in_words, pct, when_text
+from .words import CLIP, CLIPPED, DASH, Clipper, in_words, pct, when_iso_text, when_text
 
 __all__ = ["CLIP", "CLIPPED", "DASH", "AssumptionRow", "ChartFigure", "ChartPoint",
            "Comparison", "FigureRow", "HazardRow", "MemberRow", "MethodRow", "PhotoItem",
@@ -73,7 +74,7 @@ class Signer:
     name: str
     id: str
     fingerprint: str
-    signed_at: str = ""  # as printed, e.g. "2026-12-01 20:00:00 UTC"
+    signed_at: str = ""  # as printed, e.g. "1 December 2026, 20:00:00 UTC"
     covers: str = ""  # what the signature covers, in words
     not_inspector: str = ""  # the inspector ("name (id …)") when the signer is someone else
 
@@ -254,18 +255,32 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
         photos=photo_items(survey, photos if photos is not None
                        else folder_loader(photo_dir) if photo_dir is not None else None),
         storey_notes=[(s.label, s.notes) for s in survey.storeys if s.notes],
-        notes=[in_words(n, survey) for n in a.notes], defaulted=list(a.defaulted),
+        notes=[in_words(n, survey) for n in a.notes],
+        defaulted=[in_words(d, survey) for d in a.defaulted],
         method=method, method_text=method_text(a, method),
         assumptions=assumption_rows(a, std), figures=figure_rows(a, std),
         status_words=list(STATUS_WORDS),
         engine=f"triage {a.engine.version}",
         inspector=inspector,
         long_texts=clip.full,
-        comparison=list(comparison.lines()) if comparison is not None else None,
+        comparison=comparison_lines(comparison) if comparison is not None else None,
         spot_tables=spot_tables(survey, a_used),
         state=(f"SIGNED by {signer.name}, key {signer.fingerprint[:16]}: check with triage "
                "verify" if signer else "UNSIGNED: no digital signature"),
     )
+
+
+def comparison_lines(comparison: Comparison) -> list[str]:
+    """The comparison's lines with its times as people read them (never raw ISO 8601)."""
+    lines = list(comparison.lines())
+    for side in ("old", "new"):
+        at = getattr(getattr(comparison, side, None), "at", None)
+        if isinstance(at, str) and len(at) >= 16:
+            lines = [line.replace(at[:16], when_iso_text(at)) for line in lines]
+    return [_ISO.sub(lambda m: when_iso_text(m.group(0)), line) for line in lines]
+
+
+_ISO = re.compile(r"\d{4}-\d\d-\d\dT\d\d:\d\d(?::\d\d(?:\.\d+)?)?(?:Z|[+-]\d\d:\d\d)?")
 
 
 def _provisional_text(survey: Survey) -> str:

@@ -8,12 +8,11 @@ from __future__ import annotations
 
 import re
 from datetime import datetime
-from functools import cache
 from typing import Any
 
 from triage.model import Survey
 from triage.standards import Source
-from triage.standards.vocabulary import message_words, vocabulary
+from triage.standards.vocabulary import plain_text
 
 DASH = "—"
 CLIP = 300  # longest text put in a table cell; longer ones are printed in full under Notes
@@ -49,15 +48,19 @@ def cite(source: Source) -> str:
     return f"{source.document} ({edition_text(source.edition)}){table}"
 
 
-def when_text(at: datetime) -> str:
-    """A time as people read it, with its zone: '1 December 2026, 14:05 UTC+13:00'."""
+def when_text(at: datetime, seconds: bool = False) -> str:
+    """A time as people read it, with its zone: '1 December 2026, 14:05 UTC+13:00'.
+
+    `seconds` adds them (a signing time: '1 December 2026, 20:00:05 UTC').
+    """
     off = at.utcoffset()
     zone = ""
     if off is not None:
         mins = int(off.total_seconds() // 60)
         sign = "+" if mins >= 0 else "-"
         zone = "UTC" if mins == 0 else f"UTC{sign}{abs(mins) // 60:02d}:{abs(mins) % 60:02d}"
-    return f"{at.day} {at:%B %Y, %H:%M} {zone}".strip()
+    clock = f"{at:%H:%M:%S}" if seconds else f"{at:%H:%M}"
+    return f"{at.day} {at:%B %Y}, {clock} {zone}".strip()
 
 
 def when_iso_text(text: str) -> str:
@@ -68,19 +71,20 @@ def when_iso_text(text: str) -> str:
         return text
 
 
-@cache
-def _key_pattern() -> tuple[re.Pattern[str], dict[str, str]]:
-    table = {k: e.words for sec, entries in vocabulary().items() if not sec.startswith("fields")
-             for k, e in entries.items() if "_" in k}
-    keys = sorted(table, key=len, reverse=True)
-    return re.compile(r"(?<![\w/.])(" + "|".join(map(re.escape, keys)) + r")(?!\w|\.toml)"), table
+_FILE = re.compile(r"\b[\w-]+\.(?:toml|json)\b")
 
 
 def in_words(text: str, survey: Survey | None = None) -> str:
-    """A line of the engine in the shared vocabulary's words: no internal key is left in it."""
-    text = message_words(text, survey)
-    pattern, table = _key_pattern()
-    return pattern.sub(lambda m: table[m.group(1)], text)
+    """A line of the engine in the shared vocabulary's words: no internal key is left in it.
+
+    `vocabulary.plain_text` does the work (paths, keys, field names with their units); a data
+    file's name (damage_floors.toml, survey.json) is a name a reader can open and stays.
+    """
+    out, at = [], 0
+    for m in _FILE.finditer(text):
+        out += [plain_text(text[at:m.start()], survey), m.group(0)]
+        at = m.end()
+    return "".join([*out, plain_text(text[at:], survey)])
 
 
 def num(v: float) -> str:

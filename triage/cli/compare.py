@@ -1,4 +1,9 @@
-"""`triage compare OLD NEW [--format text|json] [--force]`: what changed between two surveys."""
+"""`triage compare OLD NEW [--format text|json | -o FILE.pdf] [--force]`: what changed.
+
+With `-o FILE.pdf` the comparison is written as a PDF, an unsigned working document (through
+`triage.output.write_output`: a regular file replaced atomically, a device or FIFO written in
+place, nothing else replaced).
+"""
 
 from __future__ import annotations
 
@@ -22,7 +27,10 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("compare", help="what changed between two surveys of one building")
     p.add_argument("old", metavar="OLD", help="the earlier survey: a file or an id in the database")
     p.add_argument("new", metavar="NEW", help="the later survey: a file or an id in the database")
-    p.add_argument("--format", choices=("text", "json"), default="text")
+    p.add_argument("--format", choices=("text", "json"), default=None,
+                   help="what to print (text unless given); not with -o")
+    p.add_argument("-o", "--output", metavar="FILE.pdf",
+                   help="write the comparison as a PDF (an unsigned working document)")
     p.add_argument("--force", action="store_true",
                    help="compare even when the two surveys are of different buildings")
     p.set_defaults(func=run)
@@ -55,6 +63,8 @@ def run(args: argparse.Namespace) -> int:
     from triage.assess.compare import compare
     from triage.safetext import visible
 
+    if args.output is not None:
+        _check_output(args)
     old, old_a = load_either(args.old, args)
     new, new_a = load_either(args.new, args)
     if old.building_id != new.building_id and not args.force:
@@ -66,10 +76,43 @@ def run(args: argparse.Namespace) -> int:
         sys.stderr.write(f"triage compare: note: {args.old} was inspected after {args.new}; "
                          "OLD is taken as the earlier survey as given\n")
     result = compare(old, old_a, new, new_a)
+    if args.output is not None:
+        return _write_pdf(args, result, old, new)
     if args.format == "json":
         sys.stdout.write(visible(result.to_json()))
         return 0
     sys.stdout.write(visible(text(result, old, new)))
+    return 0
+
+
+def _check_output(args: argparse.Namespace) -> None:
+    """Refuse -o with --format, or naming one of the two survey files, before any work."""
+    if args.format is not None:
+        raise UserError(f"--format {args.format}: not with -o, which writes the comparison PDF; "
+                        "give one or the other")
+    out = Path(args.output)
+    for given in (args.old, args.new):
+        src = Path(given)
+        if src.exists() and out.exists() and src.resolve() == out.resolve():
+            raise UserError(f"{args.output}: is the survey file {given} itself; choose another "
+                            "name for the PDF")
+
+
+def _write_pdf(args: argparse.Namespace, result: Comparison, old: Survey, new: Survey) -> int:
+    """Write the comparison PDF to -o and say so in one line."""
+    from triage.output import write_output
+    from triage.report import render_comparison
+
+    try:
+        data = render_comparison(result, old, new)
+    except ValueError as err:
+        raise UserError(str(err)) from None
+    write_output(args.output, data)
+    pages = data.count(b"/Type /Page\n")
+    b = result.building_line
+    sys.stdout.write(f"comparison written to {args.output} ({pages} pages, UNSIGNED working "
+                     f"document); {b.compared} spots compared, {b.flagged} beyond the "
+                     "uncertainty; indicative only\n")
     return 0
 
 

@@ -19,13 +19,15 @@ from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:
     from triage.assess import Assessment
+    from triage.assess.compare import Comparison as Comparison_
     from triage.model import Survey
     from triage.photos import PhotoLoader
 
     from .keys import SigningKey
     from .model import Comparison
 
-__all__ = ["ReportInfo", "read_embedded", "read_embedded_files", "write_report"]
+__all__ = ["ReportInfo", "read_embedded", "read_embedded_files", "render_comparison",
+           "write_report"]
 
 
 @dataclass(frozen=True)
@@ -102,6 +104,14 @@ def render_report(survey: Survey, assessment: Assessment, *, key: SigningKey | N
 
         data = sign(data, key, when)
     return data
+
+
+def render_comparison(comparison: Comparison_, old: Survey, new: Survey) -> bytes:
+    """The aftershock comparison PDF (an unsigned working document) as bytes."""
+    from .compare_draw import render_comparison as draw
+    from .compare_model import build_compare_model
+
+    return draw(build_compare_model(comparison, old, new))
 
 
 def write_report(survey: Survey, assessment: Assessment, out: Path, *,

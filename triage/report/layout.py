@@ -178,6 +178,9 @@ def height(flowables: list[Any]) -> float:
     """The height a list of flowables takes in the body frame (spaces included)."""
     total = 0.0
     for f in flowables:
+        if isinstance(f, KeepTogether):   # its wrap needs a canvas; its content's does not
+            total += height(f._content)
+            continue
         _, h = f.wrap(CONTENT_W, PAGE_H)
         total += h + f.getSpaceBefore() + f.getSpaceAfter()
     return total

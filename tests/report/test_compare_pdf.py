@@ -145,6 +145,20 @@ def test_the_last_page_holds_a_third_of_a_page_and_headings_stay_with_their_text
             assert after[0] == here[0], here
 
 
+def test_no_word_is_printed_over_another(tmp_path: Path):
+    from tests.report.test_layout import _word_boxes, pdftotext_or_skip
+
+    pdftotext_or_skip()
+    o, n = (parse_survey_text(p.read_text(encoding="utf-8")) for p in FLATS)
+    pdf = tmp_path / "c.pdf"
+    pdf.write_bytes(render_comparison(compare(o, assess(o), n, assess(n)), o, n))
+    for k, words in enumerate(_word_boxes(pdf), 1):
+        for i, a in enumerate(words):
+            for b in words[i + 1:]:
+                assert not (a[2] < b[3] - 1 and b[2] < a[3] - 1 and a[0] < b[1] - 0.5
+                            and b[0] < a[1] - 0.5), f"page {k}: {a[4]!r} over {b[4]!r}"
+
+
 def run(capsys, *argv: str) -> tuple[int, str, str]:
     code = main(list(argv))
     out = capsys.readouterr()

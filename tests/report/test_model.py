@@ -43,6 +43,7 @@ def test_signer_revision_and_digest(clinic_pair):
     assert "Aroha Ngāti (id R-77)" in m.signer_text and "ab" * 16 in m.signer_text
     assert "store revision 7" in m.footer
     assert survey_digest(s) in m.footer and str(s.survey_id) in m.footer
+    assert m.footer.startswith(f"survey {str(s.survey_id)[:8]} (id {s.survey_id})")
     # the digest follows the canonical survey: any change to the survey changes it
     d = clinic_dict()
     d["storeys"][0]["readings"][0]["offset_mm"] = 1.5

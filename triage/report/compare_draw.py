@@ -38,7 +38,7 @@ def _pairs(pairs: list[tuple[str, str]], label_w: float) -> Table:
 
 
 def _spot_table(m: CompareModel) -> Table:
-    w = [12 * mm, 7 * mm, 26 * mm, 14 * mm, 14 * mm, 14 * mm, 12 * mm, 11 * mm, 30 * mm]
+    w = [12 * mm, 7 * mm, 24 * mm, 14 * mm, 14 * mm, 14 * mm, 12 * mm, 11 * mm, 34 * mm]
     w.append(CONTENT_W - sum(w))
     head = list(SPOT_HEAD)
     head[6] = m.bound_head

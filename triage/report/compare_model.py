@@ -206,6 +206,6 @@ def build_compare_model(c: Comparison, old: Survey, new: Survey) -> CompareModel
         header=header,
         summary=summary, building_line=line, beyond_chance=beyond, warnings=warnings,
         spots=spots, members=members, capacity=capacity, hazards=hazards, how_to_read=how,
-        footer=(f"comparison of survey {_code(o.survey)} (digest {survey_digest(old)}) with "
-                f"{_code(n.survey)} (digest {survey_digest(new)}) · building {c.building}"),
+        footer=(f"comparison of survey {_code(o.survey)} with {_code(n.survey)} · survey "
+                f"digests {survey_digest(old)}, {survey_digest(new)}"),
         flagged=b.flagged, bound_head=f"{c.k:g}u")

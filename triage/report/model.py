@@ -132,7 +132,8 @@ class ReportModel:
     def footer(self) -> str:
         """The identification printed at the foot of every page (page number added there)."""
         rev = f" · store revision {self.revision}" if self.revision is not None else ""
-        return f"survey {self.survey_id} · survey digest {self.survey_digest}{rev}"
+        return (f"survey {self.survey_id[:8]} (id {self.survey_id}) · survey digest "
+                f"{self.survey_digest}{rev}")
 
 
 def survey_digest(survey: Survey) -> str:

@@ -131,6 +131,16 @@ def test_the_method_page_lists_only_the_methods_that_applied():
     assert std.drift.source.table == "Table C1-3"
 
 
+@pytest.mark.parametrize(("sample", "listed", "absent"), [
+    ("warehouse_anchor_quay", "FEMA 352", "FEMA 306"),      # steel: connections
+    ("flats_mariner_court_2", "FEMA 306", "FEMA 352"),      # reinforced masonry walls
+])
+def test_the_capacity_method_used_is_listed(sample, listed, absent):
+    s = parse_survey_text((samples_dir() / f"{sample}.json").read_text(encoding="utf-8"))
+    sources = " ".join(r.source for r in build_report_model(s, assess(s)).method)
+    assert listed in sources and absent not in sources
+
+
 def test_the_fema_356_figures_used_are_tabulated():
     # FEMA 356 (2000) Table C1-3 (memory, docs/references.md): concrete walls LS 0.5%
     # permanent, CP 2.0%; concrete frames LS 1.0% permanent, CP 4.0%; IO permanent "negligible"

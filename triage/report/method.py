@@ -15,7 +15,7 @@ from dataclasses import dataclass
 
 from triage.assess import Assessment
 from triage.model import Survey
-from triage.standards import Standards
+from triage.standards import Source, Standards
 from triage.standards.vocabulary import words
 
 from .words import cite, pct, pct_figure, value_text
@@ -73,6 +73,16 @@ def _dirs_measured(a: Assessment) -> list[str]:
     return [d for d in ("x", "y") if any(s.drift_ratio.get(d) is not None for s in a.storeys)]
 
 
+def capacity_methods(std: Standards) -> list[tuple[str, str, Source]]:
+    """The residual capacity methods (the assessment's `method` key), each with its table."""
+    return [("jbdpa", "damage classes, reduction factors eta, damage grades by R",
+             std.capacity.source),
+            ("fema352", "steel moment frames: connection damage and the floor's damage index",
+             std.steel.source),
+            ("fema306", "concrete and masonry walls: behaviour modes, severity and lambda "
+                        "factors", std.walls.source)]
+
+
 def method_rows(survey: Survey, a: Assessment, std: Standards) -> list[MethodRow]:
     """The published tables this assessment used, each with its source and status."""
     rows: list[MethodRow] = []
@@ -85,11 +95,12 @@ def method_rows(survey: Survey, a: Assessment, std: Standards) -> list[MethodRow
                               "damage, not acceptance limits, and does not mean them for "
                               "post-earthquake evaluation; used here as indicative thresholds "
                               "only"))
-    if any(s.residual_capacity is not None or any(m.damage_class for m in s.members)
-           for s in a.storeys):
-        s = std.capacity.source
-        rows.append(MethodRow("damage classes, reduction factors eta, damage grades by R",
-                              cite(s), s.status, s.status_note))
+    used_methods = {c.method for c in a.residual_capacity}
+    if "jbdpa" not in used_methods and any(m.damage_class for s in a.storeys for m in s.members):
+        used_methods.add("jbdpa")   # the damage classes I to V are the JBDPA guideline's
+    for key, what, source in capacity_methods(std):
+        if key in used_methods:
+            rows.append(MethodRow(what, cite(source), source.status, source.status_note))
     if drift and any(f.io_negligible for f in a.drift_figures.values()):
         s = std.damage_states.source
         rows.append(MethodRow("residual drift damage states DS1–DS4 (the number taken for "

@@ -8,7 +8,7 @@ import pytest
 from drive import settle, type_in, verdict_text
 
 from triage.store import Store
-from triage.ui.screens.history import HistoryScreen, describe_change
+from triage.ui.screens.history import HistoryScreen, describe_change, storey_labels
 from triage.ui.screens.survey import SurveyScreen
 from triage.ui.screens.survey_list import SurveyListScreen
 
@@ -89,14 +89,15 @@ async def test_history_lists_changes_and_undoes(db: Path, make_app) -> None:
         assert isinstance(app.screen, HistoryScreen)
         log = app.screen.query_one("#log")
         newest = log.get_row_at(0)
-        assert newest[1] == "height m (storey #1)" and newest[2] == "3.2 m" and newest[3] == "4.1 m"
+        assert str(newest[1]) == "height (m), storey G"
+        assert str(newest[2]) == "3.2 m" and str(newest[3]) == "4.1 m"
         detail = str(app.screen.query_one("#history-detail").render())
-        assert "revision 2" in detail and "height m (storey #1): 3.2 m → 4.1 m" in detail
+        assert "revision 2" in detail and "height (m), storey G: 3.2 m → 4.1 m" in detail
         await pilot.press("ctrl+z")
         await settle(pilot)
         status = str(app.screen.query_one("#history-status").render())
-        assert "undone height m (storey #1)" in status
-        assert log.get_row_at(0)[1] == "undone: height m (storey #1)"
+        assert "undone height (m), storey G" in status
+        assert str(log.get_row_at(0)[1]) == "undone: height (m), storey G"
         await pilot.press("escape")
         await settle(pilot)
         assert app.screen.query_one("#s-height").text == "3.2"
@@ -147,20 +148,48 @@ async def test_moving_away_saves_what_was_typed(db: Path, make_app) -> None:
         assert "greater than 0" in scr.query_one("#s-height").status_text
 
 
+LABELS = ["G", "1", "2"]
+
+
 @pytest.mark.parametrize(("op", "path", "new", "words"), [
-    ("set", "storeys[1].readings[0].offset_mm", 7.5, "offset mm (storey #2, reading #1)"),
-    ("add", "storeys[0].readings[2]", {"dir": "x"}, "added reading #3 (storey #1)"),
-    ("remove", "storeys[2].members[1]", None, "removed member group #2 (storey #3)"),
-    ("undo", "storeys[0].readings[2]", None, "undone: removed reading #3 (storey #1)"),
+    ("set", "storeys[1].readings[0].offset_mm", 7.5, "offset (mm), storey 1, reading 1"),
+    ("add", "storeys[0].readings[2]", {"dir": "x"}, "added reading 3, storey G"),
+    ("remove", "storeys[2].members[1]", None, "removed member group 2, storey 2"),
+    ("undo", "storeys[0].readings[2]", None, "undone: removed reading 3, storey G"),
     ("undo", "storeys[2].members[1]", {"kind": "wall"},
-     "undone: put back member group #2 (storey #3)"),
-    ("set", "building.location.lat", -41.2, "lat (building, location)"),
-    ("set", "hazards[0]", {"kind": "collapse"}, "replaced hazard #1"),
+     "undone: put back member group 2, storey 2"),
+    ("set", "building.location.lat", -41.2, "latitude (°), building, location"),
+    ("set", "hazards[0]", {"kind": "collapse"}, "replaced hazard 1"),
     ("add", "storeys[0].members[1].photos[0]", {"path": "a.jpg"},
-     "added photo #1 (storey #1, member group #2)"),
+     "added photo 1, storey G, member group 2"),
     ("hide", "hidden", True, "survey hidden"),
     ("undo", "hidden", False, "survey shown again"),
     ("import", "", "{}", "survey imported"),
 ])
 def test_changes_are_told_in_words_field_first(op, path, new, words) -> None:
-    assert describe_change(op, path, new) == words
+    told = describe_change(op, path, new, LABELS)
+    assert told == words
+    assert "#" not in told and "_" not in told
+
+
+def test_storeys_are_named_by_the_labels_they_had_then() -> None:
+    from triage.store.rows import Change
+
+    def ch(seq: int, op: str, path: str, old, new) -> Change:
+        return Change(seq, f"u{seq}", "s", seq, op, path, old, new, "", "t", None)
+
+    # newest first: a basement added under G (so G moved up), G relabelled from "0",
+    # a storey "3" removed, a reading added on the then-lowest storey
+    log = [ch(5, "add", "storeys[0]", None, {"label": "B1"}),
+           ch(4, "set", "storeys[0].label", "0", "G"),
+           ch(3, "remove", "storeys[2]", {"label": "3"}, None),
+           ch(2, "add", "storeys[0].readings[0]", None, {"dir": "x"}),
+           ch(1, "import", "", None, "{}")]
+    labels = storey_labels(log, ["B1", "G", "1"])
+    assert labels[5] == ["B1", "G", "1"]
+    assert labels[4] == ["G", "1"]
+    assert labels[3] == ["0", "1", "3"]   # told before it was removed
+    assert labels[2] == ["0", "1", "3"]
+    told = [describe_change(c.op, c.path, c.new, labels[c.seq]) for c in log[:4]]
+    assert told == ["added storey B1", "label, storey G", "removed storey 3",
+                    "added reading 1, storey 0"]

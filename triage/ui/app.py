@@ -165,6 +165,14 @@ class TriageApp(App[None]):
         self.refusal = message
         self.exit(return_code=1)
 
+    def notify(self, message: str, *, title: str = "", severity: Any = "information",
+               timeout: float | None = None, markup: bool = False) -> None:
+        """A notification; its text may quote a survey, so it is escaped and never markup."""
+        from triage.safetext import visible
+
+        super().notify(visible(message), title=visible(title), severity=severity,
+                       timeout=timeout, markup=False)
+
     def action_next_field(self, step: int) -> None:
         """Tab and shift+Tab: the next or previous field, focused at once."""
         if step > 0:

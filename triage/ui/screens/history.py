@@ -12,7 +12,9 @@ from textual.binding import Binding, BindingType
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Static
 
+from triage.safetext import visible_line
 from triage.ui.data import Refused
+from triage.ui.shown import block, line
 
 
 def _short(v: Any, n: int = 18) -> str:
@@ -22,49 +24,68 @@ def _short(v: Any, n: int = 18) -> str:
     return text if len(text) <= n else text[: n - 1] + "…"
 
 
-_PART = re.compile(r"([A-Za-z_][A-Za-z0-9_]*)((?:\[\d+\])*)")
-_NOUN = {"storeys": "storey", "readings": "reading", "members": "member group",
-         "hazards": "hazard", "photos": "photo", "signs": "sign"}
 _OP = {"import": "survey imported", "create": "survey created", "hide": "survey hidden",
        "unhide": "survey shown again"}
+_STOREY = re.compile(r"^storeys\[(\d+)\](\.label)?$")
 
 
-def _places(path: str) -> tuple[list[str], str | None]:
-    """The items a path goes through, in words, and the field it ends on (None: an item)."""
-    places: list[str] = []
-    parts = path.split(".")
-    for k, part in enumerate(parts):
-        m = _PART.fullmatch(part)
-        if m is None:
-            return [path], None
-        name, index = m.group(1), [int(i) for i in re.findall(r"\d+", m.group(2))]
-        if not index:
-            if k == len(parts) - 1:
-                return places, name.replace("_", " ")
-            places.append(name)
-            continue
-        places.append(f"{_NOUN.get(name, name)} #{index[0] + 1}")
-        places.extend(f"#{i + 1}" for i in index[1:])
-    return places, None
+def _in_words(path: str, labels: list[str] | None) -> list[str]:
+    """The steps of a path in words, the storey by the label it had ('storey G')."""
+    from triage.standards.vocabulary import field_words
+
+    survey = None if labels is None else {"storeys": [{"label": x} for x in labels]}
+    said = field_words(path, survey)
+    if said == path:  # not a path the vocabulary reads: its names, plainly
+        return [path.replace("_", " ")]
+    return said.split(", ")
 
 
-def describe_change(op: str, path: str, new: Any = None) -> str:
-    """A change in words, the field first: `offset mm (storey #2, reading #1)`.
+def describe_change(op: str, path: str, new: Any = None,
+                    labels: list[str] | None = None) -> str:
+    """A change in words, the field first: `offset (mm), storey G, reading 1`.
 
-    Positions count from 1 and are those of the survey as it was when the change was made;
-    `new` tells whether an undo took an item out (None) or put it back.
+    Storeys are named by `labels`, the labels the survey's storeys had when the change was
+    made (bottom to top; `storey_labels` works them out), else counted from the bottom;
+    other items count from 1 as they stood then. `new` tells whether an undo took an item
+    out (None) or put it back.
     """
     if op in _OP or path in ("", "hidden"):
         return _OP.get(op, "survey shown again" if op == "undo" else op)
-    places, field = _places(path)
-    if field is None:
-        item, within = (places[-1], places[:-1]) if places else (path, [])
+    steps = _in_words(path, labels)
+    if path.endswith("]"):  # an item added, removed or replaced
         verb = {"add": "added", "remove": "removed", "set": "replaced"}.get(
             op, "removed" if new is None else "put back")
-        text = f"{verb} {item}" + (f" ({', '.join(within)})" if within else "")
+        text = f"{verb} {steps[-1]}" + (f", {', '.join(steps[:-1])}" if steps[:-1] else "")
     else:
-        text = field + (f" ({', '.join(places)})" if places else "")
+        text = ", ".join([steps[-1], *steps[:-1]])
     return f"undone: {text}" if op == "undo" else text
+
+
+def storey_labels(changes: list[Any], labels: list[str]) -> dict[int, list[str]]:
+    """The storey labels each change is told with, by its `seq` (changes newest first).
+
+    Worked back from the survey's labels now: each change is undone on the list of labels in
+    turn. A change is told with the labels after it, but an item taken out (a removal) with
+    the labels before it, where its storey was still there.
+    """
+    out: dict[int, list[str]] = {}
+    now = list(labels)
+    for c in changes:
+        after = list(now)
+        m = _STOREY.match(c.path or "")
+        if m is not None:
+            i = int(m.group(1))
+            if m.group(2):  # a storey relabelled
+                if 0 <= i < len(now) and isinstance(c.old, str):
+                    now[i] = c.old
+            elif c.old is None and c.new is not None and i < len(now):  # added, or put back
+                now.pop(i)
+            elif c.new is None and isinstance(c.old, dict):  # removed, or taken out by undo
+                now.insert(min(i, len(now)), str(c.old.get("label", "?")))
+            elif isinstance(c.old, dict) and 0 <= i < len(now):  # a storey replaced
+                now[i] = str(c.old.get("label", now[i]))
+        out[c.seq] = list(now) if (c.new is None and c.old is not None) else after
+    return out
 
 
 def _local(at: str, fmt: str, tz: Any = None) -> str:
@@ -90,6 +111,7 @@ class HistoryScreen(Screen[bool]):
         self.survey_id = survey_id
         self.changed = False
         self.entries: dict[str, Any] = {}
+        self.labels: dict[int, list[str]] = {}
 
     def compose(self) -> ComposeResult:
         """Title, the log, footer."""
@@ -111,12 +133,15 @@ class HistoryScreen(Screen[bool]):
         app: Any = self.app
         t = self.query_one("#log", DataTable)
         t.clear()
-        self.entries = {str(c.seq): c for c in app.data.changes(self.survey_id)}
+        changes = app.data.changes(self.survey_id)
+        current = [st.label for st in app.data.load(self.survey_id).storeys]
+        self.labels = storey_labels(changes, current)
+        self.entries = {str(c.seq): c for c in changes}
         for key, c in self.entries.items():
             what = self.what(c)
-            t.add_row(_local(str(c.at), "%d %b %H:%M", self.tz), _short(what, 28),
-                      _short(self.value(c, c.old), 10), _short(self.value(c, c.new), 10),
-                      _short(c.who, 8), key=key)
+            t.add_row(_local(str(c.at), "%d %b %H:%M", self.tz), line(_short(what, 28)),
+                      line(_short(self.value(c, c.old), 10)),
+                      line(_short(self.value(c, c.new), 10)), line(_short(c.who, 8)), key=key)
         t.focus()
         if not self.entries:
             self.query_one("#history-detail", Static).update("")
@@ -129,9 +154,9 @@ class HistoryScreen(Screen[bool]):
         what = self.what(c)
         values = "" if c.op in _OP else (f": {_short(self.value(c, c.old), 60)} → "
                                          f"{_short(self.value(c, c.new), 60)}")
-        self.query_one("#history-detail", Static).update(
-            f"{_local(str(c.at), '%Y-%m-%d %H:%M %z', self.tz)}, {c.who}, revision "
-            f"{c.revision}\n{what}{values}")
+        self.query_one("#history-detail", Static).update(block(
+            f"{_local(str(c.at), '%Y-%m-%d %H:%M %z', self.tz)}, {visible_line(c.who)}, "
+            f"revision {c.revision}\n{visible_line(what + values)}"))
 
     @property
     def tz(self) -> Any:
@@ -146,7 +171,7 @@ class HistoryScreen(Screen[bool]):
             row = app.data.row(self.survey_id)
             if row is not None and row.source == "new survey":
                 return "survey created"
-        return describe_change(c.op, c.path, c.new)
+        return describe_change(c.op, c.path, c.new, self.labels.get(c.seq))
 
     def value(self, c: Any, v: Any) -> str:
         """An old or new value in words, with its unit; a whole survey is not shown."""
@@ -163,13 +188,15 @@ class HistoryScreen(Screen[bool]):
         try:
             change = app.data.undo(self.survey_id, app.who)
         except Refused as err:
-            status.update(f"cannot undo: {err}")
+            status.update(block(f"cannot undo: {err}"))
             return
         if change is None:
             status.update("nothing to undo")
             return
         self.changed = True
-        status.update(f"✓ saved: undone {describe_change(change.op, change.path)}")
+        labels = [st.label for st in app.data.load(self.survey_id).storeys]
+        status.update(block("✓ saved: undone "
+                            + describe_change(change.op, change.path, change.new, labels)))
         self.fill()
 
     def action_close(self) -> None:

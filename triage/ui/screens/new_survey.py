@@ -14,6 +14,7 @@ from triage import standards
 from triage.ui.choices import NAMINGS, storey_labels
 from triage.ui.data import Refused, rule_of, said
 from triage.ui.messages import FieldAccepted
+from triage.ui.shown import block
 from triage.ui.widgets.field import Choice, Field, parse_team, team_text, when_text
 
 
@@ -198,7 +199,7 @@ class NewSurveyScreen(Screen[str | None]):
             f = self._field_for(str(err))
             if f is not None:
                 f.show_refused(rule_of(str(err)))
-            status.update(f"not created: {said(str(err))}")
+            status.update(block(f"not created: {said(str(err))}"))
             return
         app.data.remember("last_inspector_name", who)
         app.data.remember("last_inspector_id", data["inspection"]["inspector"].get("id"))

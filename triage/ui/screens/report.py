@@ -22,6 +22,7 @@ from textual.worker import Worker, WorkerState
 
 from triage.ui.data import Refused, rule_of
 from triage.ui.messages import CAUTION_SHORT, UNSIGNED, FieldAccepted
+from triage.ui.shown import block, line
 from triage.ui.verdicts import verdict_of, worker_store
 from triage.ui.widgets.field import Field
 
@@ -82,7 +83,7 @@ class ReportScreen(Screen[bool]):
         at = s.inspection.at.strftime("%Y%m%d-%H%M")
         default_out = Path(app.report_dir) / f"{slug(s.building.name)}-{at}-r{rev}.pdf"
         row = app.data.row(self.survey_id)
-        yield Static(f"Issue the report · {s.building.name}", classes="title")
+        yield Static(line(f"Issue the report · {s.building.name}"), classes="title")
         with VerticalScroll(id="report-form"):
             if row is not None and row.edited_since_report:
                 yield Static(f"This survey was edited since its last report (revision "
@@ -166,18 +167,18 @@ class ReportScreen(Screen[bool]):
             self.issued = info
             self.query_one("#r-pass", Field).set_value(None)
             if info.signed:
-                result.update(f"✓ written: {info.path}\nsigned, key fingerprint "
-                              f"{info.fingerprint} · revision {info.revision}")
+                result.update(block(f"✓ written: {info.path}\nsigned, key fingerprint "
+                                    f"{info.fingerprint} · revision {info.revision}"))
             else:
-                result.update(f"✓ written: {info.path}\n{UNSIGNED} · revision "
-                              f"{info.revision}")
+                result.update(block(f"✓ written: {info.path}\n{UNSIGNED} · revision "
+                                    f"{info.revision}"))
             self.query_one("#write", Button).disabled = False
         elif event.state == WorkerState.ERROR:
             err = event.worker.error
             msg = str(err).splitlines()[0] if err is not None and str(err) else "failed"
             if "passphrase" in msg:
                 self.query_one("#r-pass", Field).show_refused(msg)
-            result.update(f"not written: {msg}")
+            result.update(block(f"not written: {msg}"))
             self.query_one("#write", Button).disabled = False
 
     def action_close(self) -> None:

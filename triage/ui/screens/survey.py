@@ -22,6 +22,7 @@ from textual.worker import Worker, WorkerState
 from triage.ui.choices import next_label
 from triage.ui.data import Refused, rule_of
 from triage.ui.messages import FieldAccepted
+from triage.ui.shown import block, line
 from triage.ui.verdicts import Verdict
 from triage.ui.widgets.field import Field, set_text
 from triage.ui.widgets.hazards import HazardsPane
@@ -166,7 +167,7 @@ class SurveyScreen(Screen[None]):
             dirs = {r.dir for r in st.readings}
             mark = "✓" if dirs == {"x", "y"} and st.members else ("·" if st.readings or
                                                                   st.members else " ")
-            opts.append(Option(f"{st.label:<4}{mark}", id=f"st-{i}"))
+            opts.append(Option(line(f"{st.label:<4}{mark}"), id=f"st-{i}"))
         ol.add_options(opts)
         ol.highlighted = n - 1 - self.storey_index
 
@@ -424,9 +425,9 @@ class SurveyScreen(Screen[None]):
     def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
         """A verdict that failed says so in the verdict line (never a traceback)."""
         if event.worker.group == "verdict" and event.state == WorkerState.ERROR:
-            line = self.query_one(VerdictLine)
-            line.update(f"verdict not computed: {event.worker.error}\n"
-                        "indicative only: the engineer of record decides")
+            self.query_one(VerdictLine).update(block(
+                f"verdict not computed: {event.worker.error}\n"
+                "indicative only: the engineer of record decides"))
 
     # --- other screens -------------------------------------------------------------------
 

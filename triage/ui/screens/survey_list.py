@@ -11,6 +11,7 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Input, Static
 
 from triage.ui.messages import CAUTION_SHORT
+from triage.ui.shown import block, line
 from triage.ui.widgets.field import no_blink, set_text
 
 
@@ -103,7 +104,7 @@ class SurveyListScreen(Screen[None]):
             flags = ("p" if r.provisional else "") + ("e" if r.edited_since_report else "") + (
                 "h" if r.hidden else "")
             tier = tier_words(r.tier) if r.tier else "not yet"
-            table.add_row(str(r.building), str(r.address), _when(r.at), tier, flags,
+            table.add_row(line(r.building), line(r.address), _when(r.at), tier, flags,
                           key=str(r.id))
             shown += 1
         if current is not None:
@@ -187,7 +188,7 @@ class SurveyListScreen(Screen[None]):
         try:
             new = app.data.reinspect(sid, inspector, app.who)
         except Refused as err:
-            self.query_one("#list-status", Static).update(f"re-inspection refused: {err}")
+            self.query_one("#list-status", Static).update(block(f"re-inspection refused: {err}"))
             return
         self.refresh_rows(keep=new)
         from triage.ui.screens.survey import SurveyScreen

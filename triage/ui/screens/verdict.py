@@ -10,6 +10,7 @@ from textual.containers import VerticalScroll
 from textual.screen import Screen
 from textual.widgets import Footer, Static
 
+from triage.ui.shown import line
 from triage.ui.widgets.verdict import verdict_lines
 
 
@@ -30,7 +31,7 @@ class VerdictScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         """Title, the verdict, footer."""
         b = self.survey.building
-        yield Static(f"Verdict · {b.name} · {b.address}", classes="title")
+        yield Static(line(f"Verdict · {b.name} · {b.address}"), classes="title")
         with VerticalScroll(id="verdict-body"):
             yield Static(verdict_lines(self.survey, self.assessment,
                                        width=max(60, self.app.size.width - 6)),

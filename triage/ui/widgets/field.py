@@ -19,8 +19,10 @@ from textual.app import ComposeResult
 from textual.containers import Horizontal
 from textual.widgets import Checkbox, Input, Label, Select, Static
 
+from triage.safetext import visible_line
 from triage.ui.focus import focus_now
 from triage.ui.messages import NOT_SAVED, SAVED, FieldAccepted
+from triage.ui.shown import block, line
 
 
 def no_blink(widget: Any) -> None:
@@ -36,12 +38,14 @@ def set_text(widget: Static, content: Any, fixed: bool = False) -> None:
     """Update a Static only when its text changes.
 
     `fixed`: its size cannot change, so no new layout is needed (a layout pass of the whole
-    screen is the costly part of a redraw).
+    screen is the costly part of a redraw). Text is shown through `triage.ui.shown.block`.
     """
     text = str(content)
     if getattr(widget, "_triage_text", None) == text:
         return
     widget._triage_text = text  # type: ignore[attr-defined]
+    if isinstance(content, str):  # it may quote the survey: escaped, never markup
+        content = block(content)
     widget.update(content, layout=not fixed)
 
 
@@ -146,6 +150,11 @@ def parse_team(text: str) -> list[dict[str, str]]:
     return out
 
 
+def picks(options: list[tuple[str, Any]]) -> list[tuple[Any, Any]]:
+    """Options of a pick list, their words shown through `triage.ui.shown.line`."""
+    return [(line(text) if isinstance(text, str) else text, value) for text, value in options]
+
+
 class Saving:
     """The saved / refused status shared by the field widgets."""
 
@@ -215,7 +224,7 @@ class Field(Saving, Horizontal):
         self.required = required
         self.show = show or show_text
         self.parse = parse
-        self.saved_text = self.show(value)
+        self.saved_text = self.shown(value)
         self._width = width
         self.input = Input(self.saved_text, placeholder=placeholder or unit, compact=True,
                            password=password, select_on_focus=True)
@@ -238,9 +247,13 @@ class Field(Saving, Horizontal):
         """The text typed in the field."""
         return self.input.value
 
+    def shown(self, value: Any) -> str:
+        """A stored value as the field shows it (control and bidi characters as escapes)."""
+        return visible_line(self.show(value))
+
     def set_value(self, value: Any, saved: bool = True) -> None:
         """Put a value in the field (as stored)."""
-        t = self.show(value)
+        t = self.shown(value)
         self.input.value = t
         if saved:
             self.saved_text = t
@@ -308,7 +321,7 @@ class Choice(Saving, Horizontal):
         self.saved_value = value
         self._width = width
         self.select: Select[Any] = Select(
-            options, value=value if value is not None else Select.NULL,
+            picks(options), value=value if value is not None else Select.NULL,
             allow_blank=allow_blank or value is None, compact=True, prompt="—")
         self.status = Static("", classes="fstatus")
 
@@ -336,7 +349,7 @@ class Choice(Saving, Horizontal):
     def set_options(self, options: list[tuple[str, Any]], value: Any = None) -> None:
         """Replace the choices."""
         self.saved_value = value
-        self.select.set_options(options)
+        self.select.set_options(picks(options))
         if value is not None:
             self.select.value = value
 

@@ -20,6 +20,7 @@ from textual.widgets import DataTable, Input, Static
 from triage.ui.data import Refused, rule_of
 from triage.ui.focus import focus_now
 from triage.ui.messages import FieldAccepted
+from triage.ui.shown import line
 from triage.ui.widgets.field import Choice, Field, Tick, set_text
 
 FIELD_KEY = re.compile(r"\.(\w+)(?:\[\d+\])?:")
@@ -46,7 +47,7 @@ class ItemPane(VerticalScroll):
         self.dirty = False
         self.rows: list[tuple[str, ...]] = []
         self.form: dict[str, Any] = {}
-        self.table: DataTable[str] = DataTable(cursor_type="row", zebra_stripes=True)
+        self.table: DataTable[Any] = DataTable(cursor_type="row", zebra_stripes=True)
         self.head = Static("", classes="pane-head")
         self.form_title = Static("", classes="form-title")
         self.note = Static("", classes="pane-note")
@@ -123,11 +124,11 @@ class ItemPane(VerticalScroll):
             for r, (old, new) in enumerate(zip(self.rows, rows, strict=True)):
                 for c, (a, b) in enumerate(zip(old, new, strict=True)):
                     if a != b:
-                        self.table.update_cell_at(Coordinate(r, c), b)
+                        self.table.update_cell_at(Coordinate(r, c), line(b))
         else:
             self.table.clear()
             for i, row in enumerate(rows):
-                self.table.add_row(*row, key=str(i))
+                self.table.add_row(*(line(c) for c in row), key=str(i))
         self.rows = rows
         if self.editing is not None and self.editing >= len(items):
             self.editing = None

@@ -28,7 +28,7 @@ async def test_group_class_eta_signs_override(db: Path, make_app) -> None:
         await type_in(pilot, "m-ref", "C3", enter=False)
         await type_in(pilot, "m-count", "1")
         assert len(scr.survey.storeys[0].members) == 2
-        row = pane.table.get_row_at(1)
+        row = [str(c) for c in pane.table.get_row_at(1)]
         assert row[1] == "C3" and row[2] == "column" and row[6] == "III"
         assert row[7] == "crack width"  # how the class was set, in words
         # edit it: tick a sign, which is saved at once
@@ -40,7 +40,7 @@ async def test_group_class_eta_signs_override(db: Path, make_app) -> None:
         pane.signs.checks.select("bar_exposed")
         await settle(pilot)
         assert "✓ saved" in pane.signs.status_text
-        assert pane.table.get_row_at(1)[6] == "IV"
+        assert str(pane.table.get_row_at(1)[6]) == "IV"
         assert "class IV (signs seen) · eta" in str(pane.class_line.render())
         # a class set by hand without a reason is refused, with the rule
         c = await pick(pilot, "m-class", "II")
@@ -50,8 +50,8 @@ async def test_group_class_eta_signs_override(db: Path, make_app) -> None:
         await type_in(pilot, "m-reason", "engineer's reading of the full panel")
         await settle(pilot)
         assert "✓ saved" in c.status_text
-        assert pane.table.get_row_at(1)[6] == "II"
-        assert pane.table.get_row_at(1)[7] == "set by hand"
+        assert str(pane.table.get_row_at(1)[6]) == "II"
+        assert str(pane.table.get_row_at(1)[7]) == "set by hand"
     with Store.open(db, refresh=False) as st:
         m = st.load_survey(SID).storeys[0].members[1]
         assert m.signs == ("bar_exposed",) and m.damage_class == "II"

@@ -72,6 +72,10 @@ FIGURES = [
            _one("bench.ui_bench", "keystroke_ms", "keystroke_ms")),
     Figure("verdict_ms", 100.0, "<=", "median ms from an accepted field to the recomputed "
            "verdict on screen, same survey", _one("bench.ui_bench", "verdict_ms", "verdict_ms")),
+    Figure("nav_keys_storey", 25.0, "<=", "keys other than typed characters to log one "
+           "typical storey (4 readings at named spots, 3 member groups one with 2 signs, 1 "
+           "hazard with a height) from its first tab to its last field; chars_storey beside it",
+           _one("bench.ui_bench", "nav_keys_storey", "nav_keys_storey")),
     Figure("list_10k_ms", 1000.0, "<=", "listing 10,000 stored surveys",
            _one("bench.store_bench", "list_10k_ms", "list_10k_ms")),
     Figure("summary_10k_ms", 1000.0, "<=", "the area summary of 10,000 buildings",

@@ -12,6 +12,14 @@
   durably saves it and marks it saved. Target < 16 ms (one frame).
 - verdict_ms: from accepting the field to the new verdict drawn on screen (assessed in a thread
   worker, stored, drawn). Target <= 100 ms.
+- nav_keys_storey: the keys other than typed characters that a pilot script presses to log one
+  typical storey through the screens at 80 x 24, from the storey's first tab (the cursor in the
+  storey's height) to the hazard's last field: four readings at named spots (two x, two y; the
+  first gives the gauge length), three member groups (columns, beams, walls with two signs),
+  one falling hazard with its height. Tab, Enter, Space (ticking a sign), ctrl+d (the
+  direction) and F-keys count; `chars_storey`, beside it, counts the characters typed (values,
+  and the letters typed to find a choice in a pick list). The script then checks the storey as
+  stored. Target <= 25.
 """
 
 from __future__ import annotations
@@ -162,9 +170,108 @@ def verdict_ms(edits: int = 30) -> float:
     return field_figures(edits)["verdict_ms"]
 
 
+# The storey as an inspector logs it: ("key", name) is a key counted in nav_keys_storey,
+# ("type", text) characters typed (a space inside a value is a typed character).
+STOREY_SCRIPT: tuple[tuple[str, str], ...] = (
+    ("key", "f6"),                                     # readings: the cursor in the offset
+    ("type", "12"), ("key", "tab"), ("type", "grid A1"), ("key", "tab"), ("type", "2000"),
+    ("key", "enter"),                                  # x, gauge length remembered from here
+    ("type", "8"), ("key", "tab"), ("type", "grid D1"), ("key", "enter"),
+    ("key", "ctrl+d"),                                 # direction y
+    ("type", "5"), ("key", "tab"), ("type", "grid A1"), ("key", "enter"),
+    ("type", "7"), ("key", "tab"), ("type", "grid D4"), ("key", "enter"),
+    ("key", "f7"),                                     # members: the cursor on the kind
+    ("key", "tab"), ("type", "12"), ("key", "enter"),  # 12 columns (the kind offered)
+    ("type", "b"), ("key", "tab"), ("type", "8"), ("key", "enter"),    # 8 beams
+    ("type", "w"), ("key", "tab"), ("type", "4"), ("key", "tab"),      # 4 walls, and signs:
+    ("type", "b"), ("key", "space"), ("type", "o"), ("key", "space"),  # bars exposed, out of
+    ("key", "enter"),                                                  # plane; added
+    ("key", "f8"),                                     # hazards: the cursor on the kind
+    ("type", "fa"), ("key", "tab"), ("type", "6"), ("key", "enter"),   # falling hazard, 6 m
+)
+
+
+def storey_survey() -> dict[str, Any]:
+    """A new two-storey building of Kōwhai Bay with nothing logged yet."""
+    return {"format": "triage-survey/2",
+            "id": "44444444-4444-4444-8444-444444444444",
+            "building": {"name": "Wharf Sheds", "address": "9 Wharf Road, Kōwhai Bay",
+                         "system": {"x": "rc_frame", "y": "rc_frame"}},
+            "inspection": {"inspector": {"name": "Bench Inspector"},
+                           "at": "2026-11-29T09:00:00+13:00"},
+            "storeys": [{"label": "G", "height_m": 3.2}, {"label": "1", "height_m": 3.2}]}
+
+
+def _check_storey(survey: Any) -> None:
+    """The storey as the script logged it, or AssertionError naming what differs."""
+    g = survey.storeys[0]
+    got = [(r.dir, r.offset_mm, r.where, r.gauge_mm) for r in g.readings]
+    want = [("x", 12.0, "grid A1", 2000.0), ("x", 8.0, "grid D1", 2000.0),
+            ("y", 5.0, "grid A1", 2000.0), ("y", 7.0, "grid D4", 2000.0)]
+    assert got == want, f"readings: {got}"
+    groups = [(m.kind, m.count, tuple(m.signs)) for m in g.members]
+    assert groups == [("column", 12, ()), ("beam", 8, ()),
+                      ("wall", 4, ("bar_exposed", "out_of_plane"))], f"groups: {groups}"
+    hz = [(h.kind, h.height_above_ground_m) for h in survey.hazards]
+    assert hz == [("falling_hazard", 6.0)], f"hazards: {hz}"
+
+
+async def _log_storey(db: Path, sid: str) -> tuple[int, int]:
+    from triage.store import Store
+    from triage.ui.app import build_app
+
+    app = build_app(db, open_survey=sid, blink=False)
+    keys = chars = 0
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        await pilot.press("f5")  # the start: the storey's first tab (not counted)
+        await pilot.pause()
+        for what, text in STOREY_SCRIPT:
+            if what == "key":
+                keys += 1
+                await pilot.press(text)
+            else:
+                chars += len(text)
+                await pilot.press(*["space" if ch == " " else ch for ch in text])
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+    with Store.open(db) as st:
+        _check_storey(st.load_survey(sid))
+    return keys, chars
+
+
+def storey_figures() -> dict[str, float]:
+    """nav_keys_storey and chars_storey: one typical storey logged by a pilot script."""
+    from triage.model import parse_survey
+    from triage.store import Store
+
+    with tempfile.TemporaryDirectory() as d:
+        db = Path(d) / "storey.db"
+        survey = parse_survey(storey_survey())
+        with Store.open(db) as st:
+            st.add_survey(survey, "bench", "bench")
+        old = os.environ.get("TRIAGE_HOME")
+        os.environ["TRIAGE_HOME"] = d  # no settings of the user's (theme, last gauge)
+        try:
+            keys, chars = asyncio.run(_log_storey(db, str(survey.survey_id)))
+        finally:
+            if old is None:
+                os.environ.pop("TRIAGE_HOME", None)
+            else:
+                os.environ["TRIAGE_HOME"] = old
+    return {"nav_keys_storey": float(keys), "chars_storey": float(chars)}
+
+
+def nav_keys_storey() -> dict[str, float]:
+    """The storey's figures (nav_keys_storey, with chars_storey beside it)."""
+    return storey_figures()
+
+
 def main() -> None:
-    """Print the three figures as JSON."""
-    figures = {**startup_figures(), **field_figures()}
+    """Print the figures as JSON."""
+    figures = {**startup_figures(), **field_figures(), **storey_figures()}
     print(json.dumps(figures))
 
 

@@ -90,12 +90,14 @@ async def test_f_key_then_typing_goes_to_the_new_tab(db: Path, make_app) -> None
     app = make_app(db, open_survey=SID)
     async with app.run_test(size=(80, 24)) as pilot:
         await settle(pilot)
-        await burst(pilot, "<f7>", "3", "<enter>")
+        # the cursor on the kind: a letter picks it, Tab goes on to the count
+        await burst(pilot, "<f7>", "w", "<tab>", "3", "<enter>")
         pane = app.screen.query_one("#members-pane")
         assert pane.form["count"].text in ("", "1")  # the form is ready for the next
+        assert app.focused is pane.form["kind"].select  # on the kind again, for the next
     with Store.open(db, refresh=False) as st:
         ms = st.load_survey(SID).storeys[0].members
-    assert ms[-1].count == 3
+    assert (ms[-1].kind, ms[-1].count) == ("wall", 3)
 
 
 async def test_open_from_the_list_then_typing(db: Path, make_app) -> None:

@@ -122,6 +122,8 @@ async def test_storey_walk_and_add(db: Path, make_app) -> None:
         await pilot.press("ctrl+z")
         await settle(pilot)
         assert [s.label for s in scr.survey.storeys] == ["G", "1"]
+        title = str(scr.query_one("#survey-title").render())
+        assert title.endswith("undone: added storey 2"), title
 
 
 async def test_moving_away_saves_what_was_typed(db: Path, make_app) -> None:

@@ -61,6 +61,24 @@ async def _to_members(pilot) -> None:
     await settle(pilot)
 
 
+async def _to_storey_tab(pilot) -> None:
+    await settle(pilot)
+    await pilot.press("f5")
+    await settle(pilot)
+
+
+async def _to_hazards(pilot) -> None:
+    await settle(pilot)
+    await pilot.press("f8")
+    await settle(pilot)
+
+
+async def _to_photos(pilot) -> None:
+    await settle(pilot)
+    await pilot.press("f9")
+    await settle(pilot)
+
+
 async def _to_survey_tab(pilot) -> None:
     await settle(pilot)
     await pilot.press("f10")
@@ -92,7 +110,9 @@ async def _to_help(pilot) -> None:
 
 
 SCREENS = {"list": (_to_list, False), "new-survey": (_to_new, False),
-           "readings": (_to_logging, True), "members": (_to_members, True),
+           "storey-tab": (_to_storey_tab, True), "readings": (_to_logging, True),
+           "members": (_to_members, True), "hazards": (_to_hazards, True),
+           "photos": (_to_photos, True),
            "survey-tab": (_to_survey_tab, True), "verdict": (_to_verdict, True),
            "history": (_to_history, True), "report": (_to_report, True),
            "help": (_to_help, True)}

@@ -116,6 +116,23 @@ class FieldData:
         except (StoreError, SurveyError, ValueError) as err:
             raise Refused(str(err).splitlines()[0] if str(err) else "refused") from None
 
+    def attach_photo(self, survey_id: str, path: str, file: str, caption: str,
+                     who: str) -> int:
+        """Copy a photo file into the store, onto the photo list at `path`.
+
+        Blob and entry are one transaction; returns the new revision, or raises `Refused` in
+        one line (not a JPEG or PNG, too big, no such file) with nothing saved.
+        """
+        from triage.errors import TriageError
+
+        try:
+            f = Path(file).expanduser()
+            return int(self.store.attach_photo(survey_id, path, f, caption, who))
+        except (TriageError, ValueError) as err:
+            raise Refused(str(err).splitlines()[0] if str(err) else "refused") from None
+        except OSError as err:
+            raise Refused(f"{file}: {err.strerror or 'could not be read'}") from None
+
     def remove(self, survey_id: str, path: str, who: str) -> int:
         """Remove an item (kept in the change log)."""
         try:

@@ -16,6 +16,8 @@ HOW = """How it works
  • Every field is saved the moment it is accepted (Enter, leaving it, or a pick) and says
    ✓ saved beside it. A value that breaks a rule is shown with the rule and is not saved.
  • Plain letters never act as commands: actions are ctrl+ keys, F-keys, Enter and Escape.
+ • In a form, Enter adds the item from any field and readies the next; on a pick list or the
+   sign list a letter jumps to the choice beginning with it; Space ticks a sign.
  • Tabs (storey, readings, members, hazards, photos) can also be clicked; so can rows.
  • The verdict is recomputed after every change, without holding up typing.
 """

@@ -35,6 +35,21 @@ from triage.ui.widgets.survey_pane import SurveyPane
 from triage.ui.widgets.verdict import VerdictLine, verdict_lines
 
 TABS = ("storey", "readings", "members", "hazards", "photos", "survey")
+
+
+class StoreyTabs(TabbedContent):
+    """The tabs of a storey, shown only by keys, clicks and the focus as it is now.
+
+    A tab pane says, in a message, that a widget in it took the focus; acted on later, after
+    an F-key typed ahead showed another tab, such a message showed the old tab again under
+    the cursor. A pane is shown for it only while the focus is still in it.
+    """
+
+    def _on_tab_pane_focused(self, event: TabPane.Focused) -> None:
+        focused = self.screen.focused
+        if focused is not None and event.tab_pane not in focused.ancestors:
+            event.stop()
+            event.prevent_default()  # TabbedContent's own handler (run after this) is skipped
 WIDE = 150  # columns from which the full verdict sits beside the form
 
 
@@ -55,6 +70,8 @@ class SurveyScreen(Screen[None]):
                 show=False),
         Binding("escape", "back", "back"),  # not priority: a pick list open closes first
         Binding("ctrl+b", "add_below", "storey below", priority=True, show=False),
+        Binding("ctrl+d", "direction", "readings: direction x or y", priority=True,
+                show=False),
         Binding("f5", "tab('storey')", "storey tab", priority=True, show=False),
         Binding("f6", "tab('readings')", "readings tab", priority=True, show=False),
         Binding("f7", "tab('members')", "members tab", priority=True, show=False),
@@ -99,7 +116,7 @@ class SurveyScreen(Screen[None]):
             with Vertical(id="storey-column"):
                 yield OptionList(id="storeys")
                 yield Static("PgUp ↑\nPgDn ↓", id="storey-keys")
-            with TabbedContent(id="tabs", initial="readings"):
+            with StoreyTabs(id="tabs", initial="readings"):
                 with TabPane("storey [dim]f5[/]", id="storey"):
                     yield StoreyPane(id="storey-pane")
                 with TabPane("readings [dim]f6[/]", id="readings"):
@@ -242,6 +259,14 @@ class SurveyScreen(Screen[None]):
         self.query_one(TabbedContent).active = name
         self.current_pane().focus_first()  # at once: keys typed after the F-key go there
 
+    def action_direction(self) -> None:
+        """ctrl+d in the readings tab: the new reading's direction, x or y (the cursor stays)."""
+        from textual.actions import SkipAction
+
+        if self.query_one(TabbedContent).active != "readings":
+            raise SkipAction()  # elsewhere ctrl+d is the field's own (delete right)
+        self.query_one(ReadingsPane).toggle_direction()
+
     def enter_pressed(self, widget: Any) -> bool:
         """Enter in a pane, acted on at once (see triage/ui/focus.py)."""
         for node in widget.ancestors_with_self:
@@ -294,6 +319,18 @@ class SurveyScreen(Screen[None]):
         for pane in self.query(ItemPane).results():
             pane.reload(keep_form=True)
         self.fill_storeys()
+        self.show_title("✓ saved")
+        self.request_verdict()
+        return rev
+
+    def attach_photo(self, path: str, file: str, caption: str) -> int:
+        """Copy a photo file into the store, onto the photo list at `path`; Refused passes up."""
+        rev = self.data.attach_photo(self.survey_id, path, file, caption, self.who)
+        self.survey = self.data.load(self.survey_id)
+        self.revision = rev
+        for pane in self.query(ItemPane).results():
+            pane.reload(keep_form=True)
+        self.query_one(StoreyPane).load(refill=False)
         self.show_title("✓ saved")
         self.request_verdict()
         return rev
@@ -367,6 +404,9 @@ class SurveyScreen(Screen[None]):
 
     def action_undo(self) -> None:
         """Undo the survey's last change."""
+        from triage.ui.screens.history import describe_change
+
+        labels = [st.label for st in self.survey.storeys]  # as the change left them
         try:
             change = self.data.undo(self.survey_id, self.who)
         except Refused as err:
@@ -380,7 +420,7 @@ class SurveyScreen(Screen[None]):
         self.storey_index = min(self.storey_index, len(self.survey.storeys) - 1)
         self.fill_storeys()
         self.load_all()
-        self.show_title(f"undone: {change.op} {change.path}")
+        self.show_title("undone: " + describe_change(change.op, change.path, change.new, labels))
         self.request_verdict()
 
     # --- the verdict ---------------------------------------------------------------------

@@ -23,6 +23,7 @@ from triage.safetext import visible_line
 from triage.ui.focus import focus_now
 from triage.ui.messages import NOT_SAVED, SAVED, FieldAccepted
 from triage.ui.shown import block, line
+from triage.ui.widgets.search import PickSelect
 
 
 def no_blink(widget: Any) -> None:
@@ -320,7 +321,7 @@ class Choice(Saving, Horizontal):
         self.path = path
         self.saved_value = value
         self._width = width
-        self.select: Select[Any] = Select(
+        self.select: Select[Any] = PickSelect(
             picks(options), value=value if value is not None else Select.NULL,
             allow_blank=allow_blank or value is None, compact=True, prompt="—")
         self.status = Static("", classes="fstatus")

@@ -12,7 +12,7 @@ from triage.ui.choices import hazard_choices
 from triage.ui.widgets.field import Choice, Field, set_text
 from triage.ui.widgets.pane import ItemPane, values_of
 
-KEYS = ["kind", "where", "storey", "height_above_ground_m", "note"]
+KEYS = ["kind", "height_above_ground_m", "where", "storey", "note"]  # the form's order
 
 
 class HazardsPane(ItemPane):
@@ -64,14 +64,14 @@ class HazardsPane(ItemPane):
         return [(st.label, st.label) for st in self.survey_screen.survey.storeys]
 
     def form_widgets(self) -> ComposeResult:
-        """Kind, where, storey, height, note."""
+        """Kind, height, where, storey, note."""
         opts = self._options()
-        w: list[Any] = [
+        w: list[Any] = [  # kind, then its height (the keep-out rests on it)
             Choice("kind", None, opts, None, allow_blank=True, id="h-kind", width=40),
-            Field("where", None, id="h-where", width=30, placeholder="e.g. north parapet"),
-            Choice("storey", None, self._storeys(), None, allow_blank=True, id="h-storey"),
             Field("height", None, kind="float", unit="m", id="h-height",
                   placeholder="above ground"),
+            Field("where", None, id="h-where", width=30, placeholder="e.g. north parapet"),
+            Choice("storey", None, self._storeys(), None, allow_blank=True, id="h-storey"),
             Field("note", None, id="h-note", width=40),
         ]
         for widget, k in zip(w, KEYS, strict=True):

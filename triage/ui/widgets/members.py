@@ -2,8 +2,11 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
+from dataclasses import dataclass
 from typing import Any
 
+from textual import events
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical
 from textual.widgets import Label, OptionList, SelectionList, Static
@@ -15,17 +18,84 @@ from triage.ui.choices import class_texts, member_kinds, sign_choices
 from triage.ui.messages import FieldAccepted
 from triage.ui.widgets.field import Choice, Field, Saving, set_text
 from triage.ui.widgets.pane import ItemPane, values_of
+from triage.ui.widgets.search import Searcher, searchable
 
-KEYS = ["kind", "count", "ductility", "crack_mm", "crack_sd_mm", "ref", "dir", "weight",
-        "override_reason", "damage_class"]
+
+@dataclass(frozen=True)
+class MemberField:
+    """One field of the member-group form, as data: a new field is one more entry in FIELDS.
+
+    `build(pane)` makes the widget (a `Field` or `Choice`; the pane gives the building's
+    systems); `default` is a new group's value; `kinds`, when given, shows the field only for
+    those member kinds (a connection's type, a wall's mode); `keep`: a new group keeps the
+    last group's value.
+    """
+
+    key: str
+    build: Callable[[Any], Any]
+    default: Any = None
+    kinds: tuple[str, ...] = ()
+    keep: bool = False
+
+
+def _kinds(pane: Any) -> Any:
+    kinds = [(words("member_kinds", k), k) for k in member_kinds(pane.systems())]
+    return Choice("kind", None, kinds, "column", id="m-kind")
+
+
+# In the order an inspector logs a group: what, how many, what was seen, then the rest.
+FIELDS: tuple[MemberField, ...] = (
+    MemberField("kind", _kinds, "column", keep=True),
+    MemberField("count", lambda p: Field("count", None, 1, kind="int", id="m-count"), 1),
+    MemberField("signs", lambda p: SignChecks(id="m-signs"), ()),
+    MemberField("crack_mm", lambda p: Field("widest crack", None, kind="float", unit="mm",
+                                            id="m-crack", placeholder="none")),
+    MemberField("ref", lambda p: Field("ref", None, id="m-ref", placeholder="e.g. C3")),
+    MemberField("ductility", lambda p: Choice(
+        "ductility", None, [("ductile", "ductile"), ("brittle (short, shear)", "brittle")],
+        "ductile", id="m-ductility"), "ductile"),
+    MemberField("dir", lambda p: Choice("acts in", None, [("x", "x"), ("y", "y")], None,
+                                        allow_blank=True, id="m-dir")),
+    MemberField("weight", lambda p: Field("weight", None, 1, kind="float", id="m-weight",
+                                          placeholder="1: share of the storey"), 1.0),
+    MemberField("crack_sd_mm", lambda p: Field("crack uncert.", None, kind="float", unit="mm",
+                                               id="m-crack-sd", placeholder="default")),
+    MemberField("override_reason", lambda p: Field("override why", None, id="m-reason",
+                                                   width=34,
+                                                   placeholder="reason, before the class")),
+    MemberField("damage_class", lambda p: Choice("class by hand", None,
+                                                 [(c, c) for c in CLASSES], None,
+                                                 allow_blank=True, id="m-class")),
+)
+KEYS = [f.key for f in FIELDS]
 
 
 class SignList(SelectionList[str]):
-    """A check list that ticks the highlighted sign at once.
+    """A check list that ticks the highlighted sign at once, and finds a sign by its letters.
 
     Textual's list ticks what is highlighted when its own message comes back, so a Down typed
-    right after Space moved the highlight first and the wrong sign was ticked.
+    right after Space moved the highlight first and the wrong sign was ticked. A letter typed
+    moves to the next sign whose words begin with it (triage/ui/widgets/search.py).
     """
+
+    def __init__(self, *args: Any, **kwargs: Any) -> None:
+        super().__init__(*args, **kwargs)
+        self.searcher = Searcher()
+
+    def check_consume_key(self, key: str, character: str | None) -> bool:
+        """Letters search the list (typed in order, never a binding)."""
+        return searchable(character)
+
+    async def _on_key(self, event: events.Key) -> None:
+        if not searchable(event.character):
+            self.searcher.reset()
+            return
+        event.stop()
+        event.prevent_default()
+        texts = [str(self.get_option_at_index(i).prompt) for i in range(self.option_count)]
+        i = self.searcher.next_index(texts, self.highlighted, event.character or "")
+        if i is not None:
+            self.highlighted = i
 
     def action_select(self) -> None:
         """Space or Enter: tick or untick the highlighted sign now."""
@@ -131,7 +201,7 @@ class SignChecks(Saving, Horizontal):
 class MembersPane(ItemPane):
     """The member groups of the storey in view."""
 
-    first_key = "count"
+    first_key = "kind"  # a letter picks the kind; Tab goes on to the count
     noun = "member group"
     columns = (("#", 3), ("mark", 5), ("kind", 11), ("count", 5), ("crack", 5), ("signs", 5),
                ("class", 5), ("from", 11))
@@ -182,59 +252,39 @@ class MembersPane(ItemPane):
                 str(len(item.signs)) if item.signs else "", cls, frm)
 
     def form_widgets(self) -> ComposeResult:
-        """Kind, count, ductility, crack, ref, direction, signs, class set by hand."""
-        kinds = [(words("member_kinds", k), k) for k in member_kinds(self.systems())]
-        w: list[Any] = [
-            Choice("kind", None, kinds, "column", id="m-kind"),
-            Field("count", None, 1, kind="int", id="m-count"),
-            Choice("ductility", None, [("ductile", "ductile"),
-                                       ("brittle (short, shear)", "brittle")], "ductile",
-                   id="m-ductility"),
-            Field("widest crack", None, kind="float", unit="mm", id="m-crack",
-                  placeholder="none"),
-            Field("crack uncert.", None, kind="float", unit="mm", id="m-crack-sd",
-                  placeholder="default"),
-            Field("ref", None, id="m-ref", placeholder="e.g. C3"),
-            Choice("acts in", None, [("x", "x"), ("y", "y")], None, allow_blank=True,
-                   id="m-dir"),
-            Field("weight", None, 1, kind="float", id="m-weight",
-                  placeholder="1: share of the storey"),
-        ]
-        for widget, k in zip(w, KEYS[:8], strict=True):
-            widget.key = k
-        yield from w
-        self.signs = SignChecks(id="m-signs")
-        self.signs.key = "signs"
-        yield self.signs
-        reason = Field("override why", None, id="m-reason", width=34,
-                       placeholder="reason, before the class")
-        reason.key = "override_reason"
-        yield reason
-        cls = Choice("class by hand", None, [(c, c) for c in CLASSES], None, allow_blank=True,
-                     id="m-class")
-        cls.key = "damage_class"
-        yield cls
+        """The fields of FIELDS, in order; the class line under them."""
+        for spec in FIELDS:
+            widget = spec.build(self)
+            widget.key = spec.key
+            if spec.key == "signs":
+                self.signs = widget
+            yield widget
         self.class_line = Static("", classes="pane-note class-line")
         yield self.class_line
 
+    def shown_for(self, kind: str) -> None:
+        """Show the fields that apply to a member kind."""
+        for spec in FIELDS:
+            if spec.kinds:
+                self.form[spec.key].display = kind in spec.kinds
+
     def fill(self, item: Any | None) -> None:
-        """A group's values, or a new group."""
+        """A group's values, or a new group (the kind kept from the last one)."""
         if item is None:
-            for k in ("crack_mm", "crack_sd_mm", "ref", "override_reason"):
-                self.form[k].set_value(None)
-            self.form["count"].set_value(1)
-            self.form["weight"].set_value(1.0)
-            self.form["dir"].set_value(None)
-            self.form["damage_class"].set_value(None)
-            self.form["ductility"].set_value("ductile")
+            for spec in FIELDS:
+                if spec.key != "signs" and not spec.keep:
+                    self.form[spec.key].set_value(spec.default)
             kind = self.form["kind"].value() or "column"
             self.form["kind"].set_value(kind)
             selected: list[str] = []
         else:
-            for k in KEYS:
-                self.form[k].set_value(getattr(item, k))
+            for spec in FIELDS:
+                if spec.key != "signs":
+                    self.form[spec.key].set_value(getattr(item, spec.key, None))
             kind, selected = item.kind, list(item.signs)
+        self._signs_kind = kind
         self.signs.set_choices(sign_choices(self.systems(), kind), selected)
+        self.shown_for(kind)
         self.show_class()
 
     def show_class(self) -> None:
@@ -258,17 +308,35 @@ class MembersPane(ItemPane):
         super().reload(keep_form)
         self.show_class()
 
+    def on_mount(self) -> None:
+        """A kind picked by a typed letter offers its signs at once (see `kind_picked`).
+
+        (Textual runs ItemPane.on_mount too: handlers run down the MRO.)
+        """
+        self.form["kind"].select.on_pick = self.kind_picked
+
+    def kind_picked(self, kind: Any) -> None:
+        """Another kind, picked: its signs and fields, before the next key is taken.
+
+        Keys typed ahead (Tab, a letter finding a sign, Space) must meet the new kind's sign
+        list, not the old one rebuilt under them later.
+        """
+        kind = kind or "column"
+        if kind == getattr(self, "_signs_kind", None):
+            return
+        self._signs_kind = kind
+        self.signs.set_choices(sign_choices(self.systems(), kind), self.signs.value())
+        self.shown_for(kind)
+
     def form_changed(self, widget: Any) -> None:
-        """A new kind offers its own signs."""
+        """A new kind offers its own signs and fields."""
         if widget is self.form["kind"]:
-            self.signs.set_choices(sign_choices(self.systems(), widget.value() or "column"),
-                                   [s for s in self.signs.value()])
+            self.kind_picked(widget.value())
 
     def on_field_accepted(self, event: FieldAccepted) -> None:
         """Kind changed in edit mode: offer its signs too (the save goes on up)."""
         if self.editing is not None and event.field is self.form["kind"]:
-            self.signs.set_choices(sign_choices(self.systems(), event.value or "column"),
-                                   self.signs.value())
+            self.kind_picked(event.value)
         if self.editing is None and event.field is self.signs:
             event.stop()
             event.prevent_default()  # gathered with the new group, not added on its own
@@ -276,7 +344,9 @@ class MembersPane(ItemPane):
 
     def build_item(self) -> dict[str, Any]:
         """The group from the form."""
-        data = values_of(self.form, KEYS)
+        kind = self.form["kind"].value() or "column"
+        data = values_of(self.form, [f.key for f in FIELDS if f.key != "signs"
+                                     and (not f.kinds or kind in f.kinds)])
         if "count" not in data:
             raise ValueError("count: how many members the group holds is needed")
         if data.get("weight") == 1:

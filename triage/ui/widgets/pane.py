@@ -15,13 +15,14 @@ from typing import Any
 from textual.app import ComposeResult
 from textual.containers import VerticalScroll
 from textual.coordinate import Coordinate
-from textual.widgets import DataTable, Input, Static
+from textual.widgets import DataTable, Static
+from textual.widgets._select import SelectOverlay
 
 from triage.ui.data import Refused, rule_of
 from triage.ui.focus import focus_now
 from triage.ui.messages import FieldAccepted
 from triage.ui.shown import line
-from triage.ui.widgets.field import Choice, Field, Tick, set_text
+from triage.ui.widgets.field import Choice, Field, Saving, Tick, set_text
 
 FIELD_KEY = re.compile(r"\.(\w+)(?:\[\d+\])?:")
 
@@ -153,9 +154,13 @@ class ItemPane(VerticalScroll):
                      content=f"{self.noun} {self.editing + 1}: each field saves as accepted · "
                      "^n new · ^r remove")
 
+    def item_path(self, index: int) -> str:
+        """The survey path of the listed item at `index`, e.g. 'storeys[1].readings[3]'."""
+        return f"{self.list_path()}[{index}]"
+
     def set_paths(self) -> None:
         """Point the form's fields at the item being edited (none in new mode)."""
-        base = f"{self.list_path()}[{self.editing}]" if self.editing is not None else None
+        base = self.item_path(self.editing) if self.editing is not None else None
         for key, w in self.form.items():
             w.path = f"{base}.{key}" if base is not None else None
 
@@ -184,17 +189,20 @@ class ItemPane(VerticalScroll):
     def enter_pressed(self, widget: Any) -> bool:
         """Enter, acted on at once (the app's priority binding; see triage/ui/focus.py).
 
-        On a row: edit that item, the cursor in its form. In a text field of a new item: add
-        it, the form ready for the next. In a field of an item being edited: on to the next
-        field (leaving a field saves it). Anything else takes Enter the usual way.
+        On a row: edit that item, the cursor in its form. In any field of a new item (a text
+        field, a closed pick list, the sign list): add it, the form ready for the next. In a
+        field of an item being edited: on to the next field (leaving a field saves it). An
+        open pick list takes Enter itself, to pick.
         """
         if widget is self.table:
             if self.table.row_count == 0:
                 return False
             self.edit(self.table.cursor_row)
             return True
-        f = widget.parent
-        if not (isinstance(widget, Input) and isinstance(f, Field) and f in self.form.values()):
+        if isinstance(widget, SelectOverlay) or getattr(widget, "expanded", False):
+            return False
+        owner = next((a for a in widget.ancestors_with_self if isinstance(a, Saving)), None)
+        if owner is None or self not in widget.ancestors:
             return False
         if self.editing is None:
             self.add_item()
@@ -280,7 +288,7 @@ class ItemPane(VerticalScroll):
             return
         idx = self.editing
         try:
-            self.survey_screen.remove_item(f"{self.list_path()}[{idx}]")
+            self.survey_screen.remove_item(self.item_path(idx))
         except Refused as err:
             set_text(self.note, f"not removed: {err}")
             return

@@ -139,6 +139,11 @@ class ReadingsPane(ItemPane):
         self._show_kind()
         self.preview()
 
+    def toggle_direction(self) -> None:
+        """The direction from x to y and back, as a pick (saved at once when editing)."""
+        d = self.form["dir"]
+        d.select.value = "y" if d.value() == "x" else "x"
+
     def form_changed(self, widget: Any) -> None:
         """Offset or tilt picked."""
         self._show_kind()

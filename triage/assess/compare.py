@@ -34,6 +34,7 @@ from typing import Literal
 from triage.model import MemberGroup, Survey
 from triage.standards import Assumptions, load
 
+from .compare_capacity import capacity_changes
 from .comparison import (
     BuildingLine,
     Comparison,
@@ -305,7 +306,8 @@ def compare(old: Survey, old_a: Assessment, new: Survey, new_a: Assessment,
             label=label, in_old=so is not None, in_new=sn is not None,
             residual_capacity_before=ro.residual_capacity if ro else None,
             residual_capacity_after=rn.residual_capacity if rn else None,
-            spots=tuple(by_storey.get(label, ())), members=tuple(members)))
+            spots=tuple(by_storey.get(label, ())), members=tuple(members),
+            capacity=capacity_changes(label, old_a if so else None, new_a if sn else None)))
 
     def key(h: object) -> tuple[str, str, str]:
         return (getattr(h, "kind", ""), (getattr(h, "where", None) or "").strip().lower(),

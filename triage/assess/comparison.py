@@ -12,6 +12,7 @@ from pydantic import BaseModel, ConfigDict
 
 from triage.standards.vocabulary import words
 
+from .compare_capacity import CapacityChange, capacity_change_words
 from .drift import pct
 from .result import tier_words
 
@@ -78,6 +79,7 @@ class StoreyChange(_Out):
     residual_capacity_after: float | None
     spots: tuple[SpotChange, ...]
     members: tuple[MemberChange, ...]
+    capacity: tuple[CapacityChange, ...] = ()  # per direction and method (added within /2)
 
 
 class BuildingLine(_Out):
@@ -146,7 +148,9 @@ class Comparison(_Out):
             out += [_spot_words(s.label, c, self.k) for c in s.spots]
             rb, ra = s.residual_capacity_before, s.residual_capacity_after
             if rb is not None and ra is not None and abs(ra - rb) > 1e-9:
-                out.append(f"storey {s.label}: residual capacity R {rb:.1%} -> {ra:.1%}")
+                out.append(f"storey {s.label}: residual capacity {rb:.1%} -> {ra:.1%}")
+            out += [t for c in s.capacity
+                    if (t := capacity_change_words(s.label, c)) is not None]
             out += [_member_words(s.label, m) for m in s.members]
         for h in self.new_hazards:
             out.append("new hazard: " + _hz(h))

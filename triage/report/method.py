@@ -15,6 +15,7 @@ from dataclasses import dataclass
 
 from triage.assess import Assessment
 from triage.model import Survey
+from triage.report.capacity_rows import capacity_note
 from triage.standards import Source, Standards
 from triage.standards.vocabulary import words
 
@@ -100,7 +101,8 @@ def method_rows(survey: Survey, a: Assessment, std: Standards) -> list[MethodRow
         used_methods.add("jbdpa")   # the damage classes I to V are the JBDPA guideline's
     for key, what, source in capacity_methods(std):
         if key in used_methods:
-            rows.append(MethodRow(what, cite(source), source.status, source.status_note))
+            note = capacity_note(std, key) if key != "jbdpa" else source.status_note
+            rows.append(MethodRow(what, cite(source), source.status, note))
     if drift and any(f.io_negligible for f in a.drift_figures.values()):
         s = std.damage_states.source
         rows.append(MethodRow("residual drift damage states DS1–DS4 (the number taken for "

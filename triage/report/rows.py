@@ -14,6 +14,7 @@ from triage.assess import Assessment, tier_words
 from triage.assess.spots import Spot, spots_of_survey
 from triage.model import Survey
 from triage.photos import PhotoLoader
+from triage.report.capacity_rows import capacity_seen
 from triage.standards import Assumptions
 from triage.standards.vocabulary import words
 
@@ -241,7 +242,10 @@ def member_rows(survey: Survey, a: Assessment, clip: Clip) -> list[MemberRow]:
                 seen.append("brittle")
             if mg.dir is not None:
                 seen.append(f"acts in {mg.dir}")
+            seen += capacity_seen(mr)
             how = {"crack": "by crack width", "signs": "by signs",
+                   "type": "by FEMA 352 damage type (our link)",
+                   "severity": "by FEMA 306 severity (our link)",
                    "override": f"set by the inspector: {mg.override_reason or ''}"}.get(
                        mr.class_from or "", "undamaged")
             group = f"{mr.index + 1}" + (f" {mr.ref}" if mr.ref else "")

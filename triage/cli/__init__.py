@@ -19,18 +19,51 @@ import argparse
 import importlib
 import sys
 from collections.abc import Sequence
+from typing import Any
 
 from triage.errors import TriageError, io_failure
 
-from .errors import UserError
+from .errors import UserError, refusal_lines
 
 # Command modules, in the order `triage --help` lists them.
 MODULES = ("assess", "surveys", "keys", "report", "verify", "compare", "merge", "summary",
            "centre", "form", "screens")
 
 
+EXIT_STATUS = """exit status:
+  0  done
+  1  input refused (a bad file, field, database or system key) or a check failed; with
+     several inputs (import, merge), 1 when any was refused, the rest done
+  2  the command line itself is wrong (unknown command or option)
+  3, 4, 5  verify only: see 'triage verify --help'"""
+
+
+class _Formatter(argparse.HelpFormatter):
+    """Descriptions and epilogs wrapped paragraph by paragraph.
+
+    A paragraph whose lines after the first are indented (a table of exit statuses) keeps
+    its lines as written.
+    """
+
+    def _fill_text(self, text: str, width: int, indent: str) -> str:
+        out = []
+        for para in text.split("\n\n"):
+            if "\n " in para:
+                out.append("\n".join(indent + line for line in para.splitlines()))
+            else:
+                out.append(super()._fill_text(para, width, indent))
+        return "\n\n".join(out)
+
+
 class _Parser(argparse.ArgumentParser):
-    """An argument parser whose complaints are one line and exit status 2."""
+    """An argument parser whose complaints are one line and exit status 2.
+
+    Descriptions and epilogs keep their line breaks (the exit-status tables).
+    """
+
+    def __init__(self, *args: Any, **kwargs: Any) -> None:
+        kwargs.setdefault("formatter_class", _Formatter)
+        super().__init__(*args, **kwargs)
 
     def error(self, message: str) -> None:  # type: ignore[override]
         sys.stderr.write(f"{self.prog}: {message} (see '{self.prog} --help')\n")
@@ -42,7 +75,10 @@ def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(prog="triage", description=(
         "Post-earthquake building inspection: residual drift and damage, storey by storey, to "
         "an indicative occupancy tier. Indicative only: the licensed engineer of record and "
-        "the local building authority decide."))
+        "the local building authority decide.\n\n"
+        "Data goes to standard output, status lines and refusals to standard error; '-' "
+        "names standard input or output where a command reads or writes a file. "
+        "'triage COMMAND --help' describes a command."), epilog=EXIT_STATUS)
     parser.add_argument("--db", metavar="PATH", help="the survey database (default: under the "
                         "user's data folder); or a centre's postgresql:// URL, read-only, for "
                         "list, export, report, compare and summary")
@@ -50,7 +86,9 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"triage {__version__}")
     parser.add_argument("--debug", action="store_true",
                         help="on an internal error, print the traceback too")
-    sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser,
+                                title="commands (with no command: the screens on the "
+                                "database)")
     for name in MODULES:
         importlib.import_module(f"triage.cli.{name}").add_parser(sub)
     return parser
@@ -82,19 +120,25 @@ def _run(argv: list[str]) -> int:
         args.command = "ui"
         from . import screens
         args.func = screens.run_default
+    action = getattr(args, "key_command", None) or getattr(args, "centre_command", None)
+    said = f"{args.command} {action}" if action else args.command   # names it in refusals
     if args.command in SCREENS:   # the screens write escape sequences of their own
         sys.stdout = getattr(sys.stdout, "wrapped", sys.stdout)
         sys.stderr = getattr(sys.stderr, "wrapped", sys.stderr)
     try:
+        if getattr(args, "db", None) == "-":
+            raise UserError("--db -: a database is a file (SQLite) or a centre's URL; give "
+                            "its path")
         _check_centre_url(args)
         if args.command in ("ui", "demo", "form"):
             _check_forms()
         return int(args.func(args) or 0)
     except TriageError as err:
-        sys.stderr.write(f"triage {args.command}: {_one_line(str(err))}\n")
+        for line in refusal_lines(err):
+            sys.stderr.write(f"triage {said}: {_one_line(line)}\n")
         return err.code
     except KeyboardInterrupt:
-        sys.stderr.write(f"triage {args.command}: interrupted\n")
+        sys.stderr.write(f"triage {said}: interrupted\n")
         return 1
     except BrokenPipeError:
         return 0
@@ -102,7 +146,7 @@ def _run(argv: list[str]) -> int:
         where = f"{err.filename}: " if err.filename else ""
         failure = io_failure(err.filename or "a file", err, "read or written")
         why = str(failure).split("(", 1)[-1].rstrip(")")
-        sys.stderr.write(f"triage {args.command}: {where}input/output failed ({why}); "
+        sys.stderr.write(f"triage {said}: {where}input/output failed ({why}); "
                          "nothing more was done\n")
         return 1
     except Exception as err:  # a bug of ours: one line naming the crash file
@@ -114,7 +158,7 @@ def _run(argv: list[str]) -> int:
 
             traceback.print_exception(err, file=sys.stderr)
         said = f"details in {path}" if path else "no crash file could be written"
-        sys.stderr.write(f"triage {args.command}: internal error: {type(err).__name__}: "
+        sys.stderr.write(f"triage {said}: internal error: {type(err).__name__}: "
                          f"{_one_line(str(err))[:300]} ({said}; please report it)\n")
         return 1
 

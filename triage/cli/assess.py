@@ -5,21 +5,30 @@ from __future__ import annotations
 import argparse
 import sys
 
-from .common import read_survey_file
+from .common import add_command, read_survey_file
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:
+def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg,unused-ignore]
     """Register `assess` and `schema`."""
-    p = sub.add_parser("assess", help="assess a survey file")
-    p.add_argument("file", help="a triage-survey/1 JSON file")
-    p.add_argument("--format", choices=("text", "json"), default="text")
+    p = add_command(sub, "assess", "assess a survey file", description=(
+        "Assess one survey file and print the assessment: the indicative tier and level, "
+        "what governs them, the probabilities and what to measure next. Nothing is stored. "
+        "A refused file gets one line per broken rule on standard error (field and rule), "
+        "exit status 1."))
+    p.add_argument("file", metavar="FILE", help="a triage-survey/1 or /2 JSON file; - reads "
+                   "it from standard input")
+    p.add_argument("--format", choices=("text", "json"), default="text",
+                   help="text for people (the default, with the caution first) or json: the "
+                   "triage-assessment/1 object (docs/formats.md)")
     p.set_defaults(func=run)
-    s = sub.add_parser("schema", help="print the JSON Schema of triage-survey/2")
+    s = add_command(sub, "schema", "print the JSON Schema of triage-survey/2", description=(
+        "Print the JSON Schema (draft 2020-12) of the survey format, generated from the "
+        "survey models, on standard output."))
     s.set_defaults(func=run_schema)
 
 
 def run(args: argparse.Namespace) -> int:
-    """Assess the file and print the assessment."""
+    """Assess the file (or standard input) and print the assessment."""
     from triage.assess import assess
     from triage.assess.text import summary
 

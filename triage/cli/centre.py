@@ -11,24 +11,36 @@ import sys
 import time
 from collections.abc import Callable
 
+from .common import add_command
 from .errors import UserError
+from .streams import status
 
 
 def add_parser(sub: argparse._SubParsersAction) -> None:
     """Register `centre` (init, reassess) and `sync`."""
-    p = sub.add_parser("centre", help="the coordination centre on PostgreSQL: schema, roles, "
-                       "reassessment")
+    p = add_command(sub, "centre", "the coordination centre on PostgreSQL: schema, roles, "
+                    "reassessment", description=(
+                        "Set up or upgrade a coordination centre's PostgreSQL database, or "
+                        "assess its surveys again with this engine (docs/centre.md). The "
+                        "URL's password is never printed."))
     csub = p.add_subparsers(dest="centre_command", metavar="ACTION", required=True,
-                            parser_class=type(p))
-    c = csub.add_parser("init", help="create or upgrade the schema and the roles triage_field "
-                        "and triage_read (run again: harmless)")
-    c.add_argument("url", metavar="URL", help="postgresql://ADMIN@HOST/DATABASE")
+                            parser_class=type(p), title="actions")
+    c = add_command(csub, "init", "create or upgrade the schema and the roles triage_field "
+                    "and triage_read (run again: harmless)")
+    c.add_argument("url", metavar="URL", help="postgresql://ADMIN@HOST/DATABASE (a role that "
+                   "may create schemas and roles)")
     c.set_defaults(func=run)
-    c = csub.add_parser("reassess", help="assess every current survey on the server with this "
-                        "engine")
-    c.add_argument("url", metavar="URL", help="postgresql://ADMIN@HOST/DATABASE")
+    c = add_command(csub, "reassess", "assess every current survey on the server with this "
+                    "engine")
+    c.add_argument("url", metavar="URL", help="postgresql://ADMIN@HOST/DATABASE (a role that "
+                   "may read and write the surveys' assessments)")
     c.set_defaults(func=run)
-    p = sub.add_parser("sync", help="send this laptop's surveys to the coordination centre")
+    p = add_command(sub, "sync", "send this laptop's surveys to the coordination centre",
+                    description=(
+                        "Send every survey version, change, assessment, report record and "
+                        "photo the centre lacks, whole surveys per transaction; run again "
+                        "after an interruption to finish. Progress on standard error when it "
+                        "is a terminal."))
     p.add_argument("--to", required=True, metavar="URL", dest="url",
                    help="postgresql://LOGIN@HOST/DATABASE (a login in triage_field)")
     p.add_argument("--batch", type=int, default=200, metavar="N",
@@ -85,9 +97,9 @@ def _init(args: argparse.Namespace) -> int:
              else "; roles triage_field and triage_read present")
     gis = "map view triage.building_map with PostGIS points" if r.postgis else \
         "map view triage.building_map with lat/lon"
-    sys.stdout.write(f"{where}: {done}{roles}; grants renewed; {gis}\n")
+    status(f"{where}: {done}{roles}; grants renewed; {gis}")
     if r.postgis_note:
-        sys.stderr.write(f"triage centre: note: {r.postgis_note}\n")
+        sys.stderr.write(f"triage centre init: note: {r.postgis_note}\n")
     return 0
 
 
@@ -98,8 +110,8 @@ def _reassess(args: argparse.Namespace) -> int:
 
     r = reassess(args.url, progress=_progress("reassess"))
     failed = f", {r.failed} could not be assessed" if r.failed else ""
-    sys.stdout.write(f"{redact(args.url)}: {r.assessed} survey versions assessed with engine "
-                     f"{__version__}, {r.current} already were{failed}\n")
+    status(f"{redact(args.url)}: {r.assessed} survey versions assessed with engine "
+           f"{__version__}, {r.current} already were{failed}")
     return 1 if r.failed else 0
 
 
@@ -118,11 +130,11 @@ def _sync(args: argparse.Namespace) -> int:
     for note in r.notes:
         sys.stderr.write(f"triage sync: note: {note}\n")
     if r.nothing:
-        sys.stdout.write(f"{r.server}: nothing to send; the centre holds all {r.surveys} "
-                         f"survey{'s' if r.surveys != 1 else ''} of this laptop as they are\n")
+        status(f"{r.server}: nothing to send; the centre holds all {r.surveys} "
+               f"survey{'s' if r.surveys != 1 else ''} of this laptop as they are")
         return 0
-    sys.stdout.write(f"{r.server}: sent {r.versions} survey version"
-                     f"{'s' if r.versions != 1 else ''}, {r.changes} changes, {r.assessments} "
-                     f"assessments, {r.reports} report records, {r.photos} photos in "
-                     f"{r.transactions} transactions ({r.seconds:.1f} s)\n")
+    status(f"{r.server}: sent {r.versions} survey version"
+           f"{'s' if r.versions != 1 else ''}, {r.changes} changes, {r.assessments} "
+           f"assessments, {r.reports} report records, {r.photos} photos in "
+           f"{r.transactions} transactions ({r.seconds:.1f} s)")
     return 0

@@ -9,9 +9,10 @@ from __future__ import annotations
 import argparse
 import os
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
 
 from .errors import UserError
+from .streams import is_std, read_stdin_bytes, read_text
 
 if TYPE_CHECKING:
     from triage.model import Survey
@@ -19,54 +20,97 @@ if TYPE_CHECKING:
     from triage.store.reader import SurveyReader
 
 
+def add_command(sub: argparse._SubParsersAction, name: str, summary: str,  # type: ignore[type-arg,unused-ignore]
+                description: str | None = None, epilog: str | None = None,
+                ) -> argparse.ArgumentParser:
+    """A command's parser.
+
+    `summary` is its line in `triage --help`; `description` (else the summary as a sentence)
+    heads its own `--help`; `epilog` ends it.
+    """
+    said = description or summary[:1].upper() + summary[1:] + "."
+    parser: argparse.ArgumentParser = sub.add_parser(name, help=summary, description=said,
+                                                     epilog=epilog)
+    return parser
+
+
+FORMAT_HELP = "text for people (the default) or json: one object with the same facts"
+
+
+def survey_refused(name: str, err: Exception, part: str = "") -> UserError:
+    """A refused survey as a `UserError` listing every broken rule, one line each.
+
+    `part` names where in the file the survey was ("embedded survey: " in a report PDF).
+    """
+    found = getattr(err, "all_messages", None) or [str(err)]
+    lines = [f"{name}: {part}{m}" for m in found]
+    return UserError(lines[0], lines=lines)
+
+
 def read_survey_file(path: str) -> Survey:
-    """Read and validate a survey JSON file; refuse with one line naming the file and field."""
+    """Read and validate a survey JSON file (`-`: standard input); refuse naming every field."""
     # imported here, not at the top: every command imports this module, and the survey model
     # (pydantic) is too heavy to load before the screens of `triage demo` are drawn
     from triage.model import SurveyError, parse_survey_text
 
-    p = Path(path)
-    try:
-        text = p.read_text(encoding="utf-8")
-    except FileNotFoundError:
-        raise UserError(f"{path}: no such file") from None
-    except IsADirectoryError:
-        raise UserError(f"{path}: is a folder, not a survey file") from None
-    except UnicodeDecodeError:
-        raise UserError(f"{path}: not UTF-8 text (a survey file is JSON)") from None
-    except OSError as err:
-        raise UserError(f"{path}: cannot be read ({err.strerror})") from None
+    text = read_text(path)
     try:
         return parse_survey_text(text)
     except SurveyError as err:
-        raise UserError(f"{path}: {err}") from None
+        raise survey_refused(path, err) from None
 
 
-def read_report_survey(path: str) -> Survey:
-    """The survey embedded in a triage report PDF; refuse with one line naming the file."""
+def _embedded_survey(where: str, files: dict[str, bytes]) -> Survey:
+    """The survey among a report PDF's embedded files; refusals name `where`."""
     from triage.model import SurveyError, parse_survey_text
+    from triage.report.pdfparts import ASSESSMENT_FILE, SURVEY_FILE
+
+    if SURVEY_FILE not in files or ASSESSMENT_FILE not in files:
+        raise UserError(f"{where}: carries no embedded triage survey (not a triage report)")
+    try:
+        text = files[SURVEY_FILE].decode("utf-8")
+    except UnicodeDecodeError:
+        raise UserError(f"{where}: the embedded survey is not UTF-8 text") from None
+    try:
+        return parse_survey_text(text)
+    except SurveyError as err:
+        raise survey_refused(where, err, "embedded survey: ") from None
+
+
+def read_report_survey(path: str, data: bytes | None = None) -> Survey:
+    """The survey embedded in a triage report PDF (its bytes, when given); one-line refusals."""
+    from triage.report import read_embedded_files
 
     try:
-        from triage.report import read_embedded
-    except (ImportError, AttributeError):
-        raise UserError(f"{path}: this build cannot read surveys from report PDFs; import the "
-                        "survey's JSON file") from None
-    try:
-        got: Any = read_embedded(Path(path))
+        files = read_embedded_files(data if data is not None else Path(path))
     except (ValueError, OSError) as err:
         msg = str(err) or type(err).__name__
-        raise UserError(msg if msg.startswith(path) else f"{path}: {msg}") from None
-    text = got[0] if isinstance(got, tuple) else got
-    if not text:
-        raise UserError(f"{path}: carries no embedded triage survey (not a triage report)")
-    try:
-        return parse_survey_text(text if isinstance(text, str) else text.decode("utf-8"))
-    except (SurveyError, UnicodeDecodeError) as err:
-        raise UserError(f"{path}: embedded survey: {err}") from None
+        for name in ("the PDF", path):
+            if msg.startswith(name + ": "):
+                msg = msg[len(name) + 2:]
+        raise UserError(f"{path}: {msg}") from None
+    return _embedded_survey(path, files)
 
 
 def read_survey(path: str) -> Survey:
-    """A survey from a JSON file, or from a report PDF carrying one (by the `.pdf` suffix)."""
+    """A survey from a JSON file, or from a report PDF carrying one (by the `.pdf` suffix).
+
+    `-` reads standard input: a report PDF there is told by its first bytes (`%PDF-`).
+    """
+    if is_std(path):
+        from triage.model import SurveyError, parse_survey_text
+
+        data = read_stdin_bytes()
+        if data.lstrip()[:5] == b"%PDF-":
+            return read_report_survey(path, data)
+        try:
+            text = data.decode("utf-8")
+        except UnicodeDecodeError:
+            raise UserError("-: not UTF-8 text (a survey file is JSON)") from None
+        try:
+            return parse_survey_text(text)
+        except SurveyError as err:
+            raise survey_refused(path, err) from None
     if path.lower().endswith(".pdf"):
         return read_report_survey(path)
     return read_survey_file(path)

@@ -12,8 +12,9 @@ import sys
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from .common import open_reader, read_survey, resolve_id
+from .common import add_command, open_reader, read_survey, resolve_id
 from .errors import UserError
+from .streams import is_std
 
 if TYPE_CHECKING:
     from triage.assess import Assessment
@@ -24,11 +25,18 @@ if TYPE_CHECKING:
 
 def add_parser(sub: argparse._SubParsersAction) -> None:
     """Register `compare`."""
-    p = sub.add_parser("compare", help="what changed between two surveys of one building")
-    p.add_argument("old", metavar="OLD", help="the earlier survey: a file or an id in the database")
-    p.add_argument("new", metavar="NEW", help="the later survey: a file or an id in the database")
+    p = add_command(sub, "compare", "what changed between two surveys of one building",
+                    description=(
+                        "What changed between two surveys of one building: each spot's drift "
+                        "change against the two measurements' combined uncertainty, members, "
+                        "hazards, and the tier and level before and after."))
+    p.add_argument("old", metavar="OLD", help="the earlier survey: a file (JSON or report PDF), "
+                   "an id in the database, or - for standard input")
+    p.add_argument("new", metavar="NEW", help="the later survey: a file (JSON or report PDF), "
+                   "an id in the database, or - for standard input (only one of the two)")
     p.add_argument("--format", choices=("text", "json"), default=None,
-                   help="what to print (text unless given); not with -o")
+                   help="text for people (the default) or json: the triage-comparison/2 "
+                   "object (docs/formats.md); not with -o")
     p.add_argument("-o", "--output", metavar="FILE.pdf",
                    help="write the comparison as a PDF (an unsigned working document)")
     p.add_argument("--force", action="store_true",
@@ -43,7 +51,7 @@ def load_either(given: str, args: argparse.Namespace) -> tuple[Survey, Assessmen
     """
     from triage.assess import assess
 
-    if Path(given).exists():
+    if is_std(given) or Path(given).exists():
         survey = read_survey(given)
         return survey, assess(survey)
     st: SurveyReader = open_reader(args)
@@ -65,6 +73,8 @@ def run(args: argparse.Namespace) -> int:
 
     if args.output is not None:
         _check_output(args)
+    if is_std(args.old) and is_std(args.new):
+        raise UserError("OLD and NEW: - (standard input) given for both; it holds one survey")
     old, old_a = load_either(args.old, args)
     new, new_a = load_either(args.new, args)
     if old.building_id != new.building_id and not args.force:

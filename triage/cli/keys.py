@@ -14,31 +14,48 @@ from typing import Any
 
 from triage.errors import TriageError
 
+from .common import add_command
 from .errors import UserError
+from .streams import input_path, refuse_std, status, write_json
 
 PASSPHRASE_ENV = "TRIAGE_KEY_PASSPHRASE"
 
 
 def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg,unused-ignore]
     """Register `key` and its subcommands `new`, `trust` and `list`."""
-    p = sub.add_parser("key", help="inspectors' signing keys and the keys this laptop trusts")
+    p = add_command(sub, "key", "inspectors' signing keys and the keys this laptop trusts",
+                    description=("Make a signing key, trust another inspector's public key, "
+                                 "or list the keys trusted here (kept in the data folder, "
+                                 "or $TRIAGE_HOME)."))
     ks = p.add_subparsers(dest="key_command", metavar="new|trust|list", required=True,
-                          parser_class=type(p))
-    n = ks.add_parser("new", help="make an ECDSA P-256 signing key with its certificate "
-                      "(and trust it here)")
+                          parser_class=type(p), title="actions")
+    n = add_command(ks, "new", "make an ECDSA P-256 signing key with its certificate (and "
+                    "trust it here)", description=(
+                        "Make an ECDSA P-256 signing key with a self-signed certificate, write "
+                        "it (never over an existing file) with its public key beside it, and "
+                        "trust it on this laptop. The passphrase comes from "
+                        f"{PASSPHRASE_ENV}, else a prompt."))
     n.add_argument("--name", required=True, help="the signer's name, as printed on reports")
     n.add_argument("--id", required=True, dest="signer_id",
                    help="the signer's registration or staff id")
     n.add_argument("-o", "--output", required=True, metavar="KEYFILE",
-                   help="the private key file to write (mode 600); the public key goes "
-                   "beside it as .pub")
+                   help="the private key file to write (mode 600; never over an existing "
+                   "file); the public key goes beside it as KEYFILE.pub")
     n.add_argument("--no-passphrase", action="store_true",
                    help=f"leave the key unencrypted (else {PASSPHRASE_ENV} or a prompt)")
     n.set_defaults(func=run_key_new)
-    t = ks.add_parser("trust", help="trust another inspector's public key on this laptop")
-    t.add_argument("pubfile", metavar="PUBFILE")
+    t = add_command(ks, "trust", "trust another inspector's public key on this laptop",
+                    description=("Add a public key file (.pub, as 'triage key new' writes it) "
+                                 "to the keys this laptop trusts; trusting it again is "
+                                 "harmless."))
+    t.add_argument("pubfile", metavar="PUBFILE", help="the .pub file to trust; - reads it from "
+                   "standard input")
     t.set_defaults(func=run_key_trust)
-    ls = ks.add_parser("list", help="the public keys this laptop trusts")
+    ls = add_command(ks, "list", "the public keys this laptop trusts", description=(
+        "The keys this laptop trusts, one a line: fingerprint, name and id."))
+    ls.add_argument("--format", choices=("text", "json"), default="text",
+                    help="text: one key a line (the default); json: one triage-keys/1 object "
+                    "(docs/formats.md)")
     ls.set_defaults(func=run_key_list)
 
 
@@ -62,15 +79,15 @@ def run_key_new(args: argparse.Namespace) -> int:
     """Make a key, write it and its public key, trust it, print the fingerprint."""
     from triage.report.keys import new_key
 
+    refuse_std(args.output, "-o", "a private key is written to a file, with its public key "
+               "beside it; give the file's name")
     passphrase = None if args.no_passphrase else _new_passphrase()
     try:
         key, pub = new_key(args.name, args.signer_id, Path(args.output), passphrase)
     except (ValueError, TriageError) as err:
         raise UserError(str(err)) from None
-    sys.stdout.write(f"key written to {args.output} (mode 600), public key and certificate "
-                     f"to {pub}\n"
-                     f"fingerprint {key.fingerprint} ({key.name}, id {key.id}); "
-                     "trusted on this laptop\n")
+    status(f"key written to {args.output} (mode 600), public key and certificate to {pub}")
+    status(f"fingerprint {key.fingerprint} ({key.name}, id {key.id}); trusted on this laptop")
     return 0
 
 
@@ -79,26 +96,39 @@ def run_key_trust(args: argparse.Namespace) -> int:
     from triage.report.keys import trust_key
 
     try:
-        pub = trust_key(Path(args.pubfile))
+        with input_path(args.pubfile, ".pub") as path:
+            try:
+                pub = trust_key(path)
+            except ValueError as err:
+                raise UserError(str(err).replace(str(path), args.pubfile)) from None
     except ValueError as err:
         raise UserError(str(err)) from None
-    sys.stdout.write(f"trusted {pub.fingerprint} ({pub.name}, id {pub.id})\n")
+    status(f"trusted {pub.fingerprint} ({pub.name}, id {pub.id})")
     return 0
 
 
 def run_key_list(args: argparse.Namespace) -> int:
     """Print the trusted keys, one a line."""
     from triage.report.keys import home, trusted_keys
+    from triage.safetext import visible_line
 
     try:
         keys = trusted_keys()
     except ValueError as err:
         raise UserError(str(err)) from None
+    if args.format == "json":
+        write_json({"format": "triage-keys/1", "folder": str(home()), "keys": [
+            {"fingerprint": k.fingerprint, "name": k.name, "id": k.id,
+             "algorithm": k.algorithm,
+             "signs": "PAdES B-B" if k.certificate is not None else "Ed25519 (first way)"}
+            for k in keys]})
+        return 0
     if not keys:
-        sys.stdout.write(f"no trusted keys yet (kept in {home()})\n")
+        status(f"no trusted keys yet (kept in {home()})")
     for k in keys:
         kind = "" if k.certificate is not None else "  (Ed25519, signs the first way)"
-        sys.stdout.write(f"{k.fingerprint}  {k.name} (id {k.id}){kind}\n")
+        sys.stdout.write(f"{k.fingerprint}  {visible_line(k.name)} (id {visible_line(k.id)})"
+                         f"{kind}\n")
     return 0
 
 

@@ -1,19 +1,33 @@
-"""`triage merge DB... --into DB`: gather several inspectors' databases into one."""
+"""`triage merge DB... --into DB [--format text|json]`: gather inspectors' databases into one."""
 
 from __future__ import annotations
 
 import argparse
 import sys
 from pathlib import Path
+from typing import Any
 
+from .common import add_command
 from .errors import UserError
+from .streams import refuse_std, status, write_json
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:
+def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg,unused-ignore]
     """Register `merge`."""
-    p = sub.add_parser("merge", help="gather several inspectors' databases into one")
-    p.add_argument("sources", nargs="+", metavar="DB", help="databases to read (never changed)")
-    p.add_argument("--into", required=True, metavar="DB", help="the database to gather into")
+    p = add_command(sub, "merge", "gather several inspectors' databases into one", description=(
+        "Gather each source database into the target, one transaction a source: surveys "
+        "new here are added, ones the source edited further are brought up to date, and a "
+        "survey edited differently on both sides is kept twice and flagged as a conflict. "
+        "The sources are never changed. A source that cannot be read is named and skipped "
+        "(exit status 1), the others merged."))
+    p.add_argument("sources", nargs="+", metavar="DB", help="databases to read (never "
+                   "changed); a database is a file, so - (standard input) is refused")
+    p.add_argument("--into", required=True, metavar="DB", help="the database to gather into "
+                   "(made if it does not exist)")
+    p.add_argument("--format", choices=("text", "json"), default="text",
+                   help="text: a status line on standard error as each source commits (the "
+                   "default); json: one triage-merge/1 object on standard output at the end "
+                   "(docs/formats.md)")
     p.set_defaults(func=run)
 
 
@@ -22,25 +36,31 @@ def run(args: argparse.Namespace) -> int:
     from triage.store import Store, StoreError
     from triage.store.merge import MergeResult, merge_into
 
+    for name in args.sources:
+        refuse_std(name, "DB", "a database is read from a file; give its path")
+    refuse_std(args.into, "--into", "a database is written to a file; give its path")
+    as_json = args.format == "json"
     try:
         st = Store.open(args.into, create=True)
     except StoreError as err:
         raise UserError(str(err)) from None
-    failed = 0
+    results: list[dict[str, Any]] = []
 
     def said(r: MergeResult) -> None:
-        # printed as each source commits: a merge stopped half-way has said what it did
-        nonlocal failed
+        # said as each source commits: a merge stopped half-way has said what it did
+        results.append({"source": r.source, "status": "skipped" if r.skipped else "merged",
+                        "added": r.added, "updated": r.updated, "unchanged": r.unchanged,
+                        "conflicts": r.conflicts, "skipped": r.skipped})
         if r.skipped:
-            failed += 1
             sys.stderr.write(f"triage merge: {r.source}: {r.skipped}; skipped\n")
             sys.stderr.flush()
             return
+        if as_json:
+            return
         kept = (f", {r.conflicts} edited differently here and there (both versions kept, "
                 "flagged as conflict)") if r.conflicts else ""
-        sys.stdout.write(f"merged {r.source}: {r.added} added, {r.updated} brought up to "
-                         f"date, {r.unchanged} unchanged{kept}\n")
-        sys.stdout.flush()
+        status(f"merged {r.source}: {r.added} added, {r.updated} brought up to date, "
+               f"{r.unchanged} unchanged{kept}")
 
     try:
         try:
@@ -49,4 +69,10 @@ def run(args: argparse.Namespace) -> int:
             raise UserError(str(err)) from None
     finally:
         st.close()
+    failed = sum(1 for r in results if r["status"] == "skipped")
+    if as_json:
+        totals = {k: sum(int(r[k]) for r in results)
+                  for k in ("added", "updated", "unchanged", "conflicts")}
+        write_json({"format": "triage-merge/1", "into": str(st.path), "sources": results,
+                    "merged": len(results) - failed, "skipped": failed, **totals})
     return 1 if failed else 0

@@ -8,13 +8,16 @@ from __future__ import annotations
 
 import argparse
 import re
-import sys
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from .common import db_writable, open_reader, read_survey_file, resolve_id
+from .common import add_command, db_writable, open_reader, read_survey_file, resolve_id
 from .errors import UserError
-from .keys import load_signing_key
+from .keys import PASSPHRASE_ENV, load_signing_key
+from .streams import binary_stdout, is_std, output_path, shown, status
+
+# The path a report written to standard output is recorded with in the database.
+STDOUT_RECORD = "(standard output)"
 
 
 def is_url(text: object) -> bool:
@@ -32,12 +35,19 @@ if TYPE_CHECKING:
 
 def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg,unused-ignore]
     """Register `report`."""
-    r = sub.add_parser("report", help="the report PDF, signed when a key is given")
-    r.add_argument("source", metavar="FILE|ID", help="a survey file, or a survey id in the "
-                   "database")
-    r.add_argument("-o", "--output", required=True, metavar="OUT.pdf",
-                   help="the PDF to write (replaced if it exists)")
-    r.add_argument("--key", metavar="KEYFILE", help="sign with this key")
+    r = add_command(sub, "report", "the report PDF, signed when a key is given", description=(
+        "Write the report PDF of a survey file or of a survey in the database: the indicative "
+        "tier with its caution, every storey, reading and member group, the photos, and the "
+        "survey and assessment embedded as JSON. Signed (a standard PDF signature) when "
+        "--key is given; a report of a stored survey is recorded in the database."))
+    r.add_argument("source", metavar="FILE|ID|-", help="a survey file, a survey id (or an "
+                   "unambiguous start of it) in the database, or - for a survey JSON on "
+                   "standard input (its photos are not read: standard input has no folder)")
+    r.add_argument("-o", "--output", required=True, metavar="OUT.pdf|-",
+                   help="the PDF to write (replaced atomically if it exists); - writes it to "
+                   "standard output (not to a terminal)")
+    r.add_argument("--key", metavar="KEYFILE", help="sign with this private key file (its "
+                   f"passphrase from {PASSPHRASE_ENV}, else a prompt)")
     r.set_defaults(func=run)
 
 
@@ -51,26 +61,32 @@ def run(args: argparse.Namespace) -> int:
     from triage.assess import assess
     from triage.report import write_report
 
+    to_stdout = is_std(args.output)
     out = Path(args.output)
-    if out.is_dir():
-        raise UserError(f"{args.output}: is a folder; give the PDF file to write")
-    if not out.parent.exists():
-        raise UserError(f"{args.output}: its folder does not exist")
+    if not to_stdout:
+        if out.is_dir():
+            raise UserError(f"{args.output}: is a folder; give the PDF file to write")
+        if not out.parent.exists():
+            raise UserError(f"{args.output}: its folder does not exist")
     src = Path(args.source)
-    if src.exists() and out.exists() and src.resolve() == out.resolve():
+    from_stdin = is_std(args.source)
+    if not (from_stdin or to_stdout) and src.exists() and out.exists() \
+            and src.resolve() == out.resolve():
         raise UserError(f"{args.output}: is the survey file itself; choose another name")
+    if to_stdout:
+        binary_stdout("a PDF")   # refused on a terminal before any work
     key = load_signing_key(args.key) if args.key else None
 
     from triage.photos import blob_loader, folder_loader
 
     store: SurveyReader | None = None
     revision = None
-    if not src.exists() and not _is_id(args.source):
+    if not from_stdin and not src.exists() and not _is_id(args.source):
         raise UserError(f"{args.source}: no such file (nor a survey id or the start of one)")
-    if src.exists():
+    if from_stdin or src.exists():
         survey = read_survey_file(args.source)
-        # photos only from inside the survey file's own folder, checked
-        photos = folder_loader(src.resolve().parent)
+        # photos only from inside the survey file's own folder, checked; none from stdin
+        photos = folder_loader(None if from_stdin else src.resolve().parent)
     else:
         store, survey, revision = _from_store(args)
         sid = str(survey.survey_id)
@@ -81,8 +97,9 @@ def run(args: argparse.Namespace) -> int:
         assessment = assess(survey)
         comparison = _since_previous(survey, assessment, store, args)
         try:
-            info = write_report(survey, assessment, out, key=key, revision=revision,
-                                photos=photos, comparison=comparison)
+            with output_path(args.output, "a PDF", ".pdf") as dest:
+                info = write_report(survey, assessment, dest, key=key, revision=revision,
+                                    photos=photos, comparison=comparison)
         except ValueError as err:
             raise UserError(str(err)) from None
         from triage.store.reader import ReportLog
@@ -91,15 +108,16 @@ def run(args: argparse.Namespace) -> int:
             if getattr(store, "read_only", False):
                 recorded = " (the database is read-only: this report is not recorded in it)"
             else:
-                store.record_report(str(survey.survey_id), revision, str(out.resolve()),
+                store.record_report(str(survey.survey_id), revision,
+                                    STDOUT_RECORD if to_stdout else str(out.resolve()),
                                     info.fingerprint)
     finally:
         if store is not None:
             store.close()
     signed = f"signed with key {info.fingerprint}" if info.signed else "UNSIGNED"
     rev = f", store revision {revision}" if revision is not None else ""
-    sys.stdout.write(f"report written to {out} ({info.pages} pages, {signed}{rev}); "
-                     f"tier {assessment.tier}, indicative only{recorded}\n")
+    status(f"report written to {shown(args.output)} ({info.pages} pages, {signed}{rev}); "
+           f"tier {assessment.tier}, indicative only{recorded}")
     return 0
 
 

@@ -8,13 +8,18 @@ import sys
 import tempfile
 from pathlib import Path
 
+from .common import add_command
 from .errors import UserError
 
 
 def add_parser(sub: argparse._SubParsersAction) -> None:
     """Register the commands of this module."""
-    p = sub.add_parser("demo", help="open the screens on a scratch database loaded with the "
-                       "demo surveys (an invented town and event)")
+    p = add_command(sub, "demo", "open the screens on a scratch database loaded with the "
+                    "demo surveys (an invented town and event)", description=(
+                        "Open the screens on a scratch database loaded with the demo surveys "
+                        "of an invented town and event; the scratch database is removed on "
+                        "leaving. 'triage' with no command opens the screens on your own "
+                        "database."))
     p.set_defaults(func=run)
 
 

@@ -9,7 +9,7 @@ import json
 import sys
 from typing import TYPE_CHECKING, Any
 
-from .common import open_reader
+from .common import add_command, open_reader
 
 if TYPE_CHECKING:
     from triage.store.area import AreaLines, AreaTally, BuildingRow
@@ -18,8 +18,17 @@ if TYPE_CHECKING:
 
 def add_parser(sub: argparse._SubParsersAction) -> None:
     """Register `summary`."""
-    p = sub.add_parser("summary", help="one row per building: latest tier, level, where")
-    p.add_argument("--format", choices=("text", "csv", "geojson"), default="text")
+    p = add_command(sub, "summary", "one row per building: latest tier, level, where",
+                    description=(
+                        "The area picture: one row per building, from its latest survey (by "
+                        "time of inspection): the indicative tier and level, the governing "
+                        "storey, whether provisional or in conflict; counts per tier at the "
+                        "end."))
+    p.add_argument("--format", choices=("text", "json", "csv", "geojson"), default="text",
+                   help="text: a table for people (the default); json: one triage-summary/1 "
+                   "object (docs/formats.md); csv: one row per building, safe to open in a "
+                   "spreadsheet; geojson: an RFC 7946 FeatureCollection of the located "
+                   "buildings")
     p.set_defaults(func=run)
 
 
@@ -27,10 +36,6 @@ def _words(tier: str | None) -> str:
     from triage.assess import tier_words
 
     return tier_words(tier) if tier else "not assessed"
-
-
-def _cut(text: str, n: int) -> str:
-    return text if len(text) <= n else text[: n - 1] + "…"
 
 
 def _head() -> list[str]:
@@ -56,9 +61,14 @@ def summary_text(rows: list[BuildingRow]) -> str:
     from triage.assess import TIERS
     from triage.store.area import TEXT_COLUMNS, TEXT_GAP, AreaTally
 
+    from .table import NOT_PLAIN, fit
+
     lines = _head()
     # One pass, the per-row work inlined (an area has 100,000 buildings): tier words and flag
-    # words looked up, the cuts done in place; the same text as _cut, _words and yes_no give.
+    # words looked up; the three columns of people's text (building, address, inspector) cut
+    # and padded by display width (`table.fit`: a wide character takes two cells, a combining
+    # mark none, a control character is shown escaped); text of one-cell characters that fits
+    # (`table.NOT_PLAIN` finds none) is padded by the format, as the centre's cells are.
     words: dict[str | None, str] = {t: _words(t) for t in TIERS}
     words[None] = _words(None)
     flags = {None: "—", True: "yes", False: "no"}
@@ -67,15 +77,18 @@ def summary_text(rows: list[BuildingRow]) -> str:
     conflicts = 0
     append = lines.append
     # %-formatting pads by characters as the header's f-string does, and is quicker.
-    row = TEXT_GAP.join(f"%-{w}s" if w else "%s" for _, w, _ in TEXT_COLUMNS)
+    quick = TEXT_GAP.join(f"%-{w}s" if w else "%s" for _, w, _ in TEXT_COLUMNS)
+    fitted = TEXT_GAP.join("%s" if people or not w else f"%-{w}s"
+                           for _, w, people in TEXT_COLUMNS)
+    wb, wa, wp = (w for _, w, people in TEXT_COLUMNS if people)
+    not_plain = NOT_PLAIN.search
     for r in rows:
         b, a, p, t = r.building, r.address, r.inspector, r.tier
-        if len(b) > 24:
-            b = b[:23] + "…"
-        if len(a) > 28:
-            a = a[:27] + "…"
-        if len(p) > 16:
-            p = p[:15] + "…"
+        if len(b) <= wb and len(a) <= wa and len(p) <= wp and not_plain(b + a + p) is None:
+            row = quick     # one cell a character, and it fits: padded by the format
+        else:
+            row = fitted
+            b, a, p = fit(b, wb), fit(a, wa), fit(p, wp)
         w = words.get(t)
         if w is None:
             w = words[t] = _words(t)
@@ -157,6 +170,22 @@ def _geojson_of(st: AreaLines) -> tuple[str, list[tuple[str, str]]]:
     return head[:-2] + ", ".join(features) + "]}", missing
 
 
+def summary_json(rows: list[BuildingRow]) -> dict[str, Any]:
+    """The `triage-summary/1` object: every building and the counts the text ends with."""
+    from triage.assess import CAUTION, TIERS
+
+    buildings = []
+    for r in rows:
+        p = _props(r)
+        p.pop("caution")
+        p["lat"], p["lon"] = r.lat, r.lon
+        buildings.append(p)
+    return {"format": "triage-summary/1", "caution": CAUTION, "buildings": buildings,
+            "count": len(rows), "tiers": {t: sum(1 for r in rows if r.tier == t) for t in TIERS},
+            "not_assessed": sum(1 for r in rows if r.tier is None),
+            "conflicts": sum(1 for r in rows if r.conflict)}
+
+
 def run(args: argparse.Namespace) -> int:
     """One row per building id, its latest survey, from the stored assessments."""
     from triage.store.area import AreaLines
@@ -176,6 +205,8 @@ def run(args: argparse.Namespace) -> int:
         st.close()
     if args.format == "csv":
         sys.stdout.write(summary_csv(rows))
+    elif args.format == "json":
+        sys.stdout.write(json.dumps(summary_json(rows), ensure_ascii=False, indent=1) + "\n")
     elif args.format == "geojson":
         sys.stdout.write(json.dumps(summary_geojson(rows), ensure_ascii=False) + "\n")
         _say_missing([(r.building, r.building_id) for r in rows if not r.located])

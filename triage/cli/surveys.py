@@ -10,33 +10,61 @@ from typing import TYPE_CHECKING, Any
 
 from triage.errors import TriageError
 
-from .common import open_reader, open_store, read_survey, resolve_id, yes_no
-from .errors import UserError
+from .common import add_command, open_reader, open_store, read_survey, resolve_id, yes_no
+from .errors import UserError, refusal_lines
+from .streams import input_path, is_std, output_path, shown, status, write_json, write_text
 
 if TYPE_CHECKING:
-    from triage.model import Survey
     from triage.store.reader import SurveyReader
+    from triage.store.rows import SurveyRow
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:
+def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg,unused-ignore]
     """Register `import`, `export`, `list` and `backup`."""
-    p = sub.add_parser("import", help="survey files (JSON, or a report PDF carrying its survey) "
-                       "into the database")
-    p.add_argument("files", nargs="+", metavar="FILE", help="triage-survey JSON or report PDF "
-                   "(- reads JSON from standard input)")
+    p = add_command(sub, "import", "survey files (JSON, or a report PDF carrying its survey) "
+                    "into the database", description=(
+                        "Validate each survey file and store it in the database, each in its "
+                        "own transaction, with the photos it names (read from inside its "
+                        "file's folder). A report PDF is verified first and its embedded "
+                        "survey imported. A refused file is named on standard error with "
+                        "every rule it breaks, one a line; the others are still imported "
+                        "(exit status 1 when any was refused)."))
+    p.add_argument("files", nargs="+", metavar="FILE", help="triage-survey JSON or report PDF; "
+                   "- reads one from standard input (photo paths are refused there: standard "
+                   "input has no folder)")
+    p.add_argument("--format", choices=("text", "json"), default="text",
+                   help="text: one status line per file on standard error (the default); "
+                   "json: one triage-import/1 object on standard output (docs/formats.md)")
     p.set_defaults(func=run_import)
-    p = sub.add_parser("export", help="a survey out of the database as triage-survey/1 JSON")
+    p = add_command(sub, "export", "a survey out of the database as triage-survey JSON",
+                    description=("Write one stored survey as JSON that imports back to the "
+                                 "same survey, or a folder with survey.json and its photos."))
     p.add_argument("id", metavar="ID", help="the survey id (or an unambiguous start of it)")
-    p.add_argument("-o", "--output", required=True, metavar="FILE|DIR/",
-                   help="the JSON file to write; or a folder (ending in /): survey.json and "
-                   "its photos in img/")
+    p.add_argument("-o", "--output", required=True, metavar="FILE|DIR/|-",
+                   help="the JSON file to write (replaced atomically if it exists); a folder "
+                   "(ending in /): survey.json and its photos in img/; - writes the survey "
+                   "JSON alone to standard output")
     p.set_defaults(func=run_export)
-    p = sub.add_parser("list", help="the surveys in the database")
-    p.add_argument("--format", choices=("text", "json"), default="text")
+    p = add_command(sub, "list", "the surveys in the database", description=(
+        "One row per survey: id, building, time of inspection, indicative tier, whether it is "
+        "provisional, edited since its last report, or in conflict with another copy."))
+    p.add_argument("--format", choices=("text", "json"), default="text",
+                   help="text: a table for people (the default); json: an array with one "
+                   "object per survey")
     p.add_argument("--hidden", action="store_true", help="include hidden surveys")
     p.set_defaults(func=run_list)
-    p = sub.add_parser("backup", help="a consistent copy of the database, safe while it is in use")
-    p.add_argument("-o", "--output", required=True, metavar="FILE", help="the copy to write")
+    p = add_command(sub, "backup", "a consistent copy of the database, safe while it is in use",
+                    description=("Copy the database to one self-contained file (its WAL "
+                                 "content included), checked before it is kept; the "
+                                 "database is only read. A file that exists is never "
+                                 "replaced."))
+    p.add_argument("-o", "--output", required=True, metavar="FILE|-",
+                   help="the new file to write (must not exist); - writes the copy to "
+                   "standard output (not to a terminal)")
+    p.add_argument("--format", choices=("text", "json"), default="text",
+                   help="text: a status line on standard error (the default); json: one "
+                   "triage-backup/1 object on standard output (docs/formats.md; not with "
+                   "-o -)")
     p.set_defaults(func=run_backup)
 
 
@@ -49,51 +77,66 @@ def run_import(args: argparse.Namespace) -> int:
     input, which has no folder: a survey from there naming photos is refused.
     """
     from triage.photos import gather
-    from triage.store import StoreError
 
+    if sum(1 for f in args.files if is_std(f)) > 1:
+        raise UserError("FILE: - (standard input) given more than once; it can be read once")
+    as_json = args.format == "json"
     st = open_store(args)
-    failed = 0
+    done: list[dict[str, Any]] = []
     try:
         for path in args.files:
+            entry: dict[str, Any] = {"file": path}
+            real: Path | None = None
+            done.append(entry)
             try:
-                warning = None
-                if path == "-":
-                    survey = _read_stdin()
-                    folder = None
-                    source = None
-                else:
-                    warning = _check_report(path)
-                    survey = read_survey(path)
-                    folder = Path(path).resolve().parent
-                    source = str(Path(path).resolve())
+                with input_path(path, sniff=True) as real:
+                    warning = _check_report(str(real))
+                    survey = read_survey(str(real))
+                folder = None if is_std(path) else real.resolve().parent
+                source = None if is_std(path) else str(real.resolve())
                 got = gather(survey, folder, have=st.has_photo)
-                status = st.add_survey(got.survey, source=source, photos=got.photos)
-            except StoreError as err:
-                sys.stderr.write(f"triage import: {path}: {err}\n")
-                failed += 1
-                continue
+                added = st.add_survey(got.survey, source=source, photos=got.photos)
             except TriageError as err:
-                msg = str(err)
-                said = msg if msg.startswith(path) else f"{path}: {msg}"
-                sys.stderr.write(f"triage import: {said}\n")
-                failed += 1
+                lines = [_named(m, path, real) for m in refusal_lines(err)]
+                entry.update(status="refused", errors=lines)
+                for line in lines:
+                    sys.stderr.write(f"triage import: {line}\n")
                 continue
+            if warning:
+                warning = _named(warning, path, real)
             name = got.survey.building.name
-            for missing in got.warnings:
-                sys.stderr.write(f"triage import: warning: {path}: {missing}\n")
+            warnings = [_named(m, path, real) for m in got.warnings] + (
+                [warning] if warning else [])
+            entry.update(status="imported" if added == "added" else "unchanged",
+                         survey=str(survey.survey_id), building=name,
+                         photos_stored=len(got.photos), warnings=warnings)
             kept = f", {len(got.photos)} photo{'s' if len(got.photos) != 1 else ''} stored" \
                 if got.photos else ""
-            if status == "added":
-                sys.stdout.write(f"imported {survey.survey_id}  {name}  ({path}{kept})\n")
+            if as_json:
+                pass
+            elif added == "added":
+                status(f"imported {survey.survey_id}  {name}  ({path}{kept})")
             else:
-                sys.stdout.write(f"unchanged {survey.survey_id}  {name}  ({path}: the identical "
-                                 "survey is stored already)\n")
-            sys.stdout.flush()
-            if warning:
-                sys.stderr.write(f"triage import: warning: {warning}\n")
+                status(f"unchanged {survey.survey_id}  {name}  ({path}: the identical survey "
+                       "is stored already)")
+            for line in warnings:
+                sys.stderr.write(f"triage import: warning: {line}\n")
     finally:
         st.close()
-    return 1 if failed else 0
+    refused = sum(1 for e in done if e["status"] == "refused")
+    if as_json:
+        counts = {k: sum(1 for e in done if e["status"] == k)
+                  for k in ("imported", "unchanged", "refused")}
+        write_json({"format": "triage-import/1", "database": str(st.path), **counts,
+                    "files": done})
+    return 1 if refused else 0
+
+
+def _named(message: str, path: str, real: Path | None) -> str:
+    """A message about the file `path` (read from `real`, a copy of standard input for `-`)."""
+    if real is not None and str(real) != path:
+        message = message.replace(str(real), path)
+    return message if message.startswith(path + ":") else f"{path}: {message}"
 
 
 def _check_report(path: str) -> str | None:
@@ -111,29 +154,14 @@ def _check_report(path: str) -> str | None:
     return verdict.warning
 
 
-def _read_stdin() -> Survey:
-    """A survey JSON read from standard input."""
-    from triage.model import SurveyError, parse_survey_text
-
-    try:
-        text = sys.stdin.read()
-    except UnicodeDecodeError:
-        raise UserError("-: not UTF-8 text (a survey file is JSON)") from None
-    try:
-        return parse_survey_text(text)
-    except SurveyError as err:
-        raise UserError(f"-: {err}") from None
-
-
 def run_export(args: argparse.Namespace) -> int:
     """Write one survey as JSON that imports back to the same survey (`-o FILE.json`).
 
     `-o DIR/` (a folder, or a path ending in `/`) writes `DIR/survey.json` with the photos
     the store holds beside it in `DIR/img/`.
     """
-    from triage.output import write_output
-
-    folder = args.output.endswith(("/", "\\")) or Path(args.output).is_dir()
+    folder = not is_std(args.output) and (args.output.endswith(("/", "\\"))
+                                          or Path(args.output).is_dir())
     st: SurveyReader = open_reader(args, refresh=False)
     try:
         sid = resolve_id(st, args.id)
@@ -142,9 +170,8 @@ def run_export(args: argparse.Namespace) -> int:
             return _export_folder(st, sid, data, Path(args.output))
     finally:
         st.close()
-    out = Path(args.output)
-    write_output(out, json.dumps(data, indent=2, ensure_ascii=False) + "\n")
-    sys.stdout.write(f"exported {sid} to {out}\n")
+    write_text(args.output, json.dumps(data, indent=2, ensure_ascii=False) + "\n")
+    status(f"exported {sid} to {shown(args.output)}")
     return 0
 
 
@@ -185,8 +212,8 @@ def _export_folder(st: SurveyReader, sid: str, data: dict[str, Any], folder: Pat
             written[sha] = name
         ph["path"] = written[sha]
     write_output(folder / "survey.json", json.dumps(data, indent=2, ensure_ascii=False) + "\n")
-    sys.stdout.write(f"exported {sid} to {folder / 'survey.json'} with {len(written)} "
-                     f"photo{'s' if len(written) != 1 else ''} in {folder / 'img'}\n")
+    status(f"exported {sid} to {folder / 'survey.json'} with {len(written)} "
+           f"photo{'s' if len(written) != 1 else ''} in {folder / 'img'}")
     if missing:
         sys.stderr.write(f"triage export: {len(missing)} photo"
                          f"{'s' if len(missing) != 1 else ''} not in the database, named in "
@@ -194,10 +221,13 @@ def _export_folder(st: SurveyReader, sid: str, data: dict[str, Any], folder: Pat
     return 0
 
 
+# Columns of `triage list`, in terminal cells: id, building, inspected, tier, provisional,
+# since report (the conflict column last, as wide as it is).
+LIST_WIDTHS = (36, 28, 25, 10, 11, 12)
+
+
 def run_list(args: argparse.Namespace) -> int:
     """One row per survey: id, building, time, tier, provisional, edited since report, conflict."""
-    from triage.assess import CAUTION, tier_words
-
     st: SurveyReader = open_reader(args)
     try:
         rows = st.list_surveys(include_hidden=args.hidden)
@@ -213,32 +243,50 @@ def run_list(args: argparse.Namespace) -> int:
                for r in rows]
         sys.stdout.write(json.dumps(out, ensure_ascii=False, indent=1) + "\n")
         return 0
+    sys.stdout.write("\n".join(list_lines(rows)) + "\n")
+    return 0
+
+
+def list_lines(rows: list[SurveyRow]) -> list[str]:
+    """The text table of `triage list`: the caution, a header, one row per survey, a count."""
+    from triage.assess import CAUTION, tier_words
+
+    from .table import row
+
+    widths = LIST_WIDTHS
     lines = [f"CAUTION: {CAUTION}", "",
-             f"{'survey':<36}  {'building':<28}  {'inspected':<25}  {'tier':<10}  "
-             f"{'provisional':<11}  {'since report':<12}  conflict"]
+             row(("survey", "building", "inspected", "tier", "provisional", "since report",
+                  "conflict"), widths)]
     for r in rows:
         since = {None: "no report", True: "edited", False: "unchanged"}[r.edited_since_report]
-        name = r.building if len(r.building) <= 28 else r.building[:27] + "…"
         tier = tier_words(r.tier) if r.tier else "—"
         hidden = "  (hidden)" if r.hidden else ""
-        lines.append(f"{r.id:<36}  {name:<28}  {r.at:<25}  {tier:<10}  "
-                     f"{yes_no(r.provisional):<11}  {since:<12}  "
-                     f"{'CONFLICT' if r.conflict else '—'}{hidden}")
+        lines.append(row((r.id, r.building, r.at, tier, yes_no(r.provisional), since,
+                          f"{'CONFLICT' if r.conflict else '—'}{hidden}"), widths))
     lines.append(f"{len(rows)} survey{'s' if len(rows) != 1 else ''}")
-    sys.stdout.write("\n".join(lines) + "\n")
-    return 0
+    return lines
 
 
 def run_backup(args: argparse.Namespace) -> int:
     """A consistent single-file copy of the database, WAL content included."""
     from triage.store import StoreError
 
+    if is_std(args.output) and args.format == "json":
+        raise UserError("--format json: standard output carries the copy with -o -; give a "
+                        "file to -o")
     st = open_store(args, create=False, refresh=False, read_only=True)
     try:
-        out = st.backup_to(args.output)
+        with output_path(args.output, "a database copy", ".db") as dest:
+            st.backup_to(dest)
+            size = dest.stat().st_size
     except StoreError as err:
-        raise UserError(str(err)) from None
+        raise UserError(str(err).replace(str(dest), "-") if is_std(args.output)
+                        else str(err)) from None
     finally:
         st.close()
-    sys.stdout.write(f"backed up {st.path} to {out}\n")
+    if args.format == "json":
+        write_json({"format": "triage-backup/1", "database": str(st.path),
+                    "backup": args.output, "bytes": size, "checked": True})
+    else:
+        status(f"backed up {st.path} to {shown(args.output)} ({size:,} bytes, checked)")
     return 0

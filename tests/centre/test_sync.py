@@ -241,7 +241,7 @@ def test_kill_9_during_sync_leaves_whole_surveys_and_the_next_run_completes(cent
     assert _heads(centre) == {k: v for k, v in _local(db).items()}
     assert centre.check_maintained() > 0    # about 40 of the 100 surveys are hidden
     proc = _start(db, centre.field, 50)
-    assert proc.wait() == 0 and "nothing to send" in proc.output()[0]
+    assert proc.wait() == 0 and "nothing to send" in proc.output()[1]
 
 
 def test_ten_laptops_syncing_at_once_lose_nothing_and_never_deadlock(centre, tmp_path):
@@ -274,4 +274,4 @@ def test_ten_laptops_syncing_at_once_lose_nothing_and_never_deadlock(centre, tmp
     assert centre.check_maintained() == 59
     for k, db in enumerate(laptops):
         proc = _start(db, centre.url(f"field{k + 1}"), 5)
-        assert proc.wait() == 0 and "nothing to send" in proc.output()[0]
+        assert proc.wait() == 0 and "nothing to send" in proc.output()[1]

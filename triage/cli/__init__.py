@@ -121,7 +121,7 @@ def _run(argv: list[str]) -> int:
         from . import screens
         args.func = screens.run_default
     action = getattr(args, "key_command", None) or getattr(args, "centre_command", None)
-    said = f"{args.command} {action}" if action else args.command   # names it in refusals
+    named = f"{args.command} {action}" if action else args.command   # in refusals
     if args.command in SCREENS:   # the screens write escape sequences of their own
         sys.stdout = getattr(sys.stdout, "wrapped", sys.stdout)
         sys.stderr = getattr(sys.stderr, "wrapped", sys.stderr)
@@ -135,10 +135,10 @@ def _run(argv: list[str]) -> int:
         return int(args.func(args) or 0)
     except TriageError as err:
         for line in refusal_lines(err):
-            sys.stderr.write(f"triage {said}: {_one_line(line)}\n")
+            sys.stderr.write(f"triage {named}: {_one_line(line)}\n")
         return err.code
     except KeyboardInterrupt:
-        sys.stderr.write(f"triage {said}: interrupted\n")
+        sys.stderr.write(f"triage {named}: interrupted\n")
         return 1
     except BrokenPipeError:
         return 0
@@ -146,7 +146,7 @@ def _run(argv: list[str]) -> int:
         where = f"{err.filename}: " if err.filename else ""
         failure = io_failure(err.filename or "a file", err, "read or written")
         why = str(failure).split("(", 1)[-1].rstrip(")")
-        sys.stderr.write(f"triage {said}: {where}input/output failed ({why}); "
+        sys.stderr.write(f"triage {named}: {where}input/output failed ({why}); "
                          "nothing more was done\n")
         return 1
     except Exception as err:  # a bug of ours: one line naming the crash file
@@ -158,7 +158,7 @@ def _run(argv: list[str]) -> int:
 
             traceback.print_exception(err, file=sys.stderr)
         said = f"details in {path}" if path else "no crash file could be written"
-        sys.stderr.write(f"triage {said}: internal error: {type(err).__name__}: "
+        sys.stderr.write(f"triage {named}: internal error: {type(err).__name__}: "
                          f"{_one_line(str(err))[:300]} ({said}; please report it)\n")
         return 1
 

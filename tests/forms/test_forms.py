@@ -179,7 +179,7 @@ def test_the_shipped_forms_pass() -> None:
 
 def test_loader_imports_no_screen_pdf_or_database_library() -> None:
     code = ("import sys, triage.forms; bad = [m for m in ('textual', 'reportlab', "
-            "'sqlite_utils', 'rich') if m in sys.modules]; print(bad); "
+            "'sqlite3', 'rich') if m in sys.modules]; print(bad); "
             "raise SystemExit(1 if bad else 0)")
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           check=False)

@@ -8,10 +8,10 @@ import sys
 import pytest
 
 # The UI (textual, rich), the PDF side (reportlab, pypdf, PIL), the signing (cryptography) and
-# every database driver (sqlite3 is the store's real one, sqlite_utils its wrapper, psycopg the
+# every database driver (sqlite3 the store's, psycopg the
 # centre's): none may be loaded by importing the computing core.
 FORBIDDEN = ("textual", "rich", "reportlab", "pypdf", "PIL", "cryptography",
-             "sqlite3", "_sqlite3", "sqlite_utils", "psycopg")
+             "sqlite3", "_sqlite3", "psycopg")
 
 
 @pytest.mark.parametrize("module", ["triage.model", "triage.model_rules", "triage.standards",

@@ -1,4 +1,4 @@
-"""The field store: every observation kept, nothing lost. The only module that uses sqlite_utils.
+"""The field store: every observation kept, nothing lost. The only module that uses sqlite3.
 
     from triage.store import Store
     with Store.open(path) as st:                      # checked, migrated, stale ones refreshed

@@ -15,7 +15,6 @@ from datetime import UTC, datetime
 from pathlib import Path
 from typing import Any, Self
 
-import sqlite_utils
 
 from .canonical import CanonicalText
 from .connect import immediate
@@ -42,7 +41,6 @@ class StoreCore:
                  clock: Clock | None = None) -> None:
         self.conn = conn
         self.path = path
-        self.db = sqlite_utils.Database(conn)
         self.who = who or default_who()
         self.clock = clock or _now_utc
         self.migration_backup: Path | None = None

@@ -184,9 +184,11 @@ class Store(ChangeHistory):
 
     def reports(self, survey_id: str | uuid.UUID) -> list[dict[str, Any]]:
         """The reports issued for a survey, oldest first."""
-        return list(self.db.query(
+        cur = self.conn.execute(
             "SELECT revision, path, fingerprint, at, who FROM reports WHERE survey_id = ? "
-            "ORDER BY at, revision", [str(survey_id)]))
+            "ORDER BY at, revision", (str(survey_id),))
+        names = [d[0] for d in cur.description]
+        return [dict(zip(names, row, strict=True)) for row in cur]
 
     def settings_get(self, key: str, default: Any = None) -> Any:
         """A remembered setting, or `default`."""

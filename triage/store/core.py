@@ -15,7 +15,6 @@ from datetime import UTC, datetime
 from pathlib import Path
 from typing import Any, Self
 
-
 from .canonical import CanonicalText
 from .connect import immediate
 

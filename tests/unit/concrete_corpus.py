@@ -3,7 +3,10 @@ and the digest of what the engine says of each, for the test that the residual c
 steel frames and walls left concrete as it was (tests/unit/test_capacity_engine.py).
 
 `python -m tests.unit.concrete_corpus OUT.json` writes the digests with the engine it imports;
-the file in tests/unit/data/ was written by engine 0.2.0, before FEMA 352 and FEMA 306 came in.
+the file in tests/unit/data/ was written by engine 0.2.0, before FEMA 352 and FEMA 306 came in,
+and written again when the text values came to name keys in words (every other key of the 300
+assessments was checked identical then: only `reasons`, `notes`, `defaulted`, `settled_by`
+and `measure_next`'s `why` and `member` differed).
 """
 
 from __future__ import annotations

@@ -222,7 +222,7 @@ def test_braced_and_timber_keep_no_capacity_and_say_so() -> None:
     a = assess(make([storey("1", QUIET, [{"kind": "wall", "count": 3}])],
                     sx="wood_stud_wall", sy="steel_braced_frame"))
     assert a.residual_capacity == () and a.residual_capacity_method is None
-    assert any("not computed for steel_braced_frame or wood_stud_wall" in r for r in a.reasons)
+    assert any("not computed for braced steel frame or timber stud walls" in r for r in a.reasons)
 
 
 # --- the survey's keys ---------------------------------------------------------------------

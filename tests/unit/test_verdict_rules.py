@@ -49,7 +49,7 @@ def test_three_brittle_columns_at_class_iii():
     assert (st.damage_grade, st.damage_floor) == ("light", "LS")
     assert (a.tier, a.performance_level) == ("hold", "LS")
     assert "column group C1-C3 (3, brittle) is class III" in a.reasons[0]
-    assert "the JBDPA grade alone is light (R = 89.5%, IO)" in a.reasons[0]
+    assert "the JBDPA grade alone is light (R = 89.5%, so Immediate Occupancy (IO))" in a.reasons[0]
     assert st.members[1].floor == "LS"
     # P(hold): the crack must stay over 1.0 mm, (1.8 - 1.0) / 0.05 = 16 sd: 1 - 1e-57; and
     # under 2.0 mm (class IV would floor at CP), (2.0 - 1.8) / 0.05 = 4 sd: Phi(4) = 0.9999683.

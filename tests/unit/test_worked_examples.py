@@ -49,7 +49,7 @@ def test_braced_steel_governed_by_member_damage_floor():
     assert a.storey("1").members[2].damage_class == "IV"
     assert a.storey("1").members[2].class_from == "signs"
     assert a.storey("1").residual_capacity is None
-    assert any("residual capacity: not computed for steel_braced_frame" in r for r in a.reasons)
+    assert any("residual capacity: not computed for braced steel frame" in r for r in a.reasons)
 
 
 def test_timber_house_governed_by_a_hazard():
@@ -65,7 +65,7 @@ def test_timber_house_governed_by_a_hazard():
     assert (a.tier, a.performance_level) == ("evacuate", "IO")
     assert a.governing.model_dump() == {"storey": None, "dir": None, "basis": "hazard"}
     assert a.hazards[0].keep_out_m == 6.5
-    assert a.reasons[0].startswith("hazard visible_lean")
+    assert a.reasons[0].startswith("hazard: visible lean")
 
 
 def test_masonry_wall_beyond_ls_by_drift():
@@ -192,9 +192,10 @@ def test_defaults_are_listed():
     s = make([storey("1", [reading("x", 1.0, sd_mm=None), tilt("y", 0.01, sd_deg=None)],
                      [{"kind": "column", "count": 1, "crack_mm": 0.3}])])
     d = assess(s).defaulted
-    assert any("sd_mm 1 mm" in x for x in d)
-    assert any("sd_deg 0.05°" in x for x in d)
-    assert any("crack_sd_mm 0.05 mm" in x for x in d)
+    # the fields in the vocabulary's words (sd_mm, sd_deg, crack_sd_mm), the defaults' values
+    assert any("reading 1: uncertainty 1 mm (instrument default" in x for x in d)
+    assert any("reading 2: uncertainty 0.05° (instrument default" in x for x in d)
+    assert any("column group 1: crack uncertainty 0.05 mm (instrument default" in x for x in d)
 
 
 def test_large_drift_kept_and_warned():

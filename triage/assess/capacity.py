@@ -15,6 +15,7 @@ from typing import Any
 
 from triage.model import MemberGroup, Survey
 from triage.standards import Assumptions, Grade, Standards
+from triage.standards.vocabulary import words
 
 from . import steel, walls
 from .levels import Level
@@ -141,6 +142,7 @@ def uncovered(survey: Survey, rc: tuple[str, ...], std: Standards) -> str | None
     left = sorted({getattr(survey.building.system, d) for d in DIRS if d not in covered})
     if not left:
         return None
-    return ("residual capacity: not computed for " + " or ".join(left) + "; the tool's methods "
+    return ("residual capacity: not computed for " + " or ".join(words("systems", k) for k in left)
+            + "; the tool's methods "
             "cover reinforced concrete (JBDPA), steel moment frames (FEMA 352) and concrete "
             "and masonry walls (FEMA 306)")

@@ -22,6 +22,7 @@ from __future__ import annotations
 from triage import __version__
 from triage.model import Survey, gauge_notes, survey_warnings
 from triage.standards import Assumptions, Standards, load
+from triage.standards.vocabulary import words
 
 from . import damage as dmg
 from .capacity import partial_notes
@@ -56,6 +57,7 @@ from .stages.members import (
 from .stages.probability import ProbabilityStage, probability_stage
 from .stats import sig6, sig6_opt
 from .uncertainty import SAMPLES
+from .wording import systems_words
 
 
 def assess(survey: Survey, assumptions: Assumptions | None = None,
@@ -84,7 +86,8 @@ def _provisional(ctx: Context, drift: DriftStage, lv: LevelStage,
     for si, st in enumerate(ctx.survey.storeys):
         if st.access != "full":
             provisional = True
-            notes.append(f"storey {st.label}: access {st.access}; the survey is provisional")
+            notes.append(f"storey {st.label}: {words('access', st.access)}; the survey is "
+                         "provisional")
         elif not st.below_grade and (not st.members or any((si, d) not in drift.dirs
                                                                for d in DIRS)):
             provisional = True
@@ -108,7 +111,7 @@ def _assessment(ctx: Context, drift: DriftStage, members: list[StoreyMembers],
     if non_rc and any(m.crack_mm and m.damage_class is None
                       for st in survey.storeys for m in st.members):
         notes.append("crack widths are classed by the JBDPA bounds for reinforced concrete "
-                     "(0.2, 1 and 2 mm); on members of " + " and ".join(non_rc) +
+                     "(0.2, 1 and 2 mm); on members of " + systems_words(non_rc, "and") +
                      " that is an indication of ours, not a published rule")
     if len(drift.spots) > 1:
         notes.append("tier probabilities: each spot taken as a separate place (independent "

@@ -16,10 +16,16 @@ from .result import (
     probability_text,
     tier_words,
 )
+from .wording import hazard_words, level_words, system_words
 
 
 def _pct(v: float | None) -> str:
     return "—" if v is None else pct(v)
+
+
+def _short(level: str | None) -> str:
+    """A level as the table shows it: IO, LS, CP, 'beyond CP' (the key's hyphen dropped)."""
+    return "—" if level is None else level.replace("-", " ")
 
 
 # The words below are shared by the text output, the screens and the report.
@@ -64,7 +70,8 @@ def governing_words(a: Assessment) -> str:
     g = a.governing
     if g.basis == "no-data":
         return "no data yet"
-    text = g.basis + (f", storey {g.storey}" if g.storey else "") + (f", {g.dir}" if g.dir else "")
+    text = words("basis", g.basis) + (f", storey {g.storey}" if g.storey else "") + (
+        f", {g.dir}" if g.dir else "")
     if a.governing_spot is not None and a.governing_spot.where:
         text += f" ({a.governing_spot.where})"
     return text
@@ -117,14 +124,16 @@ def summary(survey: Survey, a: Assessment) -> str:
         f"CAUTION: {CAUTION}",
         "",
         f"{b.name}, {b.address}" + (f" ({b.use})" if b.use else ""),
-        f"systems: x {b.system.x}, y {b.system.y}; inspected {survey.inspection.at.isoformat()} "
+        f"systems: x {system_words(b.system.x)}, y {system_words(b.system.y)}; inspected "
+        f"{survey.inspection.at.isoformat()} "
         f"by {survey.inspection.inspector.name}",
         f"survey {a.survey}",
         "",
         f"indicative tier: {tier_words(a.tier)}"
         + ("   [provisional: the survey is incomplete]" if a.provisional else "")
         + ("   [borderline]" if a.borderline else ""),
-        f"structural performance level: {a.performance_level or 'not assessed (no data)'}",
+        "structural performance level: " + (level_words(a.performance_level)
+                                            if a.performance_level else "not assessed (no data)"),
         "governed by: " + governing_words(a),
         "",
         "reasons:",
@@ -141,7 +150,7 @@ def summary(survey: Survey, a: Assessment) -> str:
     for s in reversed(a.storeys):
         r = "—" if s.residual_capacity is None else f"{s.residual_capacity:.1%}"
         lines.append(f"{s.label:<8} {_pct(s.drift_ratio.x):>8}  {_pct(s.drift_ratio.y):>8}  "
-                     f"{s.performance_level.x or '—':<8}  {s.performance_level.y or '—':<8}  "
+                     f"{_short(s.performance_level.x):<8}  {_short(s.performance_level.y):<8}  "
                      f"{r:<7}  {s.damage_grade or '—'}")
     if a.residual_capacity:
         lines += ["", "residual capacity (per storey, direction and method; the worse is taken):"]
@@ -150,7 +159,7 @@ def summary(survey: Survey, a: Assessment) -> str:
         lines += ["", "hazards:"]
         for h in a.hazards:
             keep = f"; keep {h.keep_out_m:g} m clear" if h.keep_out_m is not None else ""
-            lines.append(f"  - {h.kind}" + (f" at {h.where}" if h.where else "")
+            lines.append(f"  - {hazard_words(h.kind)}" + (f" at {h.where}" if h.where else "")
                          + f": at least {h.tier}{keep}")
     lines += ["", "repairability (named alternatives, largest storey drift):"]
     for rp in a.repairability:

@@ -14,6 +14,7 @@ from pydantic import ValidationError
 from triage import model_rules as rules
 from triage import standards
 from triage.model_rules import RuleBroken
+from triage.standards.vocabulary import field_words
 
 from .errors import SurveyError, error_lines
 from .fields import FORMATS
@@ -84,8 +85,9 @@ def survey_warnings(survey: Survey) -> list[str]:
         for ri, r in enumerate(st.readings):
             d = abs(r.drift_ratio())
             if d > limit:
-                out.append(f"storeys[{si}].readings[{ri}]: drift ratio {d:.1%} is over "
-                           f"{limit:.0%}; kept, but check it is not a mis-entry")
+                at = field_words(f"storeys[{si}].readings[{ri}]", survey)
+                out.append(f"{at}: drift ratio {d:.1%} is over {limit:.0%}; kept, but check it "
+                           "is not a mis-entry")
     return out
 
 

@@ -13,6 +13,7 @@ from ..levels import Level, Tier
 from ..result import MeasureNext
 from ..spots import Spot
 from ..stats import sig6
+from ..wording import kind_words
 from .drift import DirDrift, DriftStage
 from .governing import GoverningStage
 from .level import LevelStage
@@ -163,7 +164,8 @@ def measure_next(ctx: Context, drift: DriftStage, members: list[StoreyMembers],
                 best = key
                 m = st.members[gi]
                 side = "under" if under_b else "over"
-                name = f"{m.kind} group {m.ref}" if m.ref else f"{m.kind} group {gi + 1}"
+                kind = kind_words(m.kind)
+                name = f"{kind} group {m.ref}" if m.ref else f"{kind} group {gi + 1}"
                 pick = MeasureNext(
                     storey=st.label, dir=None, what="crack", member=name, z=sig6(z),
                     why=f"crack {m.crack_mm:g} mm is {z:.1f} sd {side} the class bound "

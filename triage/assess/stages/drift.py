@@ -11,6 +11,7 @@ from ..context import DRIFT_SOURCE, Context, Plumbness
 from ..drift import level_index, pct
 from ..levels import Level
 from ..spots import Spot, spots_of_survey
+from ..wording import field_name
 
 
 @dataclass(frozen=True)
@@ -58,18 +59,20 @@ def drift_stage(ctx: Context) -> DriftStage:
             at = f" ({r.where})" if r.where else ""
             head = f"storey {st.label}, {r.dir}, reading {ri + 1}{at}"
             if r.by_tilt and r.sd_deg is None:
-                defaulted.append(f"{head}: sd_deg {a.sd_tilt_deg:g}° (instrument default, "
-                                 "common practice)")
+                defaulted.append(_defaulted(head, "sd_deg", f"{a.sd_tilt_deg:g}°"))
             elif not r.by_tilt and r.sd_mm is None:
-                defaulted.append(f"{head}: sd_mm {a.sd_offset_mm:g} mm (instrument default, "
-                                 "common practice)")
+                defaulted.append(_defaulted(head, "sd_mm", f"{a.sd_offset_mm:g} mm"))
             if r.baseline_deg is not None and r.baseline_sd_deg is None:
-                defaulted.append(f"{head}: baseline_sd_deg {a.sd_tilt_deg:g}° (instrument "
-                                 "default, common practice)")
+                defaulted.append(_defaulted(head, "baseline_sd_deg", f"{a.sd_tilt_deg:g}°"))
             if r.baseline_mm is not None and r.baseline_sd_mm is None:
-                defaulted.append(f"{head}: baseline_sd_mm {a.sd_offset_mm:g} mm (instrument "
-                                 "default, common practice)")
+                defaulted.append(_defaulted(head, "baseline_sd_mm", f"{a.sd_offset_mm:g} mm"))
     return DriftStage(found.spots, dirs, found.notes, tuple(defaulted))
+
+
+def _defaulted(head: str, field: str, value: str) -> str:
+    """A reading's uncertainty taken from the instrument default, the field in words."""
+    return (f"{head}: {field_name('reading', field)} {value} (instrument default, "
+            "common practice)")
 
 
 def drift_reason(ctx: Context, dd: DirDrift, plumb: Plumbness = ()) -> str:

@@ -12,6 +12,7 @@ from ..context import Component, Context
 from ..levels import HAZARD_TIER, Level, Tier
 from ..result import HazardResult
 from ..stats import sig6
+from ..wording import hazard_words
 from .drift import DriftStage
 from .members import StoreyMembers
 
@@ -54,7 +55,8 @@ def hazard_stage(ctx: Context) -> HazardStage:
         effect = ("the structure is beyond CP" if kind.effect == "beyond-CP"
                   else f"at least {tier.word}")
         tiers.append(tier)
-        reasons.append(f"hazard {h.kind}{where}{on}: {kind.description}; {effect}{keep_txt}")
+        reasons.append(f"hazard: {hazard_words(h.kind)}{where}{on}: {kind.description}; {effect}"
+                       f"{keep_txt}")
     return HazardStage(tuple(results), tuple(tiers), tuple(reasons), frozenset(collapse_storeys),
                        collapse)
 

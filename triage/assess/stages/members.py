@@ -21,6 +21,7 @@ from ..levels import Level
 from ..result import MemberResult
 from ..stats import sig6
 from ..uncertainty import MemberModel
+from ..wording import class_from_words, field_name, kind_words, level_words
 
 _MEMBERS = TypeAdapter(tuple[MemberResult, ...])
 
@@ -71,8 +72,9 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
     st = ctx.survey.storeys[si]
     table = dmg.member_classes(st.members, std, a)
     defaulted = tuple(
-        f"storey {st.label}, {m.kind} group {gi + 1}{' ' + m.ref if m.ref else ''}: crack_sd_mm "
-        f"{a.sd_crack_mm:g} mm (instrument default, common practice)"
+        f"storey {st.label}, {kind_words(m.kind)} group {gi + 1}{' ' + m.ref if m.ref else ''}: "
+        f"{field_name('member_group', 'crack_sd_mm')} {a.sd_crack_mm:g} mm (instrument default, "
+        "common practice)"
         for gi, (m, c) in enumerate(zip(st.members, table.items, strict=True)) if c.sd_defaulted)
     etas = [dmg.eta_table(m, std) for m in st.members]
     terms = dmg.capacity_terms_all(st, etas, ctx.rc)
@@ -143,8 +145,8 @@ def capacity_reason(ctx: Context, sm: StoreyMembers) -> str:
     wall_note = ("; walls counted at weight 1 each, as a column (a wall is usually worth "
                  "several)") if walls1 else ""
     return (f"storey {st.label}, {c.dir}: residual seismic capacity ratio R = {c.r:.1%} is "
-            f"damage grade {c.grade} ({JBDPA_SOURCE}), taken as {c.level.word} (our link of "
-            f"grade to level){wall_note}")
+            f"damage grade {c.grade} ({JBDPA_SOURCE}), taken as {level_words(c.level.word)} "
+            f"(our link of grade to level){wall_note}")
 
 
 def floor_reason(ctx: Context, sm: StoreyMembers) -> str:
@@ -154,8 +156,8 @@ def floor_reason(ctx: Context, sm: StoreyMembers) -> str:
     label = ctx.label(sm.storey)
     if f.collapse:
         return (f"storey {label}: every vertical member group is class V, all {f.vertical_members}"
-                f" of the {f.vertical_members} vertical members logged: grade collapse, beyond "
-                "CP (a rule of ours, not a JBDPA grade)")
+                f" of the {f.vertical_members} vertical members logged: grade collapse, "
+                f"{level_words(Level.BEYOND_CP.word)} (a rule of ours, not a JBDPA grade)")
     if f.group is None:
         return f"storey {label}: no member group's class sets a damage floor (a rule of ours)"
     m = ctx.survey.storeys[sm.storey].members[f.group]
@@ -163,10 +165,11 @@ def floor_reason(ctx: Context, sm: StoreyMembers) -> str:
     row = sm.floors[f.group].row_at(c.point, ctx.a)
     ref = f" {m.ref}" if m.ref else ""
     brittle = ", brittle" if m.ductility == "brittle" else ""
-    text = (f"storey {label}: {m.kind} group{ref} ({m.count}{brittle}) is class "
-            f"{dmg.class_name(c.point)} (from {c.class_from}), which holds the structure to "
-            f"{f.level.word} at best (damage floor of a {row.label}, a rule of ours)")
+    text = (f"storey {label}: {kind_words(m.kind)} group{ref} ({m.count}{brittle}) is class "
+            f"{dmg.class_name(c.point)} ({class_from_words(c.class_from)}), which holds the "
+            f"structure to {level_words(f.level.word)} at best (damage floor of a {row.label}, "
+            "a rule of ours)")
     if sm.capacity is not None and f.level > sm.capacity.level:
         text += (f"; the JBDPA grade alone is {sm.capacity.grade} (R = {sm.capacity.r:.1%}, "
-                 f"{sm.capacity.level.word})")
+                 f"so {level_words(sm.capacity.level.word)})")
     return text

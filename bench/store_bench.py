@@ -13,6 +13,11 @@
 - merge_ratio: 200 source databases of 50 surveys each merged with `merge_into`, over plain
   ATTACH with INSERT ... SELECT of the same rows (surveys, changes, assessments). At most 3.
 - summary_10k_ms: `triage summary` (open, query, text) of 10,000 buildings. Under 1000.
+- edit_300_storeys_ms: one edit of a 300-storey survey (the most a survey holds) that runs the
+  whole-survey rule check (`model_rules.survey_rules`: labels, storey order, hazards' storeys,
+  years): a storey's notes, a hazard's place, the building's name, in turn; median ms through
+  `Store.set_value` (validation, rules, row, change log, one durable transaction). Under 50.
+  edit_300_rules_ms: the rule check alone on that survey (median ms).
 
 Files go to a temporary folder on the disk the system gives (`TMPDIR`); put it on a real disk,
 not tmpfs, or fsync costs nothing and the ratios say little.
@@ -114,6 +119,55 @@ def store_write_overhead_ms(edits: int = 400) -> float:
     """Milliseconds a store field edit takes beyond the bare write of its two rows."""
     ours, bare = store_write_times(edits)
     return (ours - bare) * 1000
+
+
+def _storeys_300() -> dict[str, Any]:
+    d = big_survey_dict(storeys=300, groups=10, readings=4, seed=300)
+    d["hazards"] = [{"kind": "falling_hazard", "where": f"parapet {i}", "storey": str(i * 15 + 1),
+                     "height_above_ground_m": 3.0 * (i * 15 + 1)} for i in range(20)]
+    return d
+
+
+def edit_300_storeys_times(edits: int = 300) -> dict[str, float]:
+    """Median ms of one whole-survey-checked edit of a 300-storey survey, and of the check."""
+    from triage.model_rules import survey_rules
+
+    data = _storeys_300()
+    survey = parse_survey(data)
+    sid = str(survey.survey_id)
+    labels = [s["label"] for s in data["storeys"]]
+    steps = []
+    for i in range(edits):
+        k = i % 3
+        if k == 0:
+            steps.append((f"storeys[{(i * 7) % 300}].notes", f"checked {i}"))
+        elif k == 1:
+            steps.append((f"hazards[{i % 20}].where", f"parapet, bay {i}"))
+        else:
+            steps.append(("building.name", f"Tall Building {i}"))
+    with tempfile.TemporaryDirectory(prefix="triage-bench-") as tmp:
+        st = Store.open(Path(tmp) / "tall.db", who="bench")
+        st.add_survey(survey, assess=False)
+        times = []
+        for path, value in steps:
+            t0 = time.perf_counter()
+            st.set_value(sid, path, value, "bench")
+            times.append((time.perf_counter() - t0) * 1000)
+        doc = json.loads(st.conn.execute("SELECT doc FROM surveys").fetchone()[0])
+        st.close()
+    assert [s["label"] for s in doc["storeys"]] == labels
+    rules = []
+    for _ in range(50):
+        t0 = time.perf_counter()
+        survey_rules(doc)
+        rules.append((time.perf_counter() - t0) * 1000)
+    return {"edit_300_storeys_ms": statistics.median(times),
+            "edit_300_rules_ms": statistics.median(rules)}
+
+
+def edit_300_storeys_ms(edits: int = 300) -> float:
+    """Median ms of one whole-survey-checked edit of a 300-storey survey."""
+    return edit_300_storeys_times(edits)["edit_300_storeys_ms"]
 
 
 def _small_survey(i: int, seed: int = 0) -> dict[str, Any]:
@@ -252,7 +306,8 @@ def merge_ratio(sources: int = 200, per_source: int = 50) -> float:
 
 FIGURES = {"store_write_ratio": store_write_ratio,
            "store_write_overhead_ms": store_write_overhead_ms, "list_10k_ms": list_10k_ms,
-           "merge_ratio": merge_ratio, "summary_10k_ms": summary_10k_ms}
+           "merge_ratio": merge_ratio, "summary_10k_ms": summary_10k_ms,
+           "edit_300_storeys_ms": edit_300_storeys_ms}
 
 
 def main() -> None:

@@ -58,6 +58,10 @@ def test_version_1_gets_the_photo_table_keeping_every_row_and_a_backup(tmp_path,
         cols = [r[1] for r in st.conn.execute("PRAGMA table_info(photos)")]
         assert cols == ["sha256", "format", "width", "height", "size", "added_at", "data"]
     after = _tables(db)
+    # every row kept; meta gains only the record of schema 3's step (texts already /2 here)
+    added = [r for r in after["meta"] if r not in before["meta"]]
+    assert [r[0] for r in added] == ["survey_texts_v2"] and '"rewritten": 0' in added[0][1]
+    after["meta"] = before["meta"]
     assert {t: after[t] for t in before} == before
     c = sqlite3.connect(tmp_path / "field.v1-backup.db")
     assert c.execute("PRAGMA user_version").fetchone()[0] == 1

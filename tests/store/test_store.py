@@ -24,24 +24,6 @@ def test_add_is_idempotent_and_a_changed_survey_under_a_stored_id_is_refused(sto
     assert store.conn.execute("SELECT count(*) FROM changes").fetchone()[0] == 1
 
 
-def test_a_survey_stored_as_format_1_is_the_same_survey_when_imported_again(store):
-    # A database written before triage-survey/2 holds the text marked "/1"; importing the same
-    # file again must say "unchanged", not refuse it as a different survey.
-    from triage.model import canonical_json
-
-    s = sample()
-    assert store.add_survey(s) == "added"
-    old_text = canonical_json({**s.to_json_dict(), "format": "triage-survey/1"})
-    with store.conn:
-        store.conn.execute("UPDATE surveys SET doc = ? WHERE id = ?", (old_text, str(s.survey_id)))
-    store._docs.clear()
-    assert store.add_survey(s) == "unchanged"
-    d = s.to_json_dict()
-    d["building"]["name"] = "Somewhere Else"
-    with pytest.raises(SurveyConflict):             # a real difference is still refused
-        store.add_survey(parse_survey(d))
-
-
 def test_the_assessment_is_stored_with_the_revision_it_was_computed_for(stored):
     store, sid = stored
     row = store.survey_row(sid)

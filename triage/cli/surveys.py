@@ -107,7 +107,8 @@ def run_import(args: argparse.Namespace) -> int:
             name = got.survey.building.name
             warnings = [_named(m, path, real) for m in got.warnings] + (
                 [warning] if warning else [])
-            entry.update(status="imported" if added == "added" else "unchanged",
+            outcome = {"added": "imported", "photos": "photos added"}.get(added, "unchanged")
+            entry.update(status=outcome,
                          survey=str(survey.survey_id), building=name,
                          photos_stored=len(got.photos), warnings=warnings)
             kept = f", {len(got.photos)} photo{'s' if len(got.photos) != 1 else ''} stored" \
@@ -116,6 +117,9 @@ def run_import(args: argparse.Namespace) -> int:
                 pass
             elif added == "added":
                 status(f"imported {survey.survey_id}  {name}  ({path}{kept})")
+            elif added == "photos":
+                status(f"photos added {survey.survey_id}  {name}  ({path}: the stored survey, "
+                       f"with its photos missing at import now found{kept})")
             else:
                 status(f"unchanged {survey.survey_id}  {name}  ({path}: the identical survey "
                        "is stored already)")
@@ -126,7 +130,7 @@ def run_import(args: argparse.Namespace) -> int:
     refused = sum(1 for e in done if e["status"] == "refused")
     if as_json:
         counts = {k: sum(1 for e in done if e["status"] == k)
-                  for k in ("imported", "unchanged", "refused")}
+                  for k in ("imported", "photos added", "unchanged", "refused")}
         write_json({"format": "triage-import/1", "database": str(st.path), **counts,
                     "files": done})
     return 1 if refused else 0

@@ -50,6 +50,11 @@ class CanonicalText:
 
     def __init__(self) -> None:
         self._memo: dict[int, tuple[Any, str]] = {}
+        # Pruned when the memo passes this: LIMIT, or twice what the survey held at the last
+        # pruning, so a survey holding more than LIMIT items (300 storeys of readings and
+        # member groups) is not walked whole on every edit (amortised: one walk per that many
+        # entries made).
+        self._bound = self.LIMIT
         self._doc: dict[str, Any] | None = None   # the survey the last head and tail are of
         self._ends = ("", "")
         self._storeys: list[Any] = []             # its storeys, and their texts
@@ -140,7 +145,7 @@ class CanonicalText:
             texts = [self._cached(st, self._storey) for st in storeys]
         self._storeys = storeys
         self._texts = texts
-        if len(self._memo) > self.LIMIT:
+        if len(self._memo) > self._bound:
             self._prune(doc)
         return self._ends[0], texts, self._ends[1]
 
@@ -160,3 +165,4 @@ class CanonicalText:
                         live.extend(value)
         keep = {id(x) for x in live}
         self._memo = {k: v for k, v in self._memo.items() if k in keep}
+        self._bound = max(self.LIMIT, 2 * len(self._memo))

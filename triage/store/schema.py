@@ -127,10 +127,21 @@ def _to_2(conn: sqlite3.Connection) -> None:
     run_script(conn, SCHEMA_V2)
 
 
+def _to_3(conn: sqlite3.Connection) -> None:
+    """Survey texts written as `triage-survey/1` rewritten as `/2` (`texts.rewrite_v1_texts`).
+
+    Not plain SQL: each text is read through the model. Ids, revisions, the change log and the
+    assessments are kept; `meta` records the step.
+    """
+    from .texts import rewrite_v1_texts
+
+    rewrite_v1_texts(conn)
+
+
 Migration = Callable[[sqlite3.Connection], None]
 
 # MIGRATIONS[k] turns version k into version k + 1; MIGRATIONS[0] creates an empty store.
-MIGRATIONS: list[Migration] = [_to_1, _to_2]
+MIGRATIONS: list[Migration] = [_to_1, _to_2, _to_3]
 SCHEMA_VERSION = len(MIGRATIONS)
 
 

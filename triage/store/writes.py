@@ -26,6 +26,7 @@ from .blobs import put_photos
 from .canonical import CanonicalText, scalar_json
 from .connect import StoreError, SurveyConflict
 from .rows import Change
+from .texts import photos_found
 
 _encode = json.JSONEncoder(ensure_ascii=False, separators=(",", ":")).encode
 
@@ -93,21 +94,6 @@ def list_columns(doc: dict[str, Any]) -> dict[str, Any]:
             "inspector": insp["inspector"]["name"], "at": at, "at_utc": at_utc}
 
 
-def _same_survey(stored: str, text: str) -> bool:
-    """Whether a stored text is the given survey written by an earlier version of the format.
-
-    A database written before `triage-survey/2` holds texts marked `/1`; the same file imported
-    again is the same survey, not a conflict. Both are read through the model and compared as
-    this version writes them.
-    """
-    from triage.model import parse_survey_text
-
-    try:
-        return canonical_json(parse_survey_text(stored).to_json_dict()) == text
-    except ValueError:  # SurveyError is a ValueError: an unreadable stored text is not the same
-        return False
-
-
 class SurveyWrites(AssessmentRecords):
     """New surveys in, and edits (`set`, `add`, `remove`) to stored ones."""
 
@@ -116,10 +102,14 @@ class SurveyWrites(AssessmentRecords):
                    photos: Sequence[CheckedPhoto] = ()) -> str:
         """Store a validated survey in one transaction, with its assessment and photos.
 
-        Returns "added", or "unchanged" when the identical survey is stored already. A
-        different survey under a stored id raises `SurveyConflict`; the stored one is kept.
-        `photos` are the checked blobs its photos name by `sha256` (`triage.photos.gather`
-        reads them from the survey file's folder), stored in the same transaction.
+        Returns "added", or "unchanged" when the identical survey is stored already (stored
+        texts are all as this version writes them: schema 3 rewrote the `/1` ones), or
+        "photos" when the stored survey is this one but for photos that were missing when it
+        was imported and are now found: their digests are set (one `set` change each, by
+        `who`) and their blobs stored. A different survey under a stored id raises
+        `SurveyConflict`; the stored one is kept. `photos` are the checked blobs its photos
+        name by `sha256` (`triage.photos.gather` reads them from the survey file's folder),
+        stored in the same transaction.
         """
         sid = str(survey.survey_id)
         doc = survey.to_json_dict()
@@ -135,8 +125,10 @@ class SurveyWrites(AssessmentRecords):
         with self._write() as c:
             row = c.execute("SELECT doc FROM surveys WHERE id = ?", (sid,)).fetchone()
             if row is not None:
-                if row[0] == text or _same_survey(row[0], text):
+                if row[0] == text:
                     return "unchanged"
+                if self._attach_found(c, sid, row[0], text, doc, result, photos, who, now):
+                    return "photos"
                 raise SurveyConflict(
                     f"survey {sid}: a different survey is already stored under this id; the "
                     "stored one was kept (export it to compare, or give the new one its own id)")
@@ -157,6 +149,31 @@ class SurveyWrites(AssessmentRecords):
                 put_photos(c, photos)
         self._keep(sid, 1, doc)
         return "added"
+
+    def _attach_found(self, c: sqlite3.Connection, sid: str, stored: str, text: str,
+                      doc: dict[str, Any], result: Any, photos: Sequence[CheckedPhoto],
+                      who: str | None, now: str) -> bool:
+        """Photos missing at import, found now: set their digests (see `add_survey`)."""
+        fills = photos_found(json.loads(stored), text)
+        if fills is None:
+            return False
+        rev = int(c.execute("SELECT revision FROM surveys WHERE id = ?", (sid,)).fetchone()[0])
+        put_photos(c, photos)
+        for field, sha in fills:
+            rev += 1
+            c.execute(
+                "INSERT INTO changes (uid, survey_id, revision, op, path, old, new, at, who) "
+                "VALUES (?, ?, ?, 'set', ?, NULL, ?, ?, ?)",
+                (str(uuid.uuid4()), sid, rev, f"{field}.sha256", scalar_json(sha), now,
+                 who or self.who))
+        c.execute("UPDATE surveys SET doc = ?, revision = ?, updated_at = ? WHERE id = ?",
+                  (text, rev, now, sid))
+        if result is not None:
+            self._put_assessment(c, sid, rev, result)
+        self._docs.pop(sid, None)
+        self._texts.pop(sid, None)
+        self._keep(sid, rev, doc)
+        return True
 
     def _current(self, c: sqlite3.Connection, sid: str) -> tuple[int, dict[str, Any]]:
         row = c.execute("SELECT revision FROM surveys WHERE id = ?", (sid,)).fetchone()

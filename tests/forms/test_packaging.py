@@ -115,6 +115,7 @@ def test_wheel_built_offline_installs_and_runs_demo_loading_and_form(tmp_path: P
     wheel, log = _hook("build_wheel", tmp_path / "src" / sdist.name.removesuffix(".tar.gz"),
                        dist)
     assert not BUILD_WARNING.search(log), log
+    assert wheel.suffix == ".whl" and wheel.parent == dist and zipfile.is_zipfile(wheel)
     with zipfile.ZipFile(wheel) as zf:
         names = set(zf.namelist())
         meta = zf.read(next(n for n in names if n.endswith(".dist-info/METADATA"))).decode()

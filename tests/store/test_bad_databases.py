@@ -92,21 +92,38 @@ def test_a_full_disk_keeps_earlier_data_whole(tmp_path):
     sid = str(s.survey_id)
     st.set_value(sid, "storeys[0].notes", "kept")
     pages = st.conn.execute("PRAGMA page_count").fetchone()[0]
-    st.conn.execute(f"PRAGMA max_page_count = {pages}")
-    before = st.survey_json(sid)
-    with pytest.raises(StoreError, match="the disk is full; this change was not saved"):
-        for _ in range(200):
-            st.set_value(sid, "storeys[0].notes", "x" * 20000)
-            st.add_item(sid, "storeys[0].readings", {"dir": "x", "tilt_deg": 0.01,
-                                                     "where": "y" * 5000})
+    st.conn.execute(f"PRAGMA max_page_count = {pages + 40}")  # room for a few
+    # Each write the store acknowledged (returned from) is recorded with the text it left;
+    # the one refused is named.
+    acknowledged = [("notes kept", st.survey_json(sid))]
+    refused = None
+    for k in range(200):
+        for what, write in ((f"notes {k}", lambda k=k: st.set_value(
+                                sid, "storeys[0].notes", f"{k:03d}" + "x" * 19000)),
+                            (f"reading {k}", lambda k=k: st.add_item(
+                                sid, "storeys[0].readings",
+                                {"dir": "x", "tilt_deg": 0.01, "where": f"{k:03d}" + "y" * 1900}))):
+            try:
+                write()
+            except StoreError as err:
+                assert str(err) == (f"{p}: the disk is full; this change was not saved and "
+                                    "earlier data is whole; free some space and try again")
+                refused = what
+                break
+            acknowledged.append((what, st.survey_json(sid)))
+        if refused:
+            break
+    assert refused is not None, "the disk never filled"
+    assert len(acknowledged) >= 3   # some writes went through before the disk filled
     st.close()
+    last_what, last_doc = acknowledged[-1]
     with Store.open(p) as again:
         assert again.integrity() == "ok"
-        # Whatever was acknowledged before the full disk is there; the survey still loads.
-        doc = again.survey_json(sid)
-        assert doc["storeys"][0]["notes"] in ("kept", "x" * 20000)
+        # exactly the last acknowledged write is there, and nothing of the refused one
+        assert again.survey_json(sid) == last_doc, (last_what, refused)
         again.load_survey(sid)
-        assert doc["storeys"][1] == before["storeys"][1]
+        log = again.change_log(sid)
+        assert len([c for c in log if c.op != "import"]) == len(acknowledged)
 
 
 def test_a_read_only_database_gives_a_clear_message(tmp_path):
@@ -117,6 +134,24 @@ def test_a_read_only_database_gives_a_clear_message(tmp_path):
     c.close()
     msg = str(explain(err.value, p))
     assert msg.startswith(f"{p}: the database or its folder is read-only; nothing was changed")
+
+
+def test_a_store_opened_read_only_reads_and_refuses_an_edit_unchanged(tmp_path):
+    p = _real_db(tmp_path / "ro.db")
+    with Store.open(p) as st:
+        ids = [r.id for r in st.list_surveys()]
+        sid = ids[0]
+        doc = st.survey_json(sid)
+    before = _digest(p)
+    with Store.open(p, read_only=True) as st:
+        assert [r.id for r in st.list_surveys()] == ids and len(ids) == 3
+        assert st.survey_json(sid) == doc
+        with pytest.raises(StoreError) as err:
+            st.set_value(sid, "storeys[0].notes", "never saved")
+        assert str(err.value) == (f"{p}: the database or its folder is read-only; nothing was "
+                                  "changed; use a writable folder (triage --db PATH)")
+        assert st.survey_json(sid) == doc
+    assert _digest(p) == before
 
 
 def test_a_missing_folder_gives_a_clear_message(tmp_path):

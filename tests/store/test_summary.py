@@ -106,7 +106,7 @@ def _check_rfc7946(doc: Any) -> None:
         g = f["geometry"]
         assert g["type"] == "Point"
         pos = g["coordinates"]
-        assert isinstance(pos, list) and len(pos) in (2, 3)
+        assert isinstance(pos, list) and len(pos) == 2   # RFC 7946 allows 3; we write no height
         assert all(isinstance(v, Real) and not isinstance(v, bool) for v in pos)
         lon, lat = pos[0], pos[1]
         assert -180 <= lon <= 180 and -90 <= lat <= 90

@@ -27,8 +27,10 @@ async def main(db: str, sid: str) -> None:
             print("SHOWN SAVED", flush=True)
         else:
             print("NOT SAVED " + f.status_text, flush=True)
-        # keep typing in another field, never accepted, until killed
-        await type_in(pilot, "s-notes", "half typed", enter=False)
+        # type into another field, never accepted; say what the field holds, then wait to be
+        # killed with that typing on screen
+        notes = await type_in(pilot, "s-notes", "half typed", enter=False)
+        print(f"TYPED {notes.input.value}|{notes.status_text}", flush=True)
         await asyncio.sleep(120)
 
 

@@ -26,6 +26,10 @@ async def test_sigkill_after_shown_saved(db: Path, make_app) -> None:
         assert proc.stdout is not None
         line = proc.stdout.readline().strip()
         assert line == "SHOWN SAVED", line
+        # killed only once the unaccepted typing is on screen (not saved, not shown saved)
+        typed, _, status = proc.stdout.readline().strip().partition("|")
+        assert typed == "TYPED half typed", typed
+        assert not status.startswith("✓ saved"), status
         proc.send_signal(signal.SIGKILL)
         proc.wait(timeout=20)
     finally:
@@ -33,9 +37,14 @@ async def test_sigkill_after_shown_saved(db: Path, make_app) -> None:
             proc.kill()
     assert proc.returncode == -signal.SIGKILL
     with Store.open(db) as st:
+        assert st.integrity() == "ok"
         assert st.load_survey(SID).storeys[0].height_m == 3.9
         assert st.load_survey(SID).storeys[0].notes is None  # never accepted, never saved
+        # exactly the one accepted edit survived, logged once; nothing of the half typing
+        edits = [(c.op, c.path, c.new) for c in st.change_log(SID) if c.op != "import"]
+        assert edits == [("set", "storeys[0].height_m", 3.9)], edits
     app = make_app(db, open_survey=SID)
     async with app.run_test(size=(80, 24)) as pilot:
         await settle(pilot)
         assert app.screen.query_one("#s-height").text == "3.9"
+        assert app.screen.query_one("#s-notes").text == ""

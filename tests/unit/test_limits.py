@@ -182,7 +182,10 @@ IDS = [c.name for c in CASES]
 def check_line(msg: str, case: Case) -> None:
     assert "\n" not in msg
     assert case.field + ":" in msg, msg
-    assert not case.words or f"({case.words}" in msg, msg
+    if case.words:   # the field in words, in brackets after the rule
+        assert f"({case.words}" in msg, msg
+    else:            # the key path alone names it: no words in brackets follow
+        assert not msg.endswith(")"), msg
     assert case.limit in msg, msg
 
 

@@ -1,0 +1,104 @@
+"""Verify when a signed report lacks an embedded file, when the trusted-key list cannot be read,
+and when this engine refuses or cannot read the embedded survey or assessment.
+
+Each report here is made by the real writer and signed for real (both ways); only what goes
+into it is changed, before signing, so the signature itself is sound and the check under test
+is the one that answers.
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+
+import triage.report as report
+import triage.report.draw as draw
+from triage.assess.result import Assessment
+from triage.report import write_report
+from triage.report.keys import TRUST_FILE, home, new_key
+from triage.report.verify import import_verdict, verify_report
+
+WAYS = ["ecdsa-p256", "ed25519"]
+
+
+@pytest.fixture(params=WAYS)
+def key(request, tmp_path: Path):
+    k, _ = new_key("Aroha Ngāti", "R-77", tmp_path / "aroha.key", None, algorithm=request.param)
+    return k
+
+
+@pytest.mark.parametrize("dropped", ["survey.json", "assessment.json", "signer.json"])
+def test_a_signed_report_missing_an_embedded_file_is_changed(clinic_pair, key, tmp_path,
+                                                             monkeypatch, dropped):
+    real = draw.add_to_document
+
+    def without(doc, files, signed):
+        real(doc, [f for f in files if f[0] != dropped], signed)
+
+    monkeypatch.setattr(draw, "add_to_document", without)
+    out = tmp_path / "r.pdf"
+    write_report(*clinic_pair, out, key=key)
+    monkeypatch.undo()
+    r = verify_report(out, trusted=[key.public])
+    assert (r.code, r.message) == (1, f"{out}: changed or damaged: embedded {dropped} missing")
+    v = import_verdict(out, trusted=[key.public])
+    assert v.refused == (f"{out}: refused, the report is changed or damaged: embedded "
+                         f"{dropped} missing")
+
+
+def test_an_unreadable_trusted_key_list_is_said_and_not_trusted(clinic_pair, key, tmp_path):
+    out = tmp_path / "r.pdf"
+    write_report(*clinic_pair, out, key=key)
+    assert verify_report(out).code == 0   # trusted here by new_key
+    (home() / TRUST_FILE).write_text("{ not json", encoding="utf-8")
+    r = verify_report(out)
+    assert r.code == 4
+    assert r.message == (f"{out}: intact, signed by Aroha Ngāti (id R-77), key "
+                         f"{key.fingerprint}, at {r.signed_at}; the trusted-key list cannot be "
+                         "read")
+    # naming the key on the command line does without the list
+    assert verify_report(out, expect=key.fingerprint).code == 0
+
+
+def test_an_embedded_survey_this_engine_refuses_is_exit_5(clinic_pair, key, tmp_path,
+                                                          monkeypatch):
+    s, a = clinic_pair
+
+    def refused(survey):
+        d = json.loads(s.model_dump_json())
+        d["storeys"][0]["height_m"] = -3.0   # no storey is of negative height
+        return json.dumps(d)
+
+    monkeypatch.setattr(report, "survey_text", refused)
+    out = tmp_path / "r.pdf"
+    write_report(s, a, out, key=key)
+    monkeypatch.undo()
+    r = verify_report(out, trusted=[key.public])
+    assert r.code == 5, r.message
+    assert "; but this engine refuses the embedded survey (storeys[0].height_m: " in r.message
+    assert r.message.startswith(f"{out}: intact, signed by Aroha Ngāti (id R-77)")
+    assert "\n" not in r.message
+    v = import_verdict(out, trusted=[key.public])
+    assert v.refused is None and v.warning is not None
+    assert v.warning.startswith(f"{out}: imported with a warning: intact, signed by")
+
+
+@pytest.mark.parametrize("change", [lambda d: d.pop("tier"), lambda d: d.update(tier="maybe")],
+                         ids=["no tier", "an unknown tier"])
+def test_an_embedded_assessment_this_engine_cannot_read_is_exit_5(clinic_pair, key, tmp_path,
+                                                                  monkeypatch, change):
+    s, a = clinic_pair
+    d = json.loads(a.to_json())
+    change(d)
+    text = json.dumps(d)
+    monkeypatch.setattr(Assessment, "to_json", lambda self: text)
+    out = tmp_path / "r.pdf"
+    write_report(s, a, out, key=key)
+    monkeypatch.undo()
+    r = verify_report(out, trusted=[key.public])
+    assert r.code == 5, r.message
+    assert r.message.endswith("; but this engine cannot read the embedded assessment (1 "
+                              "validation error for Assessment)"), r.message
+    assert "\n" not in r.message

@@ -9,7 +9,6 @@ auto pilot in place of a terminal, which quits once the first screen is filled.
 from __future__ import annotations
 
 import sys
-from pathlib import Path
 from typing import Any
 
 import pytest

@@ -54,7 +54,8 @@ class Group:
 
 GROUPS = [
     Group("area", ("triage/store/area.py",),
-          ("tests/store/test_summary.py", "tests/store/test_summary_utc.py")),
+          ("tests/store/test_summary.py", "tests/store/test_summary_utc.py",
+           "tests/store/test_area_rows.py")),
     Group("signing", ("triage/report/signing.py",),
           ("tests/report/test_signing.py", "tests/report/test_first_round.py",
            "tests/report/test_keys.py")),
@@ -69,10 +70,12 @@ GROUPS = [
            "tests/unit/test_limits.py", "tests/unit/test_model_rules.py")),
     Group("forms", ("triage/report/paper_form.py", "triage/report/paper_sheet.py"),
           ("tests/forms/test_paper_form.py", "tests/forms/test_paper_form_grid.py")),
-    Group("rules", ("triage/assess/engine.py", "triage/assess/damage.py",
-                    "triage/assess/drift.py", "triage/assess/floors.py",
-                    "triage/assess/levels.py", "triage/assess/repair.py",
-                    "triage/assess/spots.py"),
+    Group("rules", ("triage/assess/engine.py", "triage/assess/stages/drift.py",
+                    "triage/assess/stages/members.py", "triage/assess/stages/level.py",
+                    "triage/assess/stages/governing.py", "triage/assess/stages/advice.py",
+                    "triage/assess/damage.py", "triage/assess/drift.py",
+                    "triage/assess/floors.py", "triage/assess/levels.py",
+                    "triage/assess/repair.py", "triage/assess/spots.py"),
           ("tests/unit/test_verdict_rules.py", "tests/unit/test_worked_examples.py",
            "tests/unit/test_spots.py", "tests/reference")),
 ]
@@ -96,7 +99,11 @@ class Outcome:
 
 def _mutmut_config(g: Group) -> str:
     tests = [t for t in g.tests if (ROOT / t).exists()]
-    lines = ["[mutmut]", "source_paths=triage", "only_mutate=", *(f"    {m}" for m in g.modules),
+    modules = [m for m in g.modules if (ROOT / m).exists()]
+    if not modules or not tests:
+        raise SystemExit(f"mutation: group {g.name}: none of its modules or tests exist here "
+                         "(renamed? update GROUPS in bench/mutation.py)")
+    lines = ["[mutmut]", "source_paths=triage", "only_mutate=", *(f"    {m}" for m in modules),
              "pytest_add_cli_args_test_selection=", *(f"    {t}" for t in tests),
              "pytest_add_cli_args=", "    -p", "    no:cacheprovider", "    -x",
              "use_git_change_detection=false"]

@@ -54,7 +54,8 @@ def test_an_older_schema_is_read_through_an_upgraded_copy(tmp_path, monkeypatch)
 def test_a_missing_or_empty_file_is_one_line(tmp_path):
     with pytest.raises(StoreError) as err:
         Store.open_read_only(tmp_path / "none.db")
-    assert str(err.value) == f"{tmp_path / 'none.db'}: no database there; check the path (--db PATH)"
+    assert str(err.value) == (f"{tmp_path / 'none.db'}: no database there; check the path "
+                              "(--db PATH)")
     empty = tmp_path / "empty.db"
     empty.write_bytes(b"")
     with pytest.raises(StoreError) as err:

@@ -145,7 +145,7 @@ def _run(argv: list[str]) -> int:
     except OSError as err:   # the machine, not the data: a full disk, a removed stick
         where = f"{err.filename}: " if err.filename else ""
         failure = io_failure(err.filename or "a file", err, "read or written")
-        why = str(failure).split("(", 1)[-1].rstrip(")")
+        why = str(failure).split("(", 1)[-1].removesuffix(")")
         sys.stderr.write(f"triage {named}: {where}input/output failed ({why}); "
                          "nothing more was done\n")
         return 1

@@ -75,9 +75,12 @@ GROUPS = [
                     "triage/assess/stages/governing.py", "triage/assess/stages/advice.py",
                     "triage/assess/damage.py", "triage/assess/drift.py",
                     "triage/assess/floors.py", "triage/assess/levels.py",
-                    "triage/assess/repair.py", "triage/assess/spots.py"),
+                    "triage/assess/repair.py", "triage/assess/spots.py",
+                    "triage/assess/capacity.py", "triage/assess/steel.py",
+                    "triage/assess/walls.py"),
           ("tests/unit/test_verdict_rules.py", "tests/unit/test_worked_examples.py",
-           "tests/unit/test_spots.py", "tests/reference")),
+           "tests/unit/test_spots.py", "tests/unit/test_capacity_engine.py",
+           "tests/unit/test_capacity_tables.py", "tests/reference")),
 ]
 
 

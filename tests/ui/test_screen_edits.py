@@ -1,12 +1,12 @@
 """Screens edits no other test reaches: a storey added below (ctrl+b), a reading and a member
-group removed (ctrl+r, kept in the log, ctrl+z brings them back), a photo attached to a storey
-and to a member group, and the new-survey form's refusals (nothing stored)."""
+group removed (ctrl+r, kept in the log, ctrl+z brings them back), and the new-survey form's
+refusals (nothing stored)."""
 
 from __future__ import annotations
 
 from pathlib import Path
 
-from drive import pick, settle, type_in
+from drive import settle, type_in
 
 from triage.store import Store
 from triage.ui.screens.new_survey import NewSurveyScreen
@@ -95,34 +95,6 @@ async def test_a_member_group_removed_is_kept_in_the_log(db: Path, make_app) -> 
     s, hidden = _saved(db)
     assert [(m.count, m.crack_mm) for m in s.storeys[0].members] == [(2, 1.4)]
     assert [(c.path, c.old["count"]) for c in hidden] == [("storeys[0].members[0]", 12)]
-
-
-async def test_photos_attached_to_the_storey_and_to_a_member_group(db: Path, make_app) -> None:
-    app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f9")
-        await settle(pilot)
-        pane = app.screen.query_one("#photos-pane")
-        # no file named: refused beside the field, nothing stored
-        await type_in(pilot, "p-caption", "north face")
-        assert "file is needed" in pane.form["path"].status_text
-        assert pane.table.row_count == 0
-        await type_in(pilot, "p-path", "img/g-north.jpg", enter=False)
-        await type_in(pilot, "p-caption", "north face")
-        assert _note(pane) == "✓ saved: photo 1 added"
-        # a photo of member group 1 (the twelve columns)
-        await pick(pilot, "p-of", "members[0]")
-        await settle(pilot)
-        assert pane.table.row_count == 0   # that group has no photo yet
-        await type_in(pilot, "p-path", "img/g-c1.jpg", enter=False)
-        await type_in(pilot, "p-caption", "column C1 base")
-        assert pane.table.row_count == 1
-    s, _ = _saved(db)
-    g = s.storeys[0]
-    assert [(p.path, p.caption) for p in g.photos] == [("img/g-north.jpg", "north face")]
-    assert [(p.path, p.caption) for p in g.members[0].photos] == [
-        ("img/g-c1.jpg", "column C1 base")]
 
 
 def _count(db: Path) -> int:

@@ -57,7 +57,7 @@ async def test_a_storey_on_top_then_removed_then_undone(db: Path, make_app) -> N
         await pilot.press("ctrl+z")
         await settle(pilot)
         assert _labels(db) == ["G", "1", "2"]
-        assert "undone: remove storeys[1]" in str(scr.query_one("#survey-title").render())
+        assert "undone: removed storey 2" in str(scr.query_one("#survey-title").render())
 
 
 async def test_the_last_storey_stays_and_nothing_to_undo_is_said(tmp_path: Path,

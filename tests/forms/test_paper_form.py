@@ -15,6 +15,7 @@ from triage.cli import main
 from triage.forms import load_form, load_forms
 from triage.report import paper_form
 from triage.report.paper_form import write_paper_form
+from triage.standards.vocabulary import many, words
 
 
 def _pages(path: Path) -> list[str]:
@@ -49,15 +50,15 @@ def test_form_holds_building_storey_bands_hazards_and_signature(
         assert "Building" in pages[0] and "Inspection" in pages[0]
         assert "Storey band 1" in whole and "Storey band 2" in whole
         assert "Storey band 3" not in whole
-        for label in ("offset mm", "gauge mm", "sd mm", "tilt", "where on the plan", "full",
-                      "partial", "none", "height m"):
+        for label in ("offset (mm)", "gauge (mm)", "uncertainty (mm)", "tilt (°)", "where",
+                      "all entered", "partly entered", "not entered", "height (m)"):
             assert label in whole, (key, label)
         for kind in form.member_kinds:
-            assert form.label_of(kind) in whole, (key, kind)
+            assert many("member_kinds", kind).capitalize() in whole, (key, kind)
             for sign, _ in form.signs_for(kind):
-                assert paper_form.words(sign).split()[0] in whole, (key, sign)
+                assert words("signs", sign) in whole, (key, sign)
         for hk in hazards:
-            assert paper_form.words(hk) in whole, (key, hk)
+            assert words("hazards", hk) + ":" in whole, (key, hk)
         assert "inspector's signature" in whole
         for c, text in form.class_text.items():
             assert f"{c}: {text[:30]}" in whole, (key, c)
@@ -77,7 +78,9 @@ def test_one_page_per_storey_band_and_reproducible_bytes(tmp_path: Path) -> None
     a, b, c = tmp_path / "a.pdf", tmp_path / "b.pdf", tmp_path / "c.pdf"
     n1 = write_paper_form(form, a, storeys=1)
     n5 = write_paper_form(form, b, storeys=5)
-    assert n5 - n1 == 4
+    per_band = len([p for p in _pages(a) if "storey band 1 of 1" in p])
+    assert per_band >= 2   # readings on one sheet, member grids on the next
+    assert n5 - n1 == 4 * per_band
     write_paper_form(form, c, storeys=1)
     assert a.read_bytes() == c.read_bytes()
     with pytest.raises(ValueError, match=r"storeys: 0 is outside 1\.\.20"):
@@ -94,7 +97,9 @@ def test_falls_back_to_helvetica_without_the_shipped_font(
     assert b"Helvetica" in raw and b"DejaVu" not in raw
     pages = _pages(out)
     assert all(CAUTION in p for p in pages)
-    assert "+/-" in " ".join(pages)
+    whole = " ".join(pages)
+    assert "class set by hand (I–V)" in whole and "tilt (°)" in whole   # Windows-1252 glyphs
+    whole.encode("cp1252")   # nothing Helvetica cannot show
 
 
 def test_uses_the_shipped_font_when_present(tmp_path: Path) -> None:
@@ -111,7 +116,36 @@ def test_cli_writes_the_form(tmp_path: Path, capsys: pytest.CaptureFixture[str])
     assert out.read_bytes().startswith(b"%PDF")
     assert "Storey band 4" in " ".join(_pages(out))
     said = capsys.readouterr()
-    assert said.out == "" and "steel_braced_frame" in said.err   # a status line, not data
+    assert said.out == ""   # a status line, not data
+    assert "for braced steel frame (steel_braced_frame), 4 storey bands" in said.err
+
+
+def test_cli_writes_a_form_for_two_systems(tmp_path: Path,
+                                           capsys: pytest.CaptureFixture[str]) -> None:
+    out = tmp_path / "mixed.pdf"
+    assert main(["form", "rc_frame", "steel_braced_frame", "-o", str(out),
+                 "--storeys", "1"]) == 0
+    said = capsys.readouterr().err
+    assert "for concrete frame (x), braced steel frame (y) (rc_frame, steel_braced_frame)" in said
+    whole = " ".join(_pages(out))
+    assert "for concrete frame (x), braced steel frame (y)" in whole
+    for title in ("Columns", "Beams", "Floor slabs", "Braces", "Connections"):
+        assert title in whole, title
+    # both systems' look-up sheets, each with its own class words
+    for key in ("rc_frame", "steel_braced_frame"):
+        form = load_form(key)
+        assert f"What to look for: {form.title.lower()}" in whole
+        assert form.class_text["IV"][:40] in whole
+    same = tmp_path / "same.pdf"
+    assert main(["form", "rc_frame", "rc_frame", "-o", str(same), "--storeys", "1"]) == 0
+    assert "for concrete frame (rc_frame)," in capsys.readouterr().err
+    single = tmp_path / "single.pdf"
+    assert main(["form", "rc_frame", "-o", str(single), "--storeys", "1"]) == 0
+    assert same.read_bytes() == single.read_bytes()
+    assert main(["form", "rc_frame", "adobe", "-o", str(tmp_path / "x.pdf")]) == 1
+    err = capsys.readouterr().err.strip()
+    assert "\n" not in err and "'adobe' is not a structural system (known: rc_frame," in err
+    assert main(["form", "rc_frame", "rc_wall", "urm_wall", "-o", str(out)]) == 2
 
 
 def test_cli_refuses_an_unknown_system_with_the_known_ones(

@@ -37,6 +37,19 @@ async def test_filter_by_typing_and_open(db: Path, make_app) -> None:
         assert "indicative" in verdict_text(pilot)
 
 
+async def test_the_short_code_of_a_paper_form_finds_the_earlier_survey(db: Path,
+                                                                      make_app) -> None:
+    app = make_app(db)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        table = app.screen.query_one("#surveys")
+        assert table.row_count == 2
+        await pilot.press(*BAKERY[:8])
+        await settle(pilot)
+        assert table.row_count == 1
+        assert "Bakery" in table.get_row_at(0)[0]
+
+
 async def test_reinspection_copies_storeys_clears_readings(db: Path, make_app) -> None:
     app = make_app(db)
     async with app.run_test(size=(80, 24)) as pilot:

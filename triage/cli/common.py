@@ -167,15 +167,26 @@ def db_writable(args: argparse.Namespace) -> bool:
     return p.exists() and os.access(p, os.W_OK) and os.access(p.parent, os.W_OK)
 
 
+# How many matches an ambiguous id prefix lists before "and N more".
+MATCHES_LISTED = 10
+
+
 def resolve_id(reader: SurveyReader, given: str) -> str:
-    """A survey id from the whole id or an unambiguous start of it."""
+    """A survey id from the whole id or an unambiguous start of it (e.g. the 8-character code).
+
+    An ambiguous start is refused in one line that lists the matching ids (the first
+    `MATCHES_LISTED`, then how many more).
+    """
     ids = reader.match_ids(given)
     if len(ids) == 1:
         return ids[0]
     if not ids:
         raise UserError(f"{given}: no survey with this id in {reader.location} "
                         "(see 'triage list')")
-    raise UserError(f"{given}: {len(ids)} surveys start with this; give more of the id")
+    shown = ", ".join(sorted(ids)[:MATCHES_LISTED])
+    more = f" and {len(ids) - MATCHES_LISTED} more" if len(ids) > MATCHES_LISTED else ""
+    raise UserError(f"{given}: {len(ids)} surveys start with this ({shown}{more}); "
+                    "give more of the id")
 
 
 def yes_no(v: bool | None) -> str:

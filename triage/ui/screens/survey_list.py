@@ -85,8 +85,9 @@ class SurveyListScreen(Screen[None]):
         self.apply_filter(keep)
 
     def _matches(self, row: Any, words: list[str]) -> bool:
+        # the id too, so the 8-character code a paper form gives finds the earlier survey
         hay = " ".join(str(x or "") for x in (row.building, row.address, row.inspector,
-                                              row.tier, _when(row.at))).lower()
+                                              row.tier, _when(row.at), row.id)).lower()
         return all(w in hay for w in words)
 
     def apply_filter(self, keep: str | None = None) -> None:

@@ -34,12 +34,9 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
 
 def run(args: argparse.Namespace) -> int:
     """Write the paper form; refuse an unknown system with the list of known ones."""
-    from triage.forms import FormError, load_form, load_forms
+    from triage.forms import load_form, load_forms
 
-    try:
-        forms = load_forms()
-    except FormError as err:
-        raise UserError(str(err)) from None
+    forms = load_forms()   # checked already: `main` refuses to start on a bad form file
     systems = [args.system] + ([args.system_y] if args.system_y else [])
     for key in systems:
         if key not in forms:

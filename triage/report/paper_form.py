@@ -171,7 +171,6 @@ def _storey_band(d: Sheet, forms: Sequence[Form], grids: Sequence[KindGrid], n: 
     w = d.width
     label = f"{fw('storey', 'label')} (as marked on site)"
 
-    d.continued = None
     d.storey_label = f"band {n}: {fw('storey', 'label')}"
     d.new_page(sec)
     d.heading(f"Storey band {n}", sec)
@@ -260,7 +259,6 @@ def _lookup(d: Sheet, form: Form) -> None:
     sec = "look-up sheet: what to look for"
     w = d.width
     std = standards.load()
-    d.continued = None
     d.new_page(sec)
     d.heading(f"What to look for: {form.title.lower()} ({words('systems', form.system)})", sec)
     d.para(MARGIN, form.summary, w, 8, section=sec)
@@ -333,7 +331,8 @@ def write_paper_form(forms: Form | Sequence[Form], out: Path, storeys: int = 3) 
     `forms` is one system's form, or the forms of the x and y directions' systems (a building
     of two systems gets both systems' grids and look-up sheets). The PDF is reproducible byte
     for byte (reportlab's invariant mode). Raises ValueError for a storey count outside 1..20
-    or other than one or two forms, and OSError when `out` cannot be written.
+    or other than one or two forms, and `triage.errors.IOFailure` (one line) when
+    `out` cannot be written.
     """
     from io import BytesIO
 

@@ -13,7 +13,7 @@ photocopies and faxes as it prints. Every box and grid row to write in is at lea
 
 from __future__ import annotations
 
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -49,7 +49,6 @@ class Sheet:
     total: int | None
     page: int = 0
     y: float = 0.0
-    continued: Callable[[], None] | None = None
     sections: list[str] = field(default_factory=list)
     storey_label: str = ""   # while set, every page's header has a line for the storey's label
 
@@ -111,8 +110,6 @@ class Sheet:
         """Start a new page when `h` points do not fit above the caution band."""
         if self.y - h < self.bottom:
             self.new_page(section)
-            if self.continued is not None:
-                self.continued()
 
     # --- drawing helpers ------------------------------------------------------------------
     def text(self, x: float, y: float, s: str, size: float = 8, bold: bool = False,
@@ -200,8 +197,6 @@ class Sheet:
             lines, h = self._row_lines(r, widths)
             if y - h < self.bottom:
                 self.new_page(section)
-                if self.continued is not None:
-                    self.continued()
                 y = self._heads(x, widths, head_lines, head_size, self.y, head_h)
             if isinstance(r, str):
                 self.text(x + 2, y - h + 4, r, 7.5, bold=True)

@@ -142,6 +142,7 @@ def test_cli_writes_a_form_for_two_systems(tmp_path: Path,
     single = tmp_path / "single.pdf"
     assert main(["form", "rc_frame", "-o", str(single), "--storeys", "1"]) == 0
     assert same.read_bytes() == single.read_bytes()
+    capsys.readouterr()
     assert main(["form", "rc_frame", "adobe", "-o", str(tmp_path / "x.pdf")]) == 1
     err = capsys.readouterr().err.strip()
     assert "\n" not in err and "'adobe' is not a structural system (known: rc_frame," in err

@@ -39,7 +39,7 @@ def laptop(tmp_path):
 
 def test_not_a_url_and_a_batch_of_zero_are_refused_before_connecting(capsys, laptop):
     code, _, err = run(capsys, "centre", "init", "/tmp/centre.db")
-    assert (code, err) == (1, "triage centre: /tmp/centre.db: not a PostgreSQL URL "
+    assert (code, err) == (1, "triage centre init: /tmp/centre.db: not a PostgreSQL URL "
                               "(postgresql://USER@HOST/DATABASE)\n")
     code, _, err = run(capsys, "--db", str(laptop), "sync", "--to", URL, "--batch", "0")
     assert (code, err) == (1, "triage sync: --batch 0: must be at least 1\n")
@@ -65,14 +65,14 @@ def test_sync_lines_for_something_sent_and_for_nothing(capsys, laptop, monkeypat
     ])
     monkeypatch.setattr(sync_module, "sync", lambda *a, **kw: next(results))
     code, out, err = run(capsys, "--db", str(laptop), "sync", "--to", URL)
-    assert code == 0
-    assert out == (f"{SHOWN}: sent 1 survey version, 2 changes, 1 assessments, 0 report "
-                   "records, 0 photos in 1 transactions (0.2 s)\n")
+    assert code == 0 and out == ""   # status lines go to standard error
     assert err == ("triage sync: note: the map layer was not refreshed (x); the next sync "
-                   "refreshes it\n")
-    code, out, _ = run(capsys, "--db", str(laptop), "sync", "--to", URL)
-    assert (code, out) == (0, f"{SHOWN}: nothing to send; the centre holds all 1 survey of "
-                              "this laptop as they are\n")
+                   "refreshes it\n"
+                   f"{SHOWN}: sent 1 survey version, 2 changes, 1 assessments, 0 report "
+                   "records, 0 photos in 1 transactions (0.2 s)\n")
+    code, out, err = run(capsys, "--db", str(laptop), "sync", "--to", URL)
+    assert (code, out, err) == (0, "", f"{SHOWN}: nothing to send; the centre holds all 1 "
+                                       "survey of this laptop as they are\n")
 
 
 def test_reassess_lines_and_status(capsys, monkeypatch):
@@ -81,11 +81,11 @@ def test_reassess_lines_and_status(capsys, monkeypatch):
     results = iter([ReassessResult(assessed=5, current=2, failed=0),
                     ReassessResult(assessed=4, current=2, failed=1)])
     monkeypatch.setattr(reassess_module, "reassess", lambda *a, **kw: next(results))
-    code, out, _ = run(capsys, "centre", "reassess", URL)
-    assert (code, out) == (0, f"{SHOWN}: 5 survey versions assessed with engine {__version__}, "
+    code, out, err = run(capsys, "centre", "reassess", URL)
+    assert (code, out, err) == (0, "", f"{SHOWN}: 5 survey versions assessed with engine {__version__}, "
                               "2 already were\n")
-    code, out, _ = run(capsys, "centre", "reassess", URL)
-    assert (code, out) == (1, f"{SHOWN}: 4 survey versions assessed with engine {__version__}, "
+    code, out, err = run(capsys, "centre", "reassess", URL)
+    assert (code, out, err) == (1, "", f"{SHOWN}: 4 survey versions assessed with engine {__version__}, "
                               "2 already were, 1 could not be assessed\n")
 
 
@@ -95,12 +95,13 @@ def test_init_lines(capsys, monkeypatch):
                     InitResult([], [], True, None)])
     monkeypatch.setattr(schema_module, "init", lambda url: next(results))
     code, out, err = run(capsys, "centre", "init", URL)
-    assert code == 0
-    assert out == (f"{SHOWN}: schema upgraded to version 3; roles created: triage_field; grants "
-                   "renewed; map view triage.building_map with lat/lon\n")
-    assert err == "triage centre: note: PostGIS is not installed; the map view has lat/lon\n"
-    code, out, _ = run(capsys, "centre", "init", URL)
-    assert out == (f"{SHOWN}: schema already current; roles triage_field and triage_read "
+    assert code == 0 and out == ""
+    assert err == (f"{SHOWN}: schema upgraded to version 3; roles created: triage_field; grants "
+                   "renewed; map view triage.building_map with lat/lon\n"
+                   "triage centre init: note: PostGIS is not installed; the map view has "
+                   "lat/lon\n")
+    code, out, err = run(capsys, "centre", "init", URL)
+    assert out == "" and err == (f"{SHOWN}: schema already current; roles triage_field and triage_read "
                    "present; grants renewed; map view triage.building_map with PostGIS points\n")
 
 

@@ -89,7 +89,7 @@ def test_two_different_entries_write_no_key(tmp_path: Path):
         [("passphrase for the new key: ", SECRET), ("the same passphrase again: ", "other")],
         tmp_path, tmp_path / "home")
     assert code == 1
-    assert "triage key: passphrase: the two entries differ; no key was written" in screen
+    assert "triage key new: passphrase: the two entries differ; no key was written" in screen
     assert not (tmp_path / "k.key").exists() and not (tmp_path / "k.pub").exists()
 
 
@@ -117,7 +117,7 @@ def _key_new(capsys, out: Path) -> tuple[int, str]:
 def test_an_empty_passphrase_is_refused(tmp_path, capsys, monkeypatch):
     asked = _scripted(monkeypatch, "")
     code, err = _key_new(capsys, tmp_path / "k.key")
-    assert (code, err) == (1, "triage key: passphrase: must not be empty (or use "
+    assert (code, err) == (1, "triage key new: passphrase: must not be empty (or use "
                               "--no-passphrase)\n")
     assert asked == ["passphrase for the new key: "]
     assert not (tmp_path / "k.key").exists()
@@ -126,7 +126,7 @@ def test_an_empty_passphrase_is_refused(tmp_path, capsys, monkeypatch):
 def test_differing_entries_are_refused(tmp_path, capsys, monkeypatch):
     asked = _scripted(monkeypatch, SECRET, SECRET + " ")
     code, err = _key_new(capsys, tmp_path / "k.key")
-    assert (code, err) == (1, "triage key: passphrase: the two entries differ; no key was "
+    assert (code, err) == (1, "triage key new: passphrase: the two entries differ; no key was "
                               "written\n")
     assert asked == ["passphrase for the new key: ", "the same passphrase again: "]
     assert not (tmp_path / "k.key").exists()
@@ -159,5 +159,5 @@ def test_no_terminal_and_no_variable_is_one_line(tmp_path, capsys, monkeypatch):
     monkeypatch.delenv("TRIAGE_KEY_PASSPHRASE", raising=False)
     monkeypatch.setattr(sys.stdin, "isatty", lambda: False)
     code, err = _key_new(capsys, tmp_path / "k.key")
-    assert (code, err) == (1, "triage key: no passphrase: set TRIAGE_KEY_PASSPHRASE, or use "
+    assert (code, err) == (1, "triage key new: no passphrase: set TRIAGE_KEY_PASSPHRASE, or use "
                               "--no-passphrase\n")

@@ -41,7 +41,8 @@ def test_a_reinspection_file_finds_its_earlier_survey_in_the_database(tmp_path, 
     out = tmp_path / "r.pdf"
     code, said, err = run(capsys, "--db", str(db), "report", str(second), "-o", str(out))
     assert code == 0, err
-    assert said.startswith(f"report written to {out} (") and "store revision" not in said
+    assert said == ""   # the status line goes to standard error
+    assert err.startswith(f"report written to {out} (") and "store revision" not in err
     text = _text(out)
     assert SINCE in text and "worsened from class III to class V" in text
 

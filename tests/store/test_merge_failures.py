@@ -101,9 +101,10 @@ def test_the_merge_command_names_each_source_and_goes_on_past_a_missing_one(tmp_
     code, out, err = cli("merge", str(a), str(tmp_path / "missing.db"), str(b), "--into",
                          str(target))
     assert code == 1   # a source was skipped
-    assert out.splitlines() == [f"merged {a}: 1 added, 0 brought up to date, 0 unchanged",
+    assert out == ""   # status lines go to standard error, in the sources' order
+    assert err.splitlines() == [f"merged {a}: 1 added, 0 brought up to date, 0 unchanged",
+                                f"triage merge: {tmp_path / 'missing.db'}: no such file; skipped",
                                 f"merged {b}: 1 added, 0 brought up to date, 0 unchanged"]
-    assert err == f"triage merge: {tmp_path / 'missing.db'}: no such file; skipped\n"
     with Store.open(target) as st:
         assert sorted(r.building for r in st.list_surveys()) == ["Harbour Flats", "Quay Stores"]
 

@@ -198,7 +198,14 @@ class SurveyScreen(Screen[None]):
     # --- storeys -------------------------------------------------------------------------
 
     def on_option_list_option_highlighted(self, event: OptionList.OptionHighlighted) -> None:
-        """Another storey picked in the list."""
+        """Another storey picked in the list.
+
+        A highlight message that arrives after the list has moved on (a storey key acted on
+        at once while the message waited in the queue) is stale and is ignored: acting on it
+        would move the view back, and a removal that follows would take the wrong storey.
+        """
+        if event.option_index != event.option_list.highlighted:
+            return
         oid = event.option.id
         if oid is None or not oid.startswith("st-"):
             return

@@ -7,8 +7,9 @@ names the member kinds an inspector counts, the signs of the one sign table
 a short description in our words of each damage class; and the hazard check list, grouped.
 A form never defines a sign or a class of its own.
 
-Every file is validated on load: a malformed or incomplete form raises `FormError`, one line
-naming the file, the key and the rule, and the tool refuses to start on it (`check_forms()`).
+Every file is validated on load: a malformed or incomplete form raises `FormError`, whose lines
+name the file, the key and the rule, one line per rule broken (`str()` is the first), and the
+tool refuses to start on it (`check_forms()`).
 
     from triage.forms import load_form
     form = load_form("rc_frame")
@@ -42,7 +43,21 @@ HazardGroupName = Literal[
 
 
 class FormError(InputRefused, ValueError):
-    """A form file broke a rule; `str()` is one line naming the file, the key and the rule."""
+    """A form file broke a rule; `str()` is one line naming the file, the key and the rule.
+
+    `all_messages` holds one such line per rule the file breaks (the command line prints
+    each), the first of them being `str()`.
+    """
+
+    def __init__(self, message: str, all_messages: list[str] | None = None) -> None:
+        super().__init__(message)
+        self.all_messages = all_messages or [message]
+
+    @classmethod
+    def of(cls, path: Path, problems: list[str]) -> FormError:
+        """The refusal of a file breaking `problems` (at least one), each line naming it."""
+        lines = [f"{path}: {p}" for p in problems]
+        return cls(lines[0], lines)
 
 
 class _Model(BaseModel):
@@ -151,79 +166,84 @@ def _loc(loc: tuple[int | str, ...]) -> str:
     return out or "(form)"
 
 
-def _first_error(err: ValidationError) -> str:
-    e = err.errors(include_url=False)[0]
-    loc = tuple(e.get("loc", ()))
-    kind = e.get("type", "")
-    if kind == "extra_forbidden":
-        rule = f"unknown key {loc[-1]!r} (not part of {FORMAT})"
-    elif kind == "missing":
-        rule = "required key is missing"
-    else:
-        msg = str(e.get("msg", kind))
-        if msg.startswith("Input should"):
-            msg = "must" + msg[len("Input should"):]
-        rule = msg[0].lower() + msg[1:] if msg else kind
-    more = len(err.errors()) - 1
-    return f"{_loc(loc)}: {rule}" + (f" (and {more} more)" if more > 0 else "")
+def _error_lines(err: ValidationError) -> list[str]:
+    """One line per pydantic error: `key.path: the rule`."""
+    out = []
+    for e in err.errors(include_url=False):
+        loc = tuple(e.get("loc", ()))
+        kind = e.get("type", "")
+        if kind == "extra_forbidden":
+            rule = f"unknown key {loc[-1]!r} (not part of {FORMAT})"
+        elif kind == "missing":
+            rule = "required key is missing"
+        else:
+            msg = str(e.get("msg", kind))
+            if msg.startswith("Input should"):
+                msg = "must" + msg[len("Input should"):]
+            rule = msg[0].lower() + msg[1:] if msg else kind
+        out.append(f"{_loc(loc)}: {rule}")
+    return out
 
 
-def _check(f: FormFile, stem: str) -> str | None:
-    """Rules across keys and against the standards tables; the first broken one, or None."""
+def _check(f: FormFile, stem: str) -> list[str]:
+    """Rules across keys and against the standards tables: every one broken, in file order.
+
+    A system that is not one of the tables' stops there: the sign and hazard rules depend on it.
+    """
     std = standards.load()
+    out: list[str] = []
     if f.system != stem:
-        return f"system: {f.system!r} does not match the file name {stem!r}.toml"
+        out.append(f"system: {f.system!r} does not match the file name {stem!r}.toml")
     if f.system not in std.systems:
-        return (f"system: {f.system!r} is not a structural system of "
-                f"triage/standards/systems.toml (known: {', '.join(std.systems)})")
+        return [*out, f"system: {f.system!r} is not a structural system of "
+                f"triage/standards/systems.toml (known: {', '.join(std.systems)})"]
     seen_kinds: set[str] = set()
     for ki, k in enumerate(f.kinds):
         if k.kind in seen_kinds:
-            return f"kinds[{ki}].kind: {k.kind!r} is listed twice; each kind once"
+            out.append(f"kinds[{ki}].kind: {k.kind!r} is listed twice; each kind once")
         seen_kinds.add(k.kind)
         seen_signs: set[str] = set()
         for si, s in enumerate(k.signs):
             at = f"kinds[{ki}].signs[{si}].sign"
             sign = std.signs.get(s.sign)
             if sign is None:
-                return (f"{at}: {s.sign!r} is not a key of the sign table "
-                        f"triage/standards/signs.toml (known: {', '.join(std.signs)})")
-            if k.kind not in sign.kinds:
-                return (f"{at}: {s.sign!r} is not a sign of a {k.kind} in the sign table "
-                        f"(it applies to: {', '.join(sign.kinds)})")
-            if f.system not in sign.systems:
-                return (f"{at}: {s.sign!r} is not a sign of {f.system} in the sign table "
-                        f"(its systems: {', '.join(sign.systems)})")
+                out.append(f"{at}: {s.sign!r} is not a key of the sign table "
+                           f"triage/standards/signs.toml (known: {', '.join(std.signs)})")
+            elif k.kind not in sign.kinds:
+                out.append(f"{at}: {s.sign!r} is not a sign of a {k.kind} in the sign table "
+                           f"(it applies to: {', '.join(sign.kinds)})")
+            elif f.system not in sign.systems:
+                out.append(f"{at}: {s.sign!r} is not a sign of {f.system} in the sign table "
+                           f"(its systems: {', '.join(sign.systems)})")
             if s.sign in seen_signs:
-                return f"{at}: {s.sign!r} is listed twice for {k.kind}"
+                out.append(f"{at}: {s.sign!r} is listed twice for {k.kind}")
             seen_signs.add(s.sign)
     on_form = {s.sign for k in f.kinds for s in k.signs}
-    for key, sign in std.signs.items():
-        if f.system in sign.systems and key not in on_form:
-            return (f"kinds: sign {key!r} of {f.system} (sign table) is on no member kind of "
-                    f"the form (add it to one of: {', '.join(sign.kinds)})")
+    out += [f"kinds: sign {key!r} of {f.system} (sign table) is on no member kind of the form "
+            f"(add it to one of: {', '.join(sign.kinds)})"
+            for key, sign in std.signs.items() if f.system in sign.systems and key not in on_form]
     groups = [g.group for g in f.hazards]
-    if len(set(groups)) != len(groups):
-        dup = next(g for g in groups if groups.count(g) > 1)
-        return f"hazards: group {dup!r} is listed twice"
+    out += [f"hazards: group {g!r} is listed twice" for g in dict.fromkeys(groups)
+            if groups.count(g) > 1]
     seen_h: set[str] = set()
     for gi, g in enumerate(f.hazards):
         for hi, h in enumerate(g.items):
             at = f"hazards[{gi}].items[{hi}].hazard"
             hk = std.hazards.get(h.hazard)
             if hk is None:
-                return (f"{at}: {h.hazard!r} is not a hazard kind of "
-                        f"triage/standards/hazards.toml (known: {', '.join(std.hazards)})")
-            if hk.group != g.group:
-                return (f"{at}: {h.hazard!r} belongs to the group {hk.group!r} "
-                        f"(triage/standards/hazards.toml), not {g.group!r}")
+                out.append(f"{at}: {h.hazard!r} is not a hazard kind of "
+                           f"triage/standards/hazards.toml (known: {', '.join(std.hazards)})")
+            elif hk.group != g.group:
+                out.append(f"{at}: {h.hazard!r} belongs to the group {hk.group!r} "
+                           f"(triage/standards/hazards.toml), not {g.group!r}")
             if h.hazard in seen_h:
-                return f"{at}: {h.hazard!r} is listed twice"
+                out.append(f"{at}: {h.hazard!r} is listed twice")
             seen_h.add(h.hazard)
     missing = [k for k in std.hazards if k not in seen_h]
     if missing:
-        return f"hazards: the check list lacks {', '.join(missing)} (every hazard kind is on it)"
-    return None
+        out.append(f"hazards: the check list lacks {', '.join(missing)} (every hazard kind is "
+                   "on it)")
+    return out
 
 
 def read_form_file(path: Path) -> Form:
@@ -241,10 +261,10 @@ def read_form_file(path: Path) -> Form:
     try:
         f = FormFile.model_validate(raw)
     except ValidationError as err:
-        raise FormError(f"{path}: {_first_error(err)}") from None
-    problem = _check(f, path.stem)
-    if problem:
-        raise FormError(f"{path}: {problem}")
+        raise FormError.of(path, _error_lines(err)) from None
+    problems = _check(f, path.stem)
+    if problems:
+        raise FormError.of(path, problems)
     return Form(
         system=f.system, title=f.title, summary=f.summary, readings_hint=f.readings,
         kinds=f.kinds,
@@ -268,15 +288,23 @@ def _load_all(folder: str, stamp: tuple[tuple[str, int, int], ...]) -> dict[str,
         raise FormError(f"{base}: the folder of form files is missing")
     known = standards.system_keys()
     forms: dict[str, Form] = {}
-    for path in sorted(base.glob("*.toml")):
+    problems: list[str] = []   # every rule broken, in every file, one line each
+    files = sorted(base.glob("*.toml"))
+    for path in files:
         if path.stem not in known:
-            raise FormError(f"{path}: {path.stem!r} is not a structural system of "
+            problems.append(f"{path}: {path.stem!r} is not a structural system of "
                             f"triage/standards/systems.toml (known: {', '.join(known)})")
-        forms[path.stem] = read_form_file(path)
-    absent = [k for k in known if k not in forms]
+            continue
+        try:
+            forms[path.stem] = read_form_file(path)
+        except FormError as err:
+            problems += err.all_messages
+    absent = [k for k in known if k not in {p.stem for p in files}]
     if absent:
-        raise FormError(f"{base}: no form file for {', '.join(absent)} "
+        problems.append(f"{base}: no form file for {', '.join(absent)} "
                         "(one <system>.toml per structural system)")
+    if problems:
+        raise FormError(problems[0], problems)
     return {k: forms[k] for k in known}
 
 
@@ -296,7 +324,10 @@ def load_form(system_key: str, folder: Path | None = None) -> Form:
 
 
 def check_forms(folder: Path | None = None) -> None:
-    """Validate every form file; raise `FormError` (one line) so the tool refuses to start."""
+    """Validate every form file; raise `FormError` so the tool refuses to start.
+
+    Its `all_messages` name every rule broken in every file, one line each.
+    """
     load_forms(folder)
 
 

@@ -14,7 +14,7 @@ from triage.model import parse_survey
 
 DOCS = Path(__file__).resolve().parents[2] / "docs"
 FORMATS = ("triage-verify/1", "triage-keys/1", "triage-import/1", "triage-merge/1",
-           "triage-backup/1", "triage-summary/1")
+           "triage-backup/1", "triage-summary/1", "triage-list/1")
 
 
 def _json(out: str) -> dict:
@@ -158,10 +158,17 @@ def test_verify_json_for_each_verdict_with_the_texts_message(tmp_path, cli, two_
     assert code == 4
 
 
-def test_list_json_stays_an_array_of_surveys(tmp_path, cli, two_surveys):
+def test_list_json_names_its_format_and_has_the_rows_of_the_text(tmp_path, cli, two_surveys):
     db = str(tmp_path / "f.db")
     assert cli("--db", db, "import", *map(str, two_surveys))[0] == 0
-    rows = json.loads(cli("--db", db, "list", "--format", "json")[1])
-    assert isinstance(rows, list) and {r["building"] for r in rows} == {
-        "Test House", "Ōtaki 商店 Stores"}
+    obj = _json(cli("--db", db, "list", "--format", "json")[1])
+    assert obj["format"] == "triage-list/1" and obj["count"] == 2
+    rows = obj["surveys"]
+    assert {r["building"] for r in rows} == {"Test House", "Ōtaki 商店 Stores"}
     assert str(parse_survey(two_storey_frame()).survey_id) in {r["id"] for r in rows}
+    text = cli("--db", db, "list")[1]
+    assert obj["caution"] in text
+    for r in rows:   # the text's row starts with the code, the id's first 8 characters
+        assert r["code"] == r["id"][:8]
+        row = next(line for line in text.splitlines() if line.startswith(r["code"] + "  "))
+        assert r["at"] in row and r["building"][:6] in row

@@ -96,6 +96,23 @@ def test_form_to_dash_is_the_pdf_a_file_gets(tmp_path):
     assert got.stderr.decode().startswith("standard output: paper form for concrete frame (rc_frame)")
 
 
+def test_compare_to_dash_is_the_pdf_a_file_gets(tmp_path):
+    from triage.resources import samples_dir
+
+    flats = [str(samples_dir() / f"flats_mariner_court_{n}.json") for n in (1, 2)]
+    to_file = tmp_path / "c.pdf"
+    assert triage("compare", *flats, "-o", str(to_file)).returncode == 0
+    got = triage("compare", *flats, "-o", "-")
+    assert got.returncode == 0 and got.stdout == to_file.read_bytes()
+    said = got.stderr.decode()
+    assert said.startswith("comparison written to standard output (") and len(
+        said.splitlines()) == 1
+    # and the earlier survey may come from standard input meanwhile
+    got = triage("compare", "-", flats[1], "-o", "-",
+                 stdin=Path(flats[0]).read_bytes())
+    assert got.returncode == 0 and got.stdout == to_file.read_bytes()
+
+
 def test_backup_to_dash_streams_a_whole_database(tmp_path, survey_file):
     db = str(tmp_path / "f.db")
     assert triage("--db", db, "import", str(survey_file)).returncode == 0
@@ -132,7 +149,7 @@ class _Terminal(io.StringIO):
 
 
 @pytest.mark.parametrize("argv", [["report", "FILE", "-o", "-"], ["form", "rc_frame", "-o", "-"],
-                                  ["backup", "-o", "-"]])
+                                  ["backup", "-o", "-"], ["compare", "FILE", "FILE", "-o", "-"]])
 def test_binary_output_to_a_terminal_is_refused_and_nothing_written(argv, tmp_path, survey_file,
                                                                    cli, monkeypatch):
     db = str(tmp_path / "f.db")
@@ -187,6 +204,8 @@ def test_commands_that_write_files_print_nothing_on_standard_output(tmp_path, su
         "report": ["--db", db, "report", sid, "-o", str(tmp_path / "r.pdf"), "--key",
                    str(tmp_path / "t.key")],
         "form": ["form", "rc_frame", "-o", str(tmp_path / "f.pdf")],
+        "compare": ["compare", str(survey_file), str(tmp_path / "e.json"), "-o",
+                    str(tmp_path / "c.pdf")],
     }
     for name, argv in runs.items():
         code, out, err = cli(*argv)

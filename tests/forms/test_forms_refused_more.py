@@ -69,3 +69,47 @@ def test_a_system_not_in_the_table(folder: Path) -> None:  # noqa: F811
         read_form_file(p)
     assert str(err.value).startswith(f"{p}: system: 'bamboo_frame' is not a structural system "
                                      "of triage/standards/systems.toml (known: rc_frame, ")
+
+
+def test_every_rule_broken_in_every_file_is_listed_one_line_each(
+        folder: Path, monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture[str],
+        tmp_path: Path) -> None:  # noqa: F811
+    # rc_frame: an unknown key (the model) and, once that is mended, two rules across keys;
+    # rc_wall: a hazard off its check list. Each is named; none hides behind "and N more".
+    frame = folder / "rc_frame.toml"
+    text = frame.read_text(encoding="utf-8")
+    frame.write_text(text.replace('title = "Reinforced concrete frame"',
+                                  'title = "Reinforced concrete frame"\ncolour = "blue"\n'
+                                  'shade = "dark"', 1), encoding="utf-8")
+    with pytest.raises(FormError) as err:
+        read_form_file(frame)
+    assert err.value.all_messages == [f"{frame}: colour: unknown key 'colour' (not part of "
+                                      "triage-form/1)",
+                                      f"{frame}: shade: unknown key 'shade' (not part of "
+                                      "triage-form/1)"]
+    assert str(err.value) == err.value.all_messages[0] and "more" not in str(err.value)
+    frame.write_text(text.replace('{ hazard = "ground_failure"', '{ hazard = "tsunami"', 1)
+                     .replace('{ sign = "bar_buckled"', '{ sign = "bar_bent"', 1),
+                     encoding="utf-8")
+    wall = folder / "rc_wall.toml"
+    wall.write_text("".join(ln for ln in wall.read_text(encoding="utf-8").splitlines(
+        keepends=True) if 'hazard = "ground_failure"' not in ln), encoding="utf-8")
+    with pytest.raises(FormError) as err:
+        check_forms(folder)
+    got = err.value.all_messages
+    assert [line.split(": ")[1] for line in got] == [
+        "kinds[0].signs[2].sign", "kinds", "hazards[0].items[1].hazard", "hazards",
+        "hazards"], got
+    assert got[0].startswith(f"{frame.resolve()}: ") and got[-1].startswith(f"{wall.resolve()}")
+    assert "'bar_bent' is not a key of the sign table" in got[0]
+    assert "'tsunami' is not a hazard kind" in got[2]
+    # the command line prints each on its own line, the last saying why nothing starts
+    from triage import forms
+    from triage.cli import main
+
+    monkeypatch.setattr(forms, "forms_dir", lambda: folder)
+    assert main(["form", "rc_frame", "-o", str(tmp_path / "f.pdf")]) == 1
+    lines = capsys.readouterr().err.splitlines()
+    assert lines == [f"triage form: {m}" for m in got[:-1]] + [
+        f"triage form: {got[-1]} (the tool will not start on a bad form file)"]
+    assert not (tmp_path / "f.pdf").exists()

@@ -169,8 +169,9 @@ def test_cli_writes_the_pdf(capsys, tmp_path: Path):
     out = tmp_path / "cmp.pdf"
     code, said, err = run(capsys, "compare", str(FLATS[0]), str(FLATS[1]), "-o", str(out))
     assert code == 0, err
-    assert said.startswith(f"comparison written to {out} (") and "UNSIGNED working document" in said
-    assert "13 spots compared, 3 beyond the uncertainty" in said
+    assert said == ""   # the status line goes to standard error, as every command's does
+    assert err.startswith(f"comparison written to {out} (") and "UNSIGNED working document" in err
+    assert "13 spots compared, 3 beyond the uncertainty" in err and len(err.splitlines()) == 1
     text = " ".join(pages(out.read_bytes()))
     assert "MOVEMENT BEYOND CHANCE" in text
     # the same input, the same bytes (a working document is reproducible)

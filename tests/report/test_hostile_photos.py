@@ -169,7 +169,7 @@ def test_export_to_a_folder_backup_and_merge_carry_the_photos(tmp_path, capsys):
     src = _survey(field, {"member": ["img/c3.jpg"], "hazard": ["photo of parapet.png"]})
     lap = tmp_path / "laptop.db"
     assert _run(capsys, "--db", str(lap), "import", str(src))[0] == 0
-    sid = json.loads(_run(capsys, "--db", str(lap), "list", "--format", "json")[1])[0]["id"]
+    sid = json.loads(_run(capsys, "--db", str(lap), "list", "--format", "json")[1])["surveys"][0]["id"]
     for f in field.rglob("*"):
         if f.is_file():
             f.unlink()

@@ -89,7 +89,7 @@ def test_the_comparison_section_reads_its_times():
         new = Side("2026-12-01T10:30:00+13:00")
 
         def lines(self):
-            return [f"tier: hold on {self.old.at[:16]} -> evacuate on {self.new.at[:16]}",
+            return [f"tier: hold on {self.old.at} -> evacuate on {self.new.at}",
                     "seen at 2026-12-01T10:31:00Z"]
 
     got = comparison_lines(Cmp())

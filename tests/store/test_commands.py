@@ -165,13 +165,40 @@ def test_list_text_and_json(tmp_path, cli):
     assert code == 0
     assert out.startswith("CAUTION: Indicative only")
     sid = str(parse_survey(sample_dict()).survey_id)
-    row = next(line for line in out.splitlines() if line.startswith(sid))
+    assert sid not in out   # the code, not the whole id
+    row = next(line for line in out.splitlines() if line.startswith(sid[:8] + "  "))
     assert "○ occupy" in row and "Harbour Flats" in row and "no report" in row
+    assert out.splitlines()[2].startswith("code      building")
+    # the code shown is one export takes
+    code, _, err = cli("--db", str(db), "export", row.split()[0], "-o", str(tmp_path / "e.json"))
+    assert code == 0, err
     code, out, _ = cli("--db", str(db), "list", "--format", "json")
     data = json.loads(out)
-    assert data[0]["id"] == sid and data[0]["tier"] == "occupy"
-    assert {"id", "building", "at", "tier", "provisional", "edited_since_report",
-            "conflict"} <= set(data[0])
+    assert data["format"] == "triage-list/1" and data["count"] == 1
+    (first,) = data["surveys"]
+    assert first["id"] == sid and first["code"] == sid[:8] and first["tier"] == "occupy"
+    assert {"id", "code", "building", "at", "tier", "provisional", "edited_since_report",
+            "conflict"} <= set(first)
+
+
+def test_list_codes_grow_where_two_ids_share_their_first_8_characters(tmp_path, cli):
+    db = str(tmp_path / "f.db")
+    ids = ["0c3d2a1b-0000-4000-8000-000000000001", "0c3d2a1b-0000-4000-8000-000000000002",
+           "0c3d2a1c-0000-4000-8000-000000000003"]
+    for i, sid in enumerate(ids):
+        d = sample_dict()
+        d["id"] = sid
+        assert cli("--db", db, "import", str(write_json(tmp_path / f"{i}.json", d)))[0] == 0
+    out = cli("--db", db, "list")[1].splitlines()
+    assert out[2].startswith("code" + " " * 34 + "building")  # 36 cells and the gap
+    rows = [line for line in out if line.startswith("0c3d2a1")]
+    assert sorted(r[:38].rstrip() for r in rows) == [*ids[:2], "0c3d2a1c"]
+    obj = json.loads(cli("--db", db, "list", "--format", "json")[1])
+    assert sorted(r["code"] for r in obj["surveys"]) == [*ids[:2], "0c3d2a1c"]
+    # each code shown resolves to its own survey
+    for r in obj["surveys"]:
+        got = cli("--db", db, "export", r["code"], "-o", "-")
+        assert got[0] == 0 and json.loads(got[1])["id"] == r["id"]
 
 
 def test_export_of_an_unknown_id_is_refused(tmp_path, cli):

@@ -72,7 +72,7 @@ def test_escape_sequences_in_names_never_reach_the_terminal(tmp_path, cli):
     assert "Harbour\\u001b[2J Flats\\u001…  " in outputs["list"]
     # JSON output stays JSON, with the names as they were stored
     listed = json.loads(outputs["list --format json"])
-    assert listed[0]["building"] == HOSTILE
+    assert listed["surveys"][0]["building"] == HOSTILE
     # a refusal naming the hostile file is escaped too
     code, out, err = cli("--db", db, "import", str(tmp_path / f"missing{CLEAR}.json"))
     assert code == 1 and not _raw(err) and "missing\\u001b[2J.json" in err
@@ -108,7 +108,7 @@ def test_export_through_a_symlink_writes_its_target(tmp_path, cli):
     d = sample_dict()
     f = write_json(tmp_path / "s.json", d)
     assert cli("--db", db, "import", str(f))[0] == 0
-    sid = json.loads(cli("--db", db, "list", "--format", "json")[1])[0]["id"]
+    sid = json.loads(cli("--db", db, "list", "--format", "json")[1])["surveys"][0]["id"]
     target = tmp_path / "kept" / "survey.json"
     target.parent.mkdir()
     target.write_text("old")

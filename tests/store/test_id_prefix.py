@@ -74,3 +74,15 @@ def test_a_long_list_of_matches_is_cut_short(monkeypatch: pytest.MonkeyPatch) ->
     assert ids[9] in msg and ids[10] not in msg
     assert msg.endswith(" and 3 more); give more of the id")
     assert common.resolve_id(Reader(), "abcd0012") == ids[12]
+
+
+def test_survey_codes_are_8_characters_unless_two_ids_share_them() -> None:
+    d = "abcd1235-1111-4000-8000-00000000000d"
+    codes = common.survey_codes([A, B, C, d, A])   # a repeat counts once
+    assert codes == {A: A, B: B, C: "0f0f0f0f", d: "abcd1235"}
+    # one more character than the ids share, and never ending on the hyphen
+    e, f = "abcd1236-2222-4000-8000-00000000000e", "abcd1236-3333-4000-8000-00000000000f"
+    assert common.survey_codes([e, f]) == {e: "abcd1236-2", f: "abcd1236-3"}
+    g, h = "abcd12370000", "abcd1237-000"
+    assert common.survey_codes([g, h]) == {g: "abcd12370", h: "abcd1237-0"}
+    assert common.survey_codes([]) == {}

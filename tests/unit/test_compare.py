@@ -24,6 +24,7 @@ from triage.assess.compare import (
     match_groups,
     sidak_bound,
 )
+from triage.assess.text import summary
 from triage.model import parse_survey
 
 BUILDING = "5b0c8f0e-1d1e-4f2a-9a3b-7c6d5e4f3a21"
@@ -308,6 +309,16 @@ def test_new_and_cleared_hazards_in_words():
     assert "new hazard: falling hazard at parapet" in text
     assert "no longer reported: services hazard at gas meter" in text
     assert "falling_hazard" not in text
+
+
+def test_times_are_written_as_the_text_output_writes_them():
+    # ISO 8601 as recorded, with the zone, as `triage assess` and `triage list` print them;
+    # never cut to the minute without its zone
+    o, n = two([storey("G", [at("A", "x", 1.0)])], [storey("G", [at("A", "x", 1.2)])])
+    c = cmp(o, n)
+    assert c.lines()[0] == ("tier: ○ occupy on 2026-11-28T10:00:00+13:00 -> ○ occupy on "
+                            "2026-11-30T10:00:00+13:00 (unchanged)")
+    assert o.inspection.at.isoformat() in summary(o, assess(o))
 
 
 def _write_pair(tmp_path, o, n, other_building=False):

@@ -127,11 +127,13 @@ class Comparison(_Out):
     def lines(self) -> list[str]:
         """Plain sentences of what changed, for the text output and the report (words, not keys).
 
-        The text is not escaped: a terminal writer passes it through `triage.safetext.visible`.
+        Times are written as the rest of the text output writes them: ISO 8601 as recorded,
+        with the zone offset (the report prints them in words). The text is not escaped: a
+        terminal writer passes it through `triage.safetext.visible`.
         """
         o, n = self.old, self.new
-        out = [f"tier: {tier_words(o.tier)} on {o.at[:16]} -> {tier_words(n.tier)} on "
-               f"{n.at[:16]}" + ("" if self.tier_changed else " (unchanged)"),
+        out = [f"tier: {tier_words(o.tier)} on {o.at} -> {tier_words(n.tier)} on "
+               f"{n.at}" + ("" if self.tier_changed else " (unchanged)"),
                f"structural performance level: {_level(o.performance_level)} -> "
                f"{_level(n.performance_level)}" + ("" if self.level_changed else " (unchanged)")]
         out.append(self.building_words())

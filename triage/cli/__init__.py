@@ -183,8 +183,10 @@ def _check_forms() -> None:
 
     try:
         check_forms()
-    except FormError as err:
-        raise UserError(f"{err} (the tool will not start on a bad form file)") from None
+    except FormError as err:   # every rule broken, one line each; the last says why we stop
+        lines = list(err.all_messages)
+        lines[-1] += " (the tool will not start on a bad form file)"
+        raise UserError(lines[0], lines=lines) from None
 
 
 def entry() -> None:

@@ -189,6 +189,39 @@ def resolve_id(reader: SurveyReader, given: str) -> str:
                     "give more of the id")
 
 
+# A survey code: the first CODE_LEN characters of the id (docs/formats.md, "Survey codes").
+CODE_LEN = 8
+
+
+def survey_codes(ids: list[str]) -> dict[str, str]:
+    """Each id's code: its first `CODE_LEN` characters, longer only where two ids share them.
+
+    A code is the shortest start of its id, of at least `CODE_LEN` characters, that no other
+    of `ids` starts with (a hyphen is never its last character), so every code shown is one
+    that `resolve_id` takes. `ids` should be every survey in the database, hidden ones too.
+    """
+    order = sorted(set(ids))
+    out: dict[str, str] = {}
+    for i, sid in enumerate(order):
+        shared = max((_common(sid, order[j]) for j in (i - 1, i + 1) if 0 <= j < len(order)),
+                     default=0)
+        n = min(max(CODE_LEN, shared + 1), len(sid))
+        if sid[n - 1:n] == "-" and n < len(sid):
+            n += 1
+        out[sid] = sid[:n]
+    return out
+
+
+def _common(a: str, b: str) -> int:
+    """How many characters `a` and `b` share from the start."""
+    n = 0
+    for x, y in zip(a, b, strict=False):
+        if x != y:
+            break
+        n += 1
+    return n
+
+
 def yes_no(v: bool | None) -> str:
     """"yes", "no", or "—" when not known, as the tables print a flag."""
     return "—" if v is None else ("yes" if v else "no")

@@ -1,8 +1,9 @@
-"""`triage compare OLD NEW [--format text|json | -o FILE.pdf] [--force]`: what changed.
+"""`triage compare OLD NEW [--format text|json | -o FILE.pdf|-] [--force]`: what changed.
 
 With `-o FILE.pdf` the comparison is written as a PDF, an unsigned working document (through
 `triage.output.write_output`: a regular file replaced atomically, a device or FIFO written in
-place, nothing else replaced).
+place, nothing else replaced); `-o -` writes the PDF to standard output (never to a terminal).
+The status line saying what was written goes to standard error, as every command's does.
 """
 
 from __future__ import annotations
@@ -14,7 +15,7 @@ from typing import TYPE_CHECKING
 
 from .common import add_command, open_reader, read_survey, resolve_id
 from .errors import UserError
-from .streams import is_std
+from .streams import binary_stdout, is_std, shown, status, write_bytes
 
 if TYPE_CHECKING:
     from triage.assess import Assessment
@@ -37,8 +38,9 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--format", choices=("text", "json"), default=None,
                    help="text for people (the default) or json: the triage-comparison/2 "
                    "object (docs/formats.md); not with -o")
-    p.add_argument("-o", "--output", metavar="FILE.pdf",
-                   help="write the comparison as a PDF (an unsigned working document)")
+    p.add_argument("-o", "--output", metavar="FILE.pdf|-",
+                   help="write the comparison as a PDF (an unsigned working document); - "
+                   "writes it to standard output (not to a terminal)")
     p.add_argument("--force", action="store_true",
                    help="compare even when the two surveys are of different buildings")
     p.set_defaults(func=run)
@@ -96,10 +98,13 @@ def run(args: argparse.Namespace) -> int:
 
 
 def _check_output(args: argparse.Namespace) -> None:
-    """Refuse -o with --format, or naming one of the two survey files, before any work."""
+    """Refuse -o with --format, naming one of the two survey files, or `-` on a terminal."""
     if args.format is not None:
         raise UserError(f"--format {args.format}: not with -o, which writes the comparison PDF; "
                         "give one or the other")
+    if is_std(args.output):
+        binary_stdout("a PDF")   # refused on a terminal before any work
+        return
     out = Path(args.output)
     for given in (args.old, args.new):
         src = Path(given)
@@ -109,20 +114,19 @@ def _check_output(args: argparse.Namespace) -> None:
 
 
 def _write_pdf(args: argparse.Namespace, result: Comparison, old: Survey, new: Survey) -> int:
-    """Write the comparison PDF to -o and say so in one line."""
-    from triage.output import write_output
+    """Write the comparison PDF to -o (`-`: standard output); say so on standard error."""
     from triage.report import render_comparison
 
     try:
         data = render_comparison(result, old, new)
     except ValueError as err:
         raise UserError(str(err)) from None
-    write_output(args.output, data)
+    write_bytes(args.output, data, "a PDF")
     pages = data.count(b"/Type /Page\n")
     b = result.building_line
-    sys.stdout.write(f"comparison written to {args.output} ({pages} pages, UNSIGNED working "
-                     f"document); {b.compared} spots compared, {b.flagged} beyond the "
-                     "uncertainty; indicative only\n")
+    status(f"comparison written to {shown(args.output)} ({pages} pages, UNSIGNED working "
+           f"document); {b.compared} spots compared, {b.flagged} beyond the uncertainty; "
+           "indicative only")
     return 0
 
 

@@ -10,7 +10,16 @@ from typing import TYPE_CHECKING, Any
 
 from triage.errors import TriageError
 
-from .common import add_command, open_reader, open_store, read_survey, resolve_id, yes_no
+from .common import (
+    CODE_LEN,
+    add_command,
+    open_reader,
+    open_store,
+    read_survey,
+    resolve_id,
+    survey_codes,
+    yes_no,
+)
 from .errors import UserError, refusal_lines
 from .streams import input_path, is_std, output_path, shown, status, write_json, write_text
 
@@ -46,11 +55,12 @@ def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-ar
                    "JSON alone to standard output")
     p.set_defaults(func=run_export)
     p = add_command(sub, "list", "the surveys in the database", description=(
-        "One row per survey: id, building, time of inspection, indicative tier, whether it is "
-        "provisional, edited since its last report, or in conflict with another copy."))
+        "One row per survey: its code (the start of its id that export, report and compare "
+        "take), building, time of inspection, indicative tier, whether it is provisional, "
+        "edited since its last report, or in conflict with another copy."))
     p.add_argument("--format", choices=("text", "json"), default="text",
-                   help="text: a table for people (the default); json: an array with one "
-                   "object per survey")
+                   help="text: a table for people (the default); json: one triage-list/1 "
+                   "object with a row per survey (docs/formats.md)")
     p.add_argument("--hidden", action="store_true", help="include hidden surveys")
     p.set_defaults(func=run_list)
     p = add_command(sub, "backup", "a consistent copy of the database, safe while it is in use",
@@ -225,49 +235,66 @@ def _export_folder(st: SurveyReader, sid: str, data: dict[str, Any], folder: Pat
     return 0
 
 
-# Columns of `triage list`, in terminal cells: id, building, inspected, tier, provisional,
-# since report (the conflict column last, as wide as it is).
-LIST_WIDTHS = (36, 28, 25, 10, 11, 12)
+# Columns of `triage list`, in terminal cells: code (8, wider only where two ids share their
+# first 8 characters), building, inspected, tier, provisional, since report (the conflict
+# column last, as wide as it is).
+LIST_WIDTHS = (28, 25, 10, 11, 12)
+LIST_FORMAT = "triage-list/1"
 
 
 def run_list(args: argparse.Namespace) -> int:
-    """One row per survey: id, building, time, tier, provisional, edited since report, conflict."""
+    """One row per survey: code, building, time, tier, provisional, edited since report, conflict.
+
+    The code is the survey id's start that `export`, `report` and `compare` take (hidden
+    surveys count in making it unique, as they do in resolving it).
+    """
     st: SurveyReader = open_reader(args)
     try:
-        rows = st.list_surveys(include_hidden=args.hidden)
+        every = st.list_surveys(include_hidden=True)
     finally:
         st.close()
+    codes = survey_codes([r.id for r in every])
+    rows = every if args.hidden else [r for r in every if not r.hidden]
     if args.format == "json":
-        out = [{"id": r.id, "building": r.building, "building_id": r.building_id,
-                "address": r.address, "at": r.at, "inspector": r.inspector, "tier": r.tier,
-                "performance_level": r.level, "provisional": r.provisional,
-                "revision": r.revision, "reported_revision": r.reported_revision,
-                "edited_since_report": r.edited_since_report, "conflict": r.conflict,
-                "conflict_of": r.conflict_of, "hidden": r.hidden, "source": r.source}
-               for r in rows]
-        sys.stdout.write(json.dumps(out, ensure_ascii=False, indent=1) + "\n")
+        from triage.assess import CAUTION
+
+        write_json({"format": LIST_FORMAT, "caution": CAUTION, "surveys": [
+            {"id": r.id, "code": codes[r.id], "building": r.building,
+             "building_id": r.building_id, "address": r.address, "at": r.at,
+             "inspector": r.inspector, "tier": r.tier, "performance_level": r.level,
+             "provisional": r.provisional, "revision": r.revision,
+             "reported_revision": r.reported_revision,
+             "edited_since_report": r.edited_since_report, "conflict": r.conflict,
+             "conflict_of": r.conflict_of, "hidden": r.hidden, "source": r.source}
+            for r in rows], "count": len(rows)})
         return 0
-    sys.stdout.write("\n".join(list_lines(rows)) + "\n")
+    sys.stdout.write("\n".join(list_lines(rows, codes)) + "\n")
     return 0
 
 
-def list_lines(rows: list[SurveyRow]) -> list[str]:
-    """The text table of `triage list`: the caution, a header, one row per survey, a count."""
+def list_lines(rows: list[SurveyRow], codes: dict[str, str] | None = None) -> list[str]:
+    """The text table of `triage list`: the caution, a header, one row per survey, a count.
+
+    `codes` maps each id to its code (`survey_codes`); by default, codes among `rows`.
+    """
     from triage.assess import CAUTION, tier_words
 
-    from .table import row
+    from .table import row, width
 
-    widths = LIST_WIDTHS
+    codes = codes if codes is not None else survey_codes([r.id for r in rows])
+    shown_codes = [codes[r.id] for r in rows]
+    widths = (max([CODE_LEN, *(width(c) for c in shown_codes)]), *LIST_WIDTHS)
     lines = [f"CAUTION: {CAUTION}", "",
-             row(("survey", "building", "inspected", "tier", "provisional", "since report",
+             row(("code", "building", "inspected", "tier", "provisional", "since report",
                   "conflict"), widths)]
-    for r in rows:
+    for r, code in zip(rows, shown_codes, strict=True):
         since = {None: "no report", True: "edited", False: "unchanged"}[r.edited_since_report]
         tier = tier_words(r.tier) if r.tier else "—"
         hidden = "  (hidden)" if r.hidden else ""
-        lines.append(row((r.id, r.building, r.at, tier, yes_no(r.provisional), since,
+        lines.append(row((code, r.building, r.at, tier, yes_no(r.provisional), since,
                           f"{'CONFLICT' if r.conflict else '—'}{hidden}"), widths))
-    lines.append(f"{len(rows)} survey{'s' if len(rows) != 1 else ''}")
+    lines.append(f"{len(rows)} survey{'s' if len(rows) != 1 else ''}; a code is the start of "
+                 "the survey's id, which export, report and compare take")
     return lines
 
 

@@ -209,14 +209,14 @@ def _readings(m: ReportModel) -> list[Any]:
 
 def _storeys(m: ReportModel) -> list[Any]:
     w = [CONTENT_W / 9] * 9
-    tab = table(["storey", "height m", "drift x", "drift y", "level x", "level y", "R",
+    tab = table(["storey", "height m", "drift x", "drift y", "level x", "level y", "capacity",
                  "grade", "access"],
-                [[s.label, s.height, s.drift_x, s.drift_y, s.level_x, s.level_y, s.r, s.grade,
-                  s.access] for s in reversed(m.storeys)], w)
+                [[s.label, s.height, s.drift_x, s.drift_y, s.level_x, s.level_y, s.capacity,
+                  s.grade, s.access] for s in reversed(m.storeys)], w)
     return section("Storeys (top to bottom)", [tab, para(
         "drift: the largest absolute residual drift ratio read in the storey; level by drift "
-        "(FEMA 356 figures); R: residual seismic capacity ratio where a published method "
-        "covers the system; grade from R.", "small")])
+        f"(FEMA 356 figures); {m.capacity_caption}; grade: JBDPA's from R, or ours from a "
+        "FEMA 306 ratio (the worse where both apply).", "small")])
 
 
 def _members(m: ReportModel) -> list[Any]:

@@ -24,6 +24,7 @@ from triage.photos import PhotoLoader, folder_loader
 from triage.standards import Assumptions, Standards, load
 from triage.standards.vocabulary import words
 
+from .capacity_rows import capacity_caption
 from .method import (
     STATUS_WORDS,
     AssumptionRow,
@@ -128,6 +129,7 @@ class ReportModel:
     state: str = "UNSIGNED"  # the signed state printed on every page
     figures: list[FigureRow] = field(default_factory=list)
     status_words: list[tuple[str, str]] = field(default_factory=list)
+    capacity_caption: str = ""   # which method gave each figure of the storey table's capacity
     @property
     def footer(self) -> str:
         """The identification printed at the foot of every page (page number added there)."""
@@ -250,7 +252,8 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
                      if signer else
                      "UNSIGNED: this report carries no digital signature; nothing shows who "
                      "made it or that it is unchanged."),
-        storeys=storey_rows(a, clip), chart=points, chart_figures=figs,
+        storeys=storey_rows(a, clip), capacity_caption=capacity_caption(a),
+        chart=points, chart_figures=figs,
         members=member_rows(survey, a, clip), hazards=hazard_rows(survey, a, a_used, clip),
         repairability=repair, repairability_basis=basis,
         photos=photo_items(survey, photos if photos is not None
@@ -273,12 +276,7 @@ def build_report_model(survey: Survey, assessment: Assessment, *, revision: int 
 
 def comparison_lines(comparison: Comparison) -> list[str]:
     """The comparison's lines with its times as people read them (never raw ISO 8601)."""
-    lines = list(comparison.lines())
-    for side in ("old", "new"):
-        at = getattr(getattr(comparison, side, None), "at", None)
-        if isinstance(at, str) and len(at) >= 16:
-            lines = [line.replace(at[:16], when_iso_text(at)) for line in lines]
-    return [_ISO.sub(lambda m: when_iso_text(m.group(0)), line) for line in lines]
+    return [_ISO.sub(lambda m: when_iso_text(m.group(0)), line) for line in comparison.lines()]
 
 
 _ISO = re.compile(r"\d{4}-\d\d-\d\dT\d\d:\d\d(?::\d\d(?:\.\d+)?)?(?:Z|[+-]\d\d:\d\d)?")

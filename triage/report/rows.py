@@ -14,7 +14,7 @@ from triage.assess import Assessment, tier_words
 from triage.assess.spots import Spot, spots_of_survey
 from triage.model import Survey
 from triage.photos import PhotoLoader
-from triage.report.capacity_rows import capacity_seen
+from triage.report.capacity_rows import capacity_cell, capacity_seen
 from triage.standards import Assumptions
 from triage.standards.vocabulary import words
 
@@ -33,7 +33,7 @@ class StoreyRow:
     drift_y: str
     level_x: str
     level_y: str
-    r: str
+    capacity: str   # the residual capacity ratio and, below it, the method that gave it
     grade: str
     access: str
 
@@ -206,7 +206,7 @@ def storey_rows(a: Assessment, clip: Clip) -> list[StoreyRow]:
                       drift_x=pct(s.drift_ratio.x), drift_y=pct(s.drift_ratio.y),
                       level_x=s.performance_level.x or DASH,
                       level_y=s.performance_level.y or DASH,
-                      r=DASH if s.residual_capacity is None else f"{s.residual_capacity:.1%}",
+                      capacity=capacity_cell(a, s),
                       grade=s.damage_grade or DASH, access=words("access", s.access))
             for s in a.storeys]
 

@@ -215,7 +215,7 @@ def test_rc_wall_takes_the_worse_of_jbdpa_and_fema306_and_shows_both() -> None:
 def test_a_mode_not_kept_for_the_type_is_taken_as_unknown() -> None:
     a = _walls([{"kind": "wall", "count": 1, "mode": "web_crushing", "severity": "heavy"}])
     assert a.storeys[0].members[0].mode == "unknown"
-    assert any("web_crushing is not one FEMA 306 gives" in n for n in a.notes)
+    assert any("behaviour mode web crushing is not among the FEMA 306 modes" in n for n in a.notes)
 
 
 def test_braced_and_timber_keep_no_capacity_and_say_so() -> None:

@@ -2,7 +2,9 @@
 
 Surveys are generated from the tables themselves, so that together they use every structural
 system (in each direction), every damage sign on each kind it applies to, every hazard kind,
-every damage floor row and the rules each named assumption drives (uncertainty defaults,
+every damage floor row, every FEMA 352 connection type, every FEMA 306 behaviour mode of each
+member kind at every severity (by choice, by class and by crack width), partial inspection, and
+the rules each named assumption drives (uncertainty defaults,
 plumbness bands, the large-drift warning, the keep-out width, the all-class-V collapse rule,
 borderline, measure next, a short gauge, partial access). Every reason, note, defaulted line,
 suggestion and the whole text of `triage assess` is then searched for a snake_case key, a
@@ -21,7 +23,7 @@ from tests.helpers import make, reading, storey, tilt
 from triage.assess import assess
 from triage.assess.text import summary
 from triage.model import MEMBER_KINDS
-from triage.standards import load
+from triage.standards import SEVERITIES, connection_type_keys, load, wall_modes_of
 
 STD = load()
 SYSTEMS = list(STD.systems)
@@ -90,6 +92,32 @@ def _quiet(sx: str, sy: str, offset_mm: float, crack_mm: float | None,
                 sx=sx, sy=sy)
 
 
+def _capacity(sx: str, sy: str) -> dict[str, Any]:
+    """Every connection type, wall mode and severity, partial and no inspection, in one survey."""
+    both = [reading("x", 2.0), reading("y", 2.0)]
+    steel = [{"kind": "connection", "count": 2, "connection_type": t, "ref": f"J{i}"}
+             for i, t in enumerate(connection_type_keys())]
+    steel += [{"kind": "connection", "count": 4, "signs": ["connection_fractured"]},
+              {"kind": "connection", "count": 20, "inspected": 6, "connection_type": "G4"},
+              {"kind": "connection", "count": 10, "inspected": 1, "dir": "y"}]
+    few = [{"kind": "connection", "count": 10, "inspected": 0, "dir": "y"},
+           {"kind": "connection", "count": 10, "inspected": 1, "dir": "x"}]
+    walls: list[dict[str, Any]] = []
+    for kind in ("wall", "infill"):
+        for mode in wall_modes_of(kind):
+            walls += [{"kind": kind, "count": 1, "mode": mode, "severity": sev}
+                      for sev in SEVERITIES]
+            walls += [{"kind": kind, "count": 2, "mode": mode, "crack_mm": w, "crack_sd_mm": 0.1}
+                      for w in (0.6, 1.4, 3.0, 9.0, 20.0)]
+            walls.append({"kind": kind, "count": 1, "mode": mode, "damage_class": "III",
+                          "override_reason": "seen from the stair"})
+        walls.append({"kind": kind, "count": 3, "inspected": 1, "crack_mm": 1.0})
+    unseen = [{"kind": "wall", "count": 4, "inspected": 0, "mode": "rocking"},
+              {"kind": "infill", "count": 4, "inspected": 0}]
+    return make([storey("G", both, steel), storey("1", both, walls),
+                 storey("2", both, few + unseen)], sx=sx, sy=sy)
+
+
 def _cases() -> list[tuple[str, Any]]:
     out = []
     for i, sx in enumerate(SYSTEMS):
@@ -98,6 +126,7 @@ def _cases() -> list[tuple[str, Any]]:
             out.append((f"plumb {sx}/{sy}", _quiet(sx, sy, 5.0, None)))         # 0.25% in band
             out.append((f"quiet {sx}/{sy}", _quiet(sx, sy, 0.4, 0.18)))         # crack near 0.2
             out.append((f"unmeasured {sx}/{sy}", _quiet(sx, sy, 1.0, None, both=False)))
+            out.append((f"capacity {sx}/{sy}", _capacity(sx, sy)))
     out.append(("nothing logged", make([storey("G", [], [])])))
     return out
 
@@ -132,6 +161,11 @@ def test_the_cases_cover_every_key_they_claim():
     assert signs == set(STD.signs)
     hazards = {h.kind for s in surveys for h in s.hazards}
     assert hazards == set(STD.hazards)
+    groups = [m for s in surveys for st in s.storeys for m in st.members]
+    assert {m.connection_type for m in groups} == {None, *connection_type_keys()}
+    for kind in ("wall", "infill"):
+        assert {m.mode for m in groups if m.kind == kind} == {None, *wall_modes_of(kind)}
+        assert {m.severity for m in groups if m.kind == kind} == {None, *SEVERITIES}
     every = "\n".join(line for s in surveys for line in _lines(assess(s)))
     for row in ("brittle vertical member", "vertical member", "member of the lateral system",
                 "member outside the vertical and lateral system"):
@@ -141,7 +175,15 @@ def test_the_cases_cover_every_key_they_claim():
                  "partly entered; the survey is provisional", "not entered",
                  "disagree beyond their uncertainties", "no reading yet in",
                  "cannot establish IO", "crack widths are classed by the JBDPA bounds",
-                 "nothing to assess yet", "set by hand", "from signs seen", "from crack width"):
+                 "nothing to assess yet", "set by hand", "from signs seen", "from crack width",
+                 # residual capacity beyond concrete: every kind of line it makes
+                 "FEMA 352 floor damage index D =", "layer by layer", "too few to estimate",
+                 "no connection inspected", "FEMA 306 residual strength ratio",
+                 "behaviour mode not known at FEMA 306 severity extreme", "no wall inspected",
+                 "is not among the FEMA 306 modes", "is read for steel moment frames only",
+                 "infill panel group", "those not seen never counted as undamaged",
+                 "from FEMA 352 damage type", "from FEMA 306 severity",
+                 "beyond Collapse Prevention"):
         assert said in every, said
     for key in ("falling hazard", "concrete frame", "timber stud walls", "floor slab"):
         assert key in every or key in "\n".join(summary(s, assess(s)) for s in surveys[:4]), key

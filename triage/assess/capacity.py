@@ -19,6 +19,7 @@ from triage.standards.vocabulary import words
 
 from . import steel, walls
 from .levels import Level
+from .wording import connection_type_words, group_words, mode_words
 
 DIRS = ("x", "y")
 
@@ -93,16 +94,18 @@ def storey_capacity(survey: Survey, si: int, std: Standards, a: Assumptions) -> 
                 m = st.members[gi]
                 comp = std.walls.component_of(m.kind, getattr(systems, d))
                 assert comp is not None
-                notes.append(f"storey {st.label}, {m.kind} group {gi + 1}: mode {m.mode} is not "
-                             f"one FEMA 306 gives a {comp[1].name} in the tool: taken as not "
-                             "known (the worst of its type's modes)")
+                assert m.mode is not None
+                notes.append(f"storey {st.label}, {group_words(m.kind, gi, m.ref)}: behaviour "
+                             f"mode {mode_words(m.mode)} is not among the FEMA 306 modes the "
+                             f"tool keeps for its component type ({comp[1].name}): taken as "
+                             "not known (the worst of its type's modes)")
     for gi, m in enumerate(st.members):
         if m.connection_type is not None and not any(
                 getattr(systems, d) == steel.SYSTEM for d in DIRS
                 if m.dir is None or m.dir == d):
-            notes.append(f"storey {st.label}, connection group {gi + 1}: FEMA 352 type "
-                         f"{m.connection_type} is read for steel moment frames only; here it "
-                         "sets the group's damage class alone")
+            notes.append(f"storey {st.label}, {group_words(m.kind, gi, m.ref)}: FEMA 352 "
+                         f"damage type {connection_type_words(m.connection_type)} is read for "
+                         "steel moment frames only; here it sets the group's damage class alone")
     return StoreyCapacity(si, tuple(out), tuple(notes), by_steel, by_wall)
 
 
@@ -124,8 +127,7 @@ def partial_notes(survey: Survey) -> list[str]:
     for st in survey.storeys:
         for gi, m in enumerate(st.members):
             if m.seen < m.count:
-                ref = f" {m.ref}" if m.ref else ""
-                out.append(f"storey {st.label}, {m.kind} group {gi + 1}{ref}: {m.seen} of "
+                out.append(f"storey {st.label}, {group_words(m.kind, gi, m.ref)}: {m.seen} of "
                            f"{m.count} inspected; ratios are over the members seen, those not "
                            "seen never counted as undamaged; the survey is provisional")
     return out

@@ -25,6 +25,7 @@ from triage.standards import Assumptions, Standards
 
 from .levels import Level
 from .stats import t_quantile
+from .wording import level_words
 
 SYSTEM = "steel_moment_frame"
 FRACTURED = "connection_fractured"
@@ -173,5 +174,5 @@ def steel_reason(label: str, f: SteelFloor, std: Standards) -> str:
         how = f"mean {f.index:.2f} of all {f.count} connections inspected"
     return (f"{head}: FEMA 352 floor damage index D = {f.index:.2f} of "
             f"{std.steel.scale_max:g}, {how} ({source(std)}); residual capacity ratio "
-            f"1 - D/{std.steel.scale_max:g} = {f.ratio:.1%} (ours), taken as {f.level.word} "
-            "(our link of index to level)")
+            f"1 - D/{std.steel.scale_max:g} = {f.ratio:.1%} (ours), taken as "
+            f"{level_words(f.level.word)} (our link of index to level)")

@@ -108,8 +108,10 @@ def capacity_words(a: Assessment) -> list[str]:
         if c.index is not None:
             text += f" (D = {c.index:.2f} of 10)"
         if c.grade is not None:
-            text += f", grade {c.grade}" + (" (ours)" if c.method == "fema306" else "")
-        text += f", {c.level}"
+            text += f", grade {words('grades', c.grade)}" + (" (ours)" if c.method == "fema306"
+                                                              else "")
+        if c.level is not None:
+            text += f", {level_words(c.level)}"
         if c.sampled:
             text += f"; {c.inspected} of {c.count} inspected"
         text += f"; {c.source}" + ("  [taken]" if c.taken else "")

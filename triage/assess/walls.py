@@ -23,8 +23,10 @@ from dataclasses import dataclass
 from triage.model import MemberGroup, Storey, Systems
 from triage.standards import CLASSES, Assumptions, Grade, Standards
 from triage.standards.capacity_tables import SEVERITIES, Lambdas, ModeRow
+from triage.standards.vocabulary import words
 
 from .levels import Level
+from .wording import group_words, level_words, mode_words, severity_words
 
 WALL_KINDS = ("wall", "infill")
 OPT_IN = ("rc_wall",)  # systems FEMA 306 covers only where a mode or severity was recorded
@@ -73,6 +75,7 @@ class WallState:
     """One wall group's FEMA 306 classification in one direction."""
 
     group: int
+    kind: str  # the member kind: wall or infill
     component: str
     mode: str  # the mode taken ("unknown": the worst of its type's)
     severity: str | None  # None: no damage recorded
@@ -105,7 +108,7 @@ def wall_state(gi: int, m: MemberGroup, comp_key: str, std: Standards,
         lam = Lambdas(k=x["k"], q=x["q"], d=x["d"])
     else:
         lam = row.factors(sev)
-    return WallState(gi, comp_key, mode, sev, by, lam, m.seen, m.seen * m.weight)
+    return WallState(gi, m.kind, comp_key, mode, sev, by, lam, m.seen, m.seen * m.weight)
 
 
 def grade_of_ratio(ratio: float, a: Assumptions) -> Grade:
@@ -176,8 +179,9 @@ def walls_reason(label: str, w: WallStorey, std: Standards) -> str:
     worst = min(w.states, key=lambda s: (s.lambdas.q, s.group))
     seen = ("" if w.inspected == w.count else
             f" over the {w.inspected} of {w.count} seen (those not inspected are not counted)")
-    sev = worst.severity or "undamaged"
     return (f"{head}: FEMA 306 residual strength ratio {w.ratio:.1%} (lambda Q weighted as "
-            f"for R, ours){seen}; the worst, group {worst.group + 1}, {worst.mode} at FEMA 306 "
-            f"severity {sev} (lambda Q {worst.lambdas.q:g}, {source(std)}); grade "
-            f"{w.grade} and {w.level.word} by our link of ratio to grade and level")
+            f"for R, ours){seen}; the worst, {group_words(worst.kind, worst.group)}, behaviour "
+            f"mode {mode_words(worst.mode)} at FEMA 306 severity {severity_words(worst.severity)}"
+            f" (lambda Q {worst.lambdas.q:g}, {source(std)}); grade "
+            f"{words('grades', w.grade)} and {level_words(w.level.word)} by our link of ratio "
+            "to grade and level")

@@ -46,3 +46,23 @@ def class_from_words(key: str | None) -> str:
     if key is None:
         return "no damage logged"
     return "set by hand" if key == "override" else "from " + words("class_from", key)
+
+
+def mode_words(key: str) -> str:
+    """A FEMA 306 behaviour mode's words ('web_crushing' -> 'web crushing')."""
+    return words("wall_modes", key)
+
+
+def severity_words(key: str | None) -> str:
+    """A FEMA 306 severity's words after 'FEMA 306 severity' (None -> 'none (undamaged)')."""
+    return "none (undamaged)" if key is None else words("severities", key)
+
+
+def connection_type_words(code: str) -> str:
+    """A FEMA 352 connection damage type with its family ('G4' -> 'G4 (girder)')."""
+    return words("connection_types", code)
+
+
+def group_words(kind: str, gi: int, ref: str | None = None) -> str:
+    """A member group named in words: 'infill panel group 3', with its mark when it has one."""
+    return f"{kind_words(kind)} group {gi + 1}" + (f" {ref}" if ref else "")

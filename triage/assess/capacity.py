@@ -4,8 +4,9 @@ Steel moment frames by FEMA 352 (`steel.py`), concrete and masonry walls by FEMA
 (`walls.py`); reinforced concrete's JBDPA ratio R stays in the member stage (`damage.py`). Where
 a storey direction has two (a concrete-wall storey with JBDPA's R and FEMA 306), the worse is
 taken and both are shown. Each result is a point value: the inspector's types, modes and
-severities are choices, not measurements, and enter the tier probabilities as certain (a crack
-near a FEMA 306 bound is classed at its point value; docs/method.md says so).
+severities are choices, not measurements, and enter the tier probabilities as certain; a
+severity read from a crack width carries the crack's uncertainty (`wall_doubt.py`,
+docs/method.md section 8).
 """
 
 from __future__ import annotations

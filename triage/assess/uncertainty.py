@@ -72,8 +72,8 @@ class MemberModel:
     level_of_grade: np.ndarray  # level index per grade index 0..3 (slight..severe)
     vertical: np.ndarray  # (n_groups,) bool: columns and walls, for the collapse rule
     collapse_rule: bool  # enough vertical members logged for the all-class-V rule
-    # The least level the storey's FEMA 352 and FEMA 306 capacities set (point values: the
-    # inspector's types, modes and severities are choices, not measurements).
+    # The least level the storey's FEMA 352 and FEMA 306 capacities set at their point values
+    # (a FEMA 306 severity a crack leaves in doubt is carried by `wall_doubt` instead).
     fixed: int = 0
 
     def level(self, k: np.ndarray) -> np.ndarray:

@@ -58,7 +58,8 @@ def crack_severity(crack_mm: float | None, row: ModeRow) -> str | None:
     return "heavy"
 
 
-def _worse(a: str | None, b: str | None) -> str | None:
+def worse_severity(a: str | None, b: str | None) -> str | None:
+    """The worse of two severities, either possibly absent."""
     if a is None or b is None:
         return a or b
     return a if SEVERITIES.index(a) >= SEVERITIES.index(b) else b
@@ -99,16 +100,20 @@ def wall_state(gi: int, m: MemberGroup, comp_key: str, std: Standards,
     else:
         by_crack = crack_severity(m.crack_mm, row)
         by_sign = sign_severity(m, std, a)
-        sev = _worse(by_crack, by_sign)
+        sev = worse_severity(by_crack, by_sign)
         by = None if sev is None else ("crack" if sev == by_crack else "signs")
+    return WallState(gi, m.kind, comp_key, mode, sev, by, lambdas_of(sev, row, a), m.seen,
+                     m.seen * m.weight)
+
+
+def lambdas_of(sev: str | None, row: ModeRow, a: Assumptions) -> Lambdas:
+    """The factors of a mode's row at a severity (None: undamaged, every factor 1)."""
     if sev is None:
-        lam = Lambdas(k=1.0, q=1.0, d=1.0)
-    elif sev == "extreme":
+        return Lambdas(k=1.0, q=1.0, d=1.0)
+    if sev == "extreme":
         x = a.fema306_extreme_lambda
-        lam = Lambdas(k=x["k"], q=x["q"], d=x["d"])
-    else:
-        lam = row.factors(sev)
-    return WallState(gi, m.kind, comp_key, mode, sev, by, lam, m.seen, m.seen * m.weight)
+        return Lambdas(k=x["k"], q=x["q"], d=x["d"])
+    return row.factors(sev)
 
 
 def grade_of_ratio(ratio: float, a: Assumptions) -> Grade:

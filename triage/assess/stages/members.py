@@ -21,6 +21,7 @@ from ..levels import Level
 from ..result import MemberResult
 from ..stats import sig6
 from ..uncertainty import MemberModel
+from ..wall_doubt import WallDoubt, wall_doubt
 from ..wording import class_from_words, field_name, kind_words, level_words
 
 _MEMBERS = TypeAdapter(tuple[MemberResult, ...])
@@ -61,6 +62,7 @@ class StoreyMembers:
     results: tuple[MemberResult, ...]
     defaulted: tuple[str, ...]
     beyond: StoreyCapacity  # FEMA 352 and FEMA 306 results (docs/method.md section 4a)
+    walls_doubt: WallDoubt | None = None  # FEMA 306 severities a crack leaves in doubt
 
 
 def member_stage(ctx: Context, si: int) -> StoreyMembers:
@@ -133,7 +135,7 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
          "class_from": c.class_from, **member_capacity(beyond, gi, m)}
         for gi, (m, c, eta_t) in enumerate(zip(st.members, table.items, etas, strict=True))])
     return StoreyMembers(si, table, floors, r_by_dir, capacity, floor, model, level, results,
-                         defaulted, beyond)
+                         defaulted, beyond, wall_doubt(ctx.survey, si, beyond, std, a))
 
 
 def capacity_reason(ctx: Context, sm: StoreyMembers) -> str:

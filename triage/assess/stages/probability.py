@@ -10,6 +10,7 @@ import numpy as np
 from ..context import Context
 from ..levels import Tier
 from ..uncertainty import SAMPLES, drift_cdfs, member_cdf
+from ..wall_doubt import wall_doubt_cdf
 from .drift import DriftStage
 from .level import LevelStage
 from .members import StoreyMembers
@@ -43,7 +44,8 @@ def probability_stage(ctx: Context, drift: DriftStage, members: list[StoreyMembe
     for sm in members:
         if sm.level is None:
             continue
-        row, was = member_cdf(sm.model, rng)
+        row, was = (member_cdf(sm.model, rng) if sm.walls_doubt is None
+                    else wall_doubt_cdf(sm.model, sm.walls_doubt, rng))
         sampled |= was
         cdf *= row
     if lv.collapse_hazard:

@@ -77,10 +77,11 @@ GROUPS = [
                     "triage/assess/floors.py", "triage/assess/levels.py",
                     "triage/assess/repair.py", "triage/assess/spots.py",
                     "triage/assess/capacity.py", "triage/assess/steel.py",
-                    "triage/assess/walls.py"),
+                    "triage/assess/walls.py", "triage/assess/wall_doubt.py"),
           ("tests/unit/test_verdict_rules.py", "tests/unit/test_worked_examples.py",
            "tests/unit/test_spots.py", "tests/unit/test_capacity_engine.py",
-           "tests/unit/test_capacity_tables.py", "tests/reference")),
+           "tests/unit/test_capacity_tables.py", "tests/unit/test_wall_doubt.py",
+           "tests/reference")),
 ]
 
 

@@ -91,3 +91,55 @@ async def test_a_refused_file_is_one_line_and_nothing_is_saved(db: Path, make_ap
     with Store.open(db, refresh=False) as st:
         assert st.revision(SID) == before
         assert st.load_survey(SID).storeys[0].photos == ()
+
+
+def _attach_many(db: Path, tmp_path: Path, n: int) -> None:
+    """`n` photos on storey G: the storey's, then member group 1's (a long owner and caption)."""
+    with Store.open(db, refresh=False) as st:
+        for i in range(n):
+            f = _image(tmp_path / f"photo-{i:02d}-of-the-north-face.png")
+            where = "storeys[0].photos" if i % 2 else "storeys[0].members[0].photos"
+            st.attach_photo(SID, where, f, "diagonal crack above the lintel, north face",
+                            "Tess Tester")
+
+
+async def test_the_photos_tab_reads_whole_at_80_columns(db: Path, make_app,
+                                                        tmp_path: Path) -> None:
+    _attach_many(db, tmp_path, 9)  # more rows than the table shows: the pane scrolls
+    app = make_app(db, open_survey=SID)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press("f9")
+        await settle(pilot)
+        pane = app.screen.query_one("#photos-pane")
+        assert pane.table.display and not pane.empty.display
+        assert pane.table.row_count == 9
+        # every column, "kept" the last, is inside the table: nothing to scroll sideways
+        assert pane.table.virtual_size.width <= pane.table.scrollable_content_region.width
+        assert pane.table.max_scroll_x == 0
+        assert str(pane.table.get_row_at(0)[4]) == "stored"
+        # the heading is whole on its one line
+        head = str(pane.head.render())
+        assert head == "Photos of storey G, its member groups and hazards"
+        assert len(head) <= pane.head.content_region.width
+
+
+async def test_an_empty_photos_table_says_how_to_attach_one(db: Path, make_app,
+                                                           tmp_path: Path) -> None:
+    app = make_app(db, open_survey=SID)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press("f9")
+        await settle(pilot)
+        pane = app.screen.query_one("#photos-pane")
+        assert not pane.table.display  # no table, so no highlighted blank row
+        said = str(pane.empty.render())
+        assert pane.empty.display and said.startswith("No photos of storey G")
+        assert "JPEG or PNG" in said and "Enter" in said
+        await type_in(pilot, "p-path", str(_image(tmp_path / "stair.png")))
+        assert pane.table.display and not pane.empty.display and pane.table.row_count == 1
+        await pilot.press("pageup")  # storey 1 has no photos: the sentence names it
+        await settle(pilot)
+        assert app.screen.storey.label == "1"
+        assert not pane.table.display and str(pane.empty.render()).startswith(
+            "No photos of storey 1")

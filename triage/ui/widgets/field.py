@@ -24,6 +24,7 @@ from triage.ui.focus import focus_now
 from triage.ui.messages import NOT_SAVED, SAVED, FieldAccepted
 from triage.ui.shown import block, line
 from triage.ui.widgets.search import PickSelect
+from triage.ui.widgets.ticks import TickBox
 
 
 def no_blink(widget: Any) -> None:
@@ -384,7 +385,7 @@ class Tick(Saving, Horizontal):
         super().__init__(id=id, classes=classes)
         self.path = path
         self.saved_value = value
-        self.box = Checkbox(label, value, compact=True)
+        self.box = TickBox(label, value, compact=True)
         self.status = Static("", classes="fstatus")
 
     def compose(self) -> ComposeResult:

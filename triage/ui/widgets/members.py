@@ -19,6 +19,7 @@ from triage.ui.messages import FieldAccepted
 from triage.ui.widgets.field import Choice, Field, Saving, set_text
 from triage.ui.widgets.pane import ItemPane, values_of
 from triage.ui.widgets.search import Searcher, searchable
+from triage.ui.widgets.ticks import TickList
 
 
 @dataclass(frozen=True)
@@ -70,7 +71,7 @@ FIELDS: tuple[MemberField, ...] = (
 KEYS = [f.key for f in FIELDS]
 
 
-class SignList(SelectionList[str]):
+class SignList(TickList):
     """A check list that ticks the highlighted sign at once, and finds a sign by its letters.
 
     Textual's list ticks what is highlighted when its own message comes back, so a Down typed

@@ -12,6 +12,7 @@ from __future__ import annotations
 import re
 from typing import Any
 
+from rich.text import Text
 from textual.app import ComposeResult
 from textual.containers import VerticalScroll
 from textual.coordinate import Coordinate
@@ -27,6 +28,13 @@ from triage.ui.widgets.field import Choice, Field, Saving, Tick, set_text
 FIELD_KEY = re.compile(r"\.(\w+)(?:\[\d+\])?:")
 
 
+def cell(text: Any) -> Text:
+    """A table cell: one escaped line, ending in an ellipsis where its column cuts it."""
+    out = line(text)
+    out.overflow = "ellipsis"
+    return out
+
+
 class ItemPane(VerticalScroll):
     """Base of the panes holding a table of items and the form of one."""
 
@@ -37,6 +45,7 @@ class ItemPane(VerticalScroll):
     ItemPane > .form-title { height: 1; text-style: bold; color: $accent; margin-top: 1; }
     ItemPane > .pane-note { height: auto; color: $text-muted; }
     ItemPane > .pane-head { height: 1; }
+    ItemPane > .pane-empty { height: auto; color: $text-muted; }
     """
 
     noun = "item"
@@ -50,6 +59,8 @@ class ItemPane(VerticalScroll):
         self.form: dict[str, Any] = {}
         self.table: DataTable[Any] = DataTable(cursor_type="row", zebra_stripes=True)
         self.head = Static("", classes="pane-head")
+        self.empty = Static("", classes="pane-empty")  # in place of an empty table
+        self.empty.display = False
         self.form_title = Static("", classes="form-title")
         self.note = Static("", classes="pane-note")
 
@@ -87,6 +98,10 @@ class ItemPane(VerticalScroll):
         """The line above the table."""
         return ""
 
+    def empty_words(self) -> str:
+        """Said in place of the table when the list is empty ("": the bare table is shown)."""
+        return ""
+
     def form_changed(self, widget: Any) -> None:
         """A pick in the form changed (new mode)."""
 
@@ -101,6 +116,7 @@ class ItemPane(VerticalScroll):
         """Heading, table, form."""
         yield self.head
         yield self.table
+        yield self.empty
         yield self.form_title
         for w in self.form_widgets():
             key = getattr(w, "key", None)
@@ -125,18 +141,28 @@ class ItemPane(VerticalScroll):
             for r, (old, new) in enumerate(zip(self.rows, rows, strict=True)):
                 for c, (a, b) in enumerate(zip(old, new, strict=True)):
                     if a != b:
-                        self.table.update_cell_at(Coordinate(r, c), line(b))
+                        self.table.update_cell_at(Coordinate(r, c), cell(b))
         else:
             self.table.clear()
             for i, row in enumerate(rows):
-                self.table.add_row(*(line(c) for c in row), key=str(i))
+                self.table.add_row(*(cell(c) for c in row), key=str(i))
         self.rows = rows
+        self.show_empty(not rows)
         if self.editing is not None and self.editing >= len(items):
             self.editing = None
         if self.editing is not None:
             self.table.move_cursor(row=self.editing)
         if not keep_form:
             self.show_form()
+
+    def show_empty(self, empty: bool) -> None:
+        """An empty list with words of its own says them in place of the table (no blank row)."""
+        said = self.empty_words() if empty else ""
+        if said:
+            set_text(self.empty, said)
+        if self.table.display != (not said):
+            self.table.display = not said
+            self.empty.display = bool(said)
 
     def show_form(self) -> None:
         """Fill the form for the item being edited, or a new one."""

@@ -35,7 +35,9 @@ class PhotosPane(ItemPane):
 
     first_key = "path"
     noun = "photo"
-    columns = (("#", 3), ("of", 22), ("file", 18), ("caption", 20), ("kept", 7))
+    # 57 columns of text and 2 of padding each: 67, what the tab holds at 80 columns beside
+    # the storey list with the pane's scroll bar shown (tests/ui/test_photos.py measures it)
+    columns = (("#", 2), ("of", 22), ("file", 14), ("caption", 12), ("kept", 7))
 
     def __init__(self, id: str | None = None) -> None:
         super().__init__(id=id)
@@ -89,8 +91,15 @@ class PhotosPane(ItemPane):
         """What the list holds."""
         st = self.survey_screen.storey
         label = st.label if st is not None else ""
-        return (f"Photos of storey {label}, its member groups and hazards · a new one is "
-                "copied into the database")
+        return f"Photos of storey {label}, its member groups and hazards"
+
+    def empty_words(self) -> str:
+        """No photos yet, and how to attach one."""
+        st = self.survey_screen.storey
+        label = st.label if st is not None else ""
+        return (f"No photos of storey {label} or its member groups and hazards yet. To attach "
+                "one, pick what it shows, type the path of a JPEG or PNG on this laptop and "
+                "press Enter: the image is copied into the database.")
 
     def row(self, index: int, item: Any) -> tuple[str, ...]:
         """#, of what, file, caption, kept in the database or missing."""

@@ -1,6 +1,10 @@
-"""Type to search in pick lists, closed or open, and in the sign list.
+"""Type to search in pick lists, closed or open, and in the sign list; a pick made at once.
 
-A letter typed jumps to the next choice whose words begin with it.
+A letter typed jumps to the next choice whose words begin with it. Enter or a click in an
+open pick list picks the highlighted choice at once (`PickOverlay`), like a letter: Textual's
+list sends the pick's place in the list as a message acted on later, after keys typed ahead,
+so a storey key (PgUp) that refilled the list meanwhile had the pick read from the new list,
+or past its end.
 
 Letters typed quickly one after the other (within `PAUSE` seconds) search together ('ba' finds
 'bars exposed' before 'beam'); the same letter again goes on to the next choice that begins with
@@ -15,7 +19,11 @@ from collections.abc import Callable
 from typing import Any
 
 from textual import events
+from textual.app import ComposeResult
 from textual.widgets import Select
+from textual.widgets._select import SelectCurrent, SelectOverlay
+
+from triage.ui.focus import focus_now
 
 PAUSE = 0.8  # seconds after which a letter starts a new search
 
@@ -72,6 +80,18 @@ def searchable(character: str | None) -> bool:
         and not character.isspace()
 
 
+class PickOverlay(SelectOverlay):
+    """The open list of a `PickSelect`: Enter or a click picks the highlighted choice now."""
+
+    def action_select(self) -> None:
+        """Pick the highlighted choice at once (no message left to act on later)."""
+        i = self.highlighted
+        select = self.parent
+        if i is None or not isinstance(select, PickSelect) or self.options[i].disabled:
+            return
+        select.pick_at(i)
+
+
 class PickSelect(Select[Any]):
     """A pick list that takes a typed letter while closed: the matching choice is picked."""
 
@@ -81,6 +101,22 @@ class PickSelect(Select[Any]):
         # called with the value picked by a typed letter, at once (the Changed message that
         # also follows comes later, after keys typed ahead)
         self.on_pick: Callable[[Any], None] | None = None
+
+    def compose(self) -> ComposeResult:
+        """Textual's parts, with the open list that picks at once."""
+        yield SelectCurrent(self.prompt)
+        yield PickOverlay(type_to_search=self._type_to_search).data_bind(
+            compact=Select.compact)
+
+    def pick_at(self, index: int) -> None:
+        """Pick the choice at `index` of the list as it is now, close it, focus the pick."""
+        value = self._options[index][1]
+        if value != self.value:
+            self.value = value
+        self.expanded = False
+        focus_now(self)
+        if value is not Select.NULL and self.on_pick is not None:
+            self.on_pick(value)
 
     def check_consume_key(self, key: str, character: str | None) -> bool:
         """Letters are the list's own (typed in order, never a binding)."""

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass
+from functools import cached_property
+from typing import NamedTuple
 
 import numpy as np
 
@@ -57,7 +59,9 @@ def crack_class(crack_mm: float, std: Standards) -> int:
 
 def sign_class(m: MemberGroup, std: Standards) -> int:
     """The worst class the group's signs imply (0 when none)."""
-    return max((class_index(std.signs[s].damage_class) for s in m.signs), default=UNDAMAGED)
+    if not m.signs:
+        return UNDAMAGED
+    return max(class_index(std.signs[s].damage_class) for s in m.signs)
 
 
 def recorded_class(m: MemberGroup, std: Standards, a: Assumptions) -> tuple[int, str | None]:
@@ -67,6 +71,8 @@ def recorded_class(m: MemberGroup, std: Standards, a: Assumptions) -> tuple[int,
     (docs/method.md section 4a); with which set it: "signs", "type" or "severity" (None when
     none does).
     """
+    if not m.signs and m.connection_type is None and m.severity is None:
+        return UNDAMAGED, None  # the common case, without the lookups
     best, by = sign_class(m, std), "signs"
     if m.connection_type is not None:
         c = steel_class_of_index(std.steel.types[m.connection_type].index, a)
@@ -87,9 +93,12 @@ def steel_class_of_index(index: float, a: Assumptions) -> int:
     return 1 + sum(index >= bounds[k] for k in ("II", "III", "IV", "V"))
 
 
-@dataclass(frozen=True)
-class MemberClass:
-    """A member group's point class, how it was set, and its class distribution."""
+class MemberClass(NamedTuple):
+    """A member group's point class, how it was set, and its class distribution.
+
+    A named tuple rather than a frozen dataclass: one is made per group of every storey, and a
+    tuple is made in a third of the time.
+    """
 
     point: int
     class_from: str | None
@@ -117,50 +126,51 @@ def member_classes(members: Sequence[MemberGroup], std: Standards,
     n = len(members)
     b2, b3, b4 = crack_bounds(std)
     probs = np.zeros((n, len(CLASSES) + 1))
-    point = np.zeros(n, dtype=int)
+    point = [UNDAMAGED] * n
     recorded = [recorded_class(m, std, a) for m in members]
-    sign = np.array([c for c, _ in recorded], dtype=int)
-    over = np.array([m.damage_class is not None for m in members], dtype=bool)
-    crack = np.array([0.0 if m.damage_class is not None else (m.crack_mm or 0.0)
-                      for m in members])
-    sd = np.array([m.crack_sd_mm or a.sd_crack_mm for m in members])
-    cracked = crack > 0
-    # Overrides: the inspector's class, certain.
-    oi = np.flatnonzero(over)
-    ok = np.array([class_index(members[int(i)].damage_class) for i in oi], dtype=int)
-    probs[oi, ok] = 1.0
-    point[oi] = ok
-    # No crack: the sign class (or undamaged), certain.
-    si = np.flatnonzero(~over & ~cracked)
-    probs[si, sign[si]] = 1.0
-    point[si] = sign[si]
-    # Cracked: I..IV by the bounds, each raised to the sign class.
-    ci = np.flatnonzero(cracked)
-    if len(ci):
-        c, s = crack[ci], sign[ci]
-        f = norm_cdf((np.array([b2, b3, b4])[None, :] - c[:, None]) / sd[ci][:, None])
-        crack_p = np.column_stack([f[:, 0], f[:, 1] - f[:, 0], f[:, 2] - f[:, 1], 1.0 - f[:, 2]])
-        for k in range(4):
-            np.add.at(probs, (ci, np.maximum(k + 1, s)), crack_p[:, k])
-        cc = np.where(c < b2, 1, np.where(c <= b3, 2, np.where(c <= b4, 3, 4)))
-        point[ci] = np.maximum(cc, s)
-        crack_class_of = dict(zip(ci.tolist(), cc.tolist(), strict=True))
-    else:
-        crack_class_of = {}
-    items = []
-    point_l, sign_l, sd_l = point.tolist(), sign.tolist(), sd.tolist()
-    over_l, cracked_l = over.tolist(), cracked.tolist()
+    # Cracked groups (not overridden): their rows, widths, standard deviations, sign classes.
+    ci: list[int] = []
+    widths: list[float] = []
+    sds: list[float] = []
+    signs: list[int] = []
     for i, m in enumerate(members):
-        row = probs[i]
-        if over_l[i]:
-            items.append(MemberClass(point_l[i], "override", row, None, False))
-        elif cracked_l[i]:
-            how = "crack" if crack_class_of[i] >= sign_l[i] else recorded[i][1]
-            items.append(MemberClass(point_l[i], how, row, sd_l[i], m.crack_sd_mm is None))
+        if m.damage_class is not None:  # the inspector's class, certain
+            point[i] = class_index(m.damage_class)
+            probs[i, point[i]] = 1.0
+            continue
+        crack = m.crack_mm or 0.0
+        if crack > 0:
+            ci.append(i)
+            widths.append(crack)
+            sds.append(m.crack_sd_mm or a.sd_crack_mm)
+            signs.append(recorded[i][0])
+        else:  # no crack: the sign class (or undamaged), certain
+            point[i] = recorded[i][0]
+            probs[i, point[i]] = 1.0
+    crack_class = [UNDAMAGED] * n
+    if ci:
+        # Cracked: I..IV by the bounds, each raised to the sign class.
+        c, sd, s = np.array(widths), np.array(sds), np.array(signs, dtype=int)
+        f = norm_cdf((np.array([b2, b3, b4])[None, :] - c[:, None]) / sd[:, None])
+        crack_p = np.column_stack([f[:, 0], f[:, 1] - f[:, 0], f[:, 2] - f[:, 1], 1.0 - f[:, 2]])
+        rows = np.array(ci)
+        for k in range(4):  # rows are distinct: classes raised to one sign class add in order
+            probs[rows, np.maximum(k + 1, s)] += crack_p[:, k]
+        cc = np.where(c < b2, 1, np.where(c <= b3, 2, np.where(c <= b4, 3, 4))).tolist()
+        for i, cls, sign in zip(ci, cc, signs, strict=True):
+            crack_class[i] = cls
+            point[i] = max(cls, sign)
+    sd_of = dict(zip(ci, sds, strict=True))
+    items = []
+    for i, m in enumerate(members):
+        if m.damage_class is not None:
+            items.append(MemberClass(point[i], "override", probs[i], None, False))
+        elif i in sd_of:
+            how = "crack" if crack_class[i] >= recorded[i][0] else recorded[i][1]
+            items.append(MemberClass(point[i], how, probs[i], sd_of[i], m.crack_sd_mm is None))
         else:
-            items.append(MemberClass(point_l[i], recorded[i][1] if sign_l[i] else None, row,
-                                     None, False))
-    return ClassTable(items, point, probs)
+            items.append(MemberClass(point[i], recorded[i][1], probs[i], None, False))
+    return ClassTable(items, np.array(point, dtype=int), probs)
 
 
 def eta_table(m: MemberGroup, std: Standards) -> np.ndarray | None:
@@ -207,10 +217,20 @@ class CapacityTerms:
     weights: np.ndarray  # count * weight per counted group
     etas: np.ndarray  # shape (n, 6)
 
-    @property
+    @cached_property
     def total(self) -> float:
         """The summed weight of the counted groups."""
         return float(self.weights.sum())
+
+    @cached_property
+    def index(self) -> np.ndarray:
+        """`groups` as an index array (for taking the counted groups' columns)."""
+        return np.array(self.groups, dtype=int)
+
+    @cached_property
+    def rows(self) -> np.ndarray:
+        """0..n-1 as a row (for taking each counted group's eta at its class)."""
+        return np.arange(len(self.groups))[None, :]
 
 
 def capacity_terms_all(storey: Storey, etas: Sequence[np.ndarray | None],
@@ -220,14 +240,15 @@ def capacity_terms_all(storey: Storey, etas: Sequence[np.ndarray | None],
     `etas[g]` is group g's eta table (None: a kind R does not count).
     """
     out = {}
+    members = storey.members
+    seen = [m.seen for m in members]
     for d in dirs:
         # members not inspected are left out of R, never counted as undamaged
-        idx = [g for g, m in enumerate(storey.members)
-               if etas[g] is not None and counts_in(m, d) and m.seen > 0]
+        idx = [g for g, m in enumerate(members)
+               if etas[g] is not None and seen[g] > 0 and counts_in(m, d)]
         if idx:
-            members = storey.members
             out[d] = CapacityTerms(tuple(idx),
-                                   np.array([members[g].seen * members[g].weight for g in idx]),
+                                   np.array([seen[g] * members[g].weight for g in idx]),
                                    np.array([etas[g] for g in idx]))
     return out
 

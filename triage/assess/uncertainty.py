@@ -80,8 +80,8 @@ class MemberModel:
         """Component level index for class assignments `k` (shape (m, n_groups))."""
         lv = np.full(k.shape[0], self.fixed, dtype=int)
         for t in self.terms.values():
-            cls = k[:, list(t.groups)]
-            eta = t.etas[np.arange(len(t.groups))[None, :], cls]
+            cls = k[:, t.index]
+            eta = t.etas[t.rows, cls]
             r = np.round((eta * t.weights).sum(axis=1) / t.total, 9)
             grade = (r < self.grade_bounds[0]).astype(int) + (r < self.grade_bounds[1]) + (
                 r < self.grade_bounds[2])
@@ -299,10 +299,10 @@ def member_cdf(model: MemberModel, rng: np.random.Generator) -> tuple[np.ndarray
     if len(doubt) == 0:
         out[int(model.level(point)[0]):] = 1.0
         return out, False
-    best, worst = point.copy(), point.copy()
-    best[0, doubt] = possible[doubt].argmax(axis=1)
-    worst[0, doubt] = 5 - possible[doubt][:, ::-1].argmax(axis=1)
-    lo, hi = int(model.level(best)[0]), int(model.level(worst)[0])
+    ends = np.repeat(point, 2, axis=0)  # the best and the worst plausible classes
+    ends[0, doubt] = possible[doubt].argmax(axis=1)
+    ends[1, doubt] = 5 - possible[doubt][:, ::-1].argmax(axis=1)
+    lo, hi = model.level(ends).tolist()
     if lo == hi:
         out[lo:] = 1.0
         return out, False

@@ -126,16 +126,33 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
     counted = set().union(*(t.groups for t in terms.values())) if terms else set()
     point_l = table.point.tolist()
     floor_l = floor_table[np.arange(len(floors)), table.point].tolist() if floors else []
+    shown = _shown_etas(etas)
     results = _MEMBERS.validate_python([
         {"index": gi, "ref": m.ref, "kind": m.kind, "count": m.count,
          "damage_class": CLASSES[point_l[gi] - 1] if point_l[gi] else None,
          "floor": LEVELS[floor_l[gi]] if point_l[gi] else None,
-         "eta": (sig6(float(eta_t[point_l[gi]])) if gi in counted and eta_t is not None
-                 else None),
+         "eta": eta_t[point_l[gi]] if gi in counted and eta_t is not None else None,
          "class_from": c.class_from, **member_capacity(beyond, gi, m)}
-        for gi, (m, c, eta_t) in enumerate(zip(st.members, table.items, etas, strict=True))])
+        for gi, (m, c, eta_t) in enumerate(zip(st.members, table.items, shown, strict=True))])
     return StoreyMembers(si, table, floors, r_by_dir, capacity, floor, model, level, results,
                          defaulted, beyond, wall_doubt(ctx.survey, si, beyond, std, a))
+
+
+def _shown_etas(etas: list[np.ndarray | None]) -> list[list[float] | None]:
+    """Each group's eta per class index as the assessment gives it (6 significant digits).
+
+    Groups of one kind and ductility share one table, so each table is rounded once.
+    """
+    rounded: dict[int, list[float]] = {}
+    out: list[list[float] | None] = []
+    for t in etas:
+        if t is None:
+            out.append(None)
+            continue
+        if id(t) not in rounded:
+            rounded[id(t)] = [sig6(v) for v in t.tolist()]
+        out.append(rounded[id(t)])
+    return out
 
 
 def capacity_reason(ctx: Context, sm: StoreyMembers) -> str:

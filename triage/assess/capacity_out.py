@@ -41,9 +41,11 @@ def _jbdpa(ctx: Context, sm: StoreyMembers, d: str) -> CapacityResult | None:
     if d not in ctx.rc or r is None:
         return None
     st = ctx.survey.storeys[sm.storey]
-    counted = [m for m in st.members
-               if dmg.eta_table(m, ctx.std) is not None and dmg.counts_in(m, d)]
-    seen, count = sum(m.seen for m in counted), sum(m.count for m in counted)
+    seen = count = 0
+    for m in st.members:
+        if dmg.counts_in(m, d) and dmg.eta_table(m, ctx.std) is not None:
+            seen += m.seen
+            count += m.count
     grade = dmg.grade_of(r, ctx.std)
     return CapacityResult(
         storey=st.label, dir=d, method="jbdpa", ratio=sig6(r),

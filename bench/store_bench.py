@@ -25,9 +25,6 @@ not tmpfs, or fsync costs nothing and the ratios say little.
 
 from __future__ import annotations
 
-import argparse
-import contextlib
-import io
 import json
 import sqlite3
 import statistics
@@ -37,7 +34,9 @@ import uuid
 from pathlib import Path
 from typing import Any
 
+from bench import timing
 from bench.generate import big_survey_dict
+from bench.timing import run_cli
 from triage.model import ID_NAMESPACE, canonical_json, parse_survey
 from triage.store import Store
 from triage.store.connect import set_pragmas
@@ -233,25 +232,13 @@ def fill(path: Path, n: int, seed: int = 0) -> None:
     st.close()
 
 
-def _run_cli(argv: list[str]) -> float:
-    from triage.cli import main
-
-    out = io.StringIO()
-    t0 = time.perf_counter()
-    with contextlib.redirect_stdout(out):
-        code = main(argv)
-    dt = time.perf_counter() - t0
-    assert code == 0, code
-    return dt
-
-
 def list_10k_ms(n: int = 10_000) -> float:
     """Milliseconds for `triage list` of `n` surveys (open, query, format), in process."""
     with tempfile.TemporaryDirectory(prefix="triage-bench-") as tmp:
         db = Path(tmp) / "list.db"
         fill(db, n)
-        _run_cli(["--db", str(db), "list"])   # warm-up: imports, page cache
-        return statistics.median(_run_cli(["--db", str(db), "list"]) for _ in range(5)) * 1000
+        run_cli(["--db", str(db), "list"])   # warm-up: imports, page cache
+        return statistics.median(run_cli(["--db", str(db), "list"]) for _ in range(5)) * 1000
 
 
 def summary_10k_ms(n: int = 10_000) -> float:
@@ -259,8 +246,8 @@ def summary_10k_ms(n: int = 10_000) -> float:
     with tempfile.TemporaryDirectory(prefix="triage-bench-") as tmp:
         db = Path(tmp) / "area.db"
         fill(db, n)
-        _run_cli(["--db", str(db), "summary"])
-        return statistics.median(_run_cli(["--db", str(db), "summary"]) for _ in range(5)) * 1000
+        run_cli(["--db", str(db), "summary"])
+        return statistics.median(run_cli(["--db", str(db), "summary"]) for _ in range(5)) * 1000
 
 
 def _baseline_merge(target: Path, sources: list[Path]) -> float:
@@ -312,17 +299,7 @@ FIGURES = {"store_write_ratio": store_write_ratio,
 
 def main() -> None:
     """Print each figure."""
-    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("names", nargs="*", metavar="NAME",
-                    help=f"figures to measure (default: all of {', '.join(FIGURES)})")
-    args = ap.parse_args()
-    unknown = [n for n in args.names if n not in FIGURES]
-    if unknown:
-        ap.error(f"unknown figure {unknown[0]!r}")
-    for name in args.names or list(FIGURES):
-        t0 = time.perf_counter()
-        value = FIGURES[name]()
-        print(f"{name}: {value:.3f}   ({time.perf_counter() - t0:.1f} s)")
+    timing.main(__doc__, FIGURES)
 
 
 if __name__ == "__main__":

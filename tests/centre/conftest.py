@@ -45,17 +45,10 @@ def pg() -> Iterator[Cluster]:
         pytest.fail("PostgreSQL server binaries (initdb) not found: install postgresql "
                     "(.ci/run does)", pytrace=False)
     # fsync off: these tests kill clients, never the server, and need no durability.
-    with Cluster.start({"fsync": "off", "synchronous_commit": "off",
-                        "full_page_writes": "off"}) as cluster:
-        cluster.createdb("template_centre")
-        from triage.centre.schema import init
-
-        init(cluster.url("template_centre"))   # and the roles triage_field and triage_read
-        for i in range(1, 11):
-            cluster.sql(f"CREATE ROLE field{i} LOGIN PASSWORD '{password(f'field{i}')}' "
-                        "IN ROLE triage_field")
-        cluster.sql(f"CREATE ROLE reader LOGIN PASSWORD '{password('reader')}' "
-                    "IN ROLE triage_read")
+    logins = {f"field{i}": (password(f"field{i}"), "triage_field") for i in range(1, 11)}
+    logins["reader"] = (password("reader"), "triage_read")
+    with Cluster.start_centre({"fsync": "off", "synchronous_commit": "off",
+                               "full_page_writes": "off"}, logins) as cluster:
         cluster.sql(f"CREATE ROLE owner LOGIN CREATEROLE PASSWORD '{password('owner')}'")
         yield cluster
 
@@ -115,6 +108,14 @@ class Centre:
             want = self.rows(f"SELECT {cols} FROM ref.{view} ORDER BY {key}")
             assert got == want, view
         self.sql("DROP SCHEMA ref CASCADE")
+        # The counts kept with the rows (schema 5) are the rows' counts; nothing left pending.
+        counted = ("SELECT tier, count(*), count(*) FILTER (WHERE conflict), count(*) FILTER "
+                   "(WHERE long_key), count(*) FILTER (WHERE line IS NULL) FROM "
+                   "triage.building_latest GROUP BY tier ORDER BY tier")
+        assert self.rows("SELECT * FROM triage.building_tally ORDER BY tier") == \
+            self.rows(counted)
+        assert self.rows("SELECT (SELECT count(*) FROM triage.heads_pending) + "
+                         "(SELECT count(*) FROM triage.heads_due)") == [(0,)]
         return len(want)
 
 
@@ -122,8 +123,7 @@ class Centre:
 def centre(pg: Cluster) -> Centre:
     """A database as `triage centre init` leaves it (a copy of one made so, for speed)."""
     name = f"c{next(_names)}"
-    pg.sql(f"CREATE DATABASE {name} TEMPLATE template_centre "
-           "STRATEGY FILE_COPY")
+    pg.centre_db(name)
     return Centre(pg, name)
 
 

@@ -25,7 +25,7 @@ PROTOCOL = {"location", "has_survey", "match_ids", "list_surveys", "survey_row",
             "building_rows", "close"}
 # `triage.store.area.AreaLines`: a reader may lay the summary out itself (the centre does);
 # this one does not, and the command must then do with the protocol alone.
-OPTIONAL = {"summary_text_rows", "summary_features"}
+OPTIONAL = {"summary_lines", "summary_features"}
 
 
 class OnlyReader:

@@ -4,12 +4,20 @@
         url = pg.url("triage")          # postgresql://triage_admin:…@127.0.0.1:PORT/triage
         pg.createdb("triage")
 
+    with Cluster.start_centre(logins={"laptop1": ("pw", "triage_field")}) as pg:
+        pg.centre_db("area")            # a copy of a database `triage centre init` made
+
+`start_centre` is what the centre's tests and `bench.centre_bench` both start from: a
+database `template_centre` initialised by `triage.centre.schema.init` (the roles with it)
+and a login in one of the roles for each name given; each test or measurement copies it.
+
 The server runs from the PostgreSQL binaries found on PATH or in
 `/usr/lib/postgresql/<major>/bin` (Debian's place). initdb refuses to run as root, so as root
 the server runs as the `postgres` system user (`runuser`), the folder handed to that user;
 otherwise as the current user. Connections: TCP on 127.0.0.1 with SCRAM passwords (so wrong
 passwords are refused as on a real centre), and a Unix socket in the folder. Stopped
-(immediate) and the folder removed on exit. Nothing here imports psycopg: only programs run.
+(immediate) and the folder removed on exit. Nothing here imports psycopg but `start_centre`
+(through `init`); the rest runs programs.
 """
 
 from __future__ import annotations
@@ -25,6 +33,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 SUPERUSER = "triage_admin"
+TEMPLATE = "template_centre"
 
 
 def find_bindir() -> Path | None:
@@ -91,6 +100,27 @@ class Cluster:
             pg.stop()
             raise
         return pg
+
+    @classmethod
+    def start_centre(cls, settings: dict[str, str] | None = None,
+                     logins: dict[str, tuple[str, str]] | None = None) -> Cluster:
+        """`start`, then `TEMPLATE` made by `init`, and logins: {name: (password, role)}."""
+        from .schema import init
+
+        pg = cls.start(settings)
+        try:
+            pg.createdb(TEMPLATE)
+            init(pg.url(TEMPLATE))
+            for name, (password, role) in (logins or {}).items():
+                pg.sql(f"CREATE ROLE {name} LOGIN PASSWORD '{password}' IN ROLE {role}")
+        except BaseException:
+            pg.stop()
+            raise
+        return pg
+
+    def centre_db(self, name: str) -> None:
+        """A new database copied from `TEMPLATE` (as init leaves one; a file copy, quick)."""
+        self.sql(f"CREATE DATABASE {name} TEMPLATE {TEMPLATE} STRATEGY FILE_COPY")
 
     @property
     def data(self) -> Path:

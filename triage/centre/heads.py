@@ -31,7 +31,8 @@ miss what the lock waited for).
 
 from __future__ import annotations
 
-from .summary_sql import CELLS_FUNCTION, LAYOUT
+from .v4_cells import CELLS_FUNCTION_V4 as CELLS_FUNCTION
+from .v4_cells import LAYOUT_V4 as LAYOUT
 
 WRITE_LOCK = 0x7472696167650003   # advisory lock of writers ("triage" and 3)
 

@@ -1,8 +1,9 @@
 """The centre schema's numbered migrations, oldest first; `schema.init` runs those missing.
 
 A migration is plain SQL run in `init`'s one transaction with its row in
-`triage.schema_version`. Never edit one that has shipped: add the next. Version 4's SQL lives
-in `heads` (the tables kept current by triggers), with its reasons.
+`triage.schema_version`. Never edit one that has shipped: add the next (a test pins each one's
+SQL). Version 4's SQL lives in `heads` (the tables kept current by triggers), version 5's in
+`schema_v5`, each with its reasons.
 """
 
 from __future__ import annotations
@@ -12,6 +13,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 from .heads import SCHEMA_V4
+from .schema_v5 import SCHEMA_V5
 from .tables import create_tables
 
 if TYPE_CHECKING:
@@ -208,10 +210,17 @@ def _v4(conn: psycopg.Connection) -> None:
     conn.execute(SCHEMA_V4)
 
 
+def _v5(conn: psycopg.Connection) -> None:
+    conn.execute(SCHEMA_V5)
+
+
 MIGRATIONS: list[Migration] = [
     Migration(1, "tables, current versions, conflicts, buildings", _v1),
     Migration(2, "views: byte order of text, hidden flag of the same text sent last", _v2),
     Migration(3, "building_summary: a snapshot of buildings, refreshed with the map", _v3),
     Migration(4, "survey_heads and building_latest kept current by triggers; views read "
                  "them", _v4),
+    Migration(5, "each building's summary line and Feature kept with it, one index-only "
+                 "reading; derived tables brought up to date once per transaction; the map "
+                 "a view of building_latest", _v5),
 ]

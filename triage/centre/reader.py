@@ -4,7 +4,7 @@
 same output as from a local database holding the same surveys (a merged one): the rows come
 from the view `triage.survey_list` and the table `triage.building_latest` (kept current by
 triggers: see `heads`), ordered as the local store orders them (byte order of the text, ASCII
-letters folded for building names). `summary` in text and GeoJSON takes its rows written by
+letters folded for building names). `summary` in text and GeoJSON takes its lines written by
 the server (`AreaLines`, SQL in `summary_sql`), in one repeatable-read transaction.
 
 It never writes: its session is read-only (`SET SESSION CHARACTERISTICS AS TRANSACTION READ
@@ -84,12 +84,13 @@ class CentreReader:
         """The centre as messages name it: its URL without the password."""
         return redact(self.url)
 
-    def _query(self, sql: str, params: tuple[Any, ...] | dict[str, Any] = ()
+    def _query(self, sql: str, params: tuple[Any, ...] | dict[str, Any] | None = None
                ) -> list[tuple[Any, ...]]:
         import psycopg
 
         try:
-            return self.conn.execute(sql, params).fetchall()   # tuples, in one call
+            cur = self.conn.execute(sql, params)
+            return cur.fetchall() if cur.description else []   # tuples, in one call
         except psycopg.errors.InsufficientPrivilege:
             raise CentreError(f"{self.location}: this login may not read the surveys; grant it "
                               "the role triage_read") from None
@@ -207,30 +208,42 @@ class CentreReader:
         """One row per building: its latest visible survey; ordered as the local summary."""
         return list(map(BuildingRow._make, self._query(q.BUILDINGS)))   # ordered by the server
 
-    def _reading(self, words: Callable[[str | None], str]) -> tuple[AreaTally, dict[str, Any]]:
-        """The counts, and the words of the tiers seen (in the caller's transaction)."""
-        counts = self._query(q.TALLY)
-        tiers = [t for t, _, _ in counts]
-        tally = AreaTally(sum(n for _, n, _ in counts), {t: int(n) for t, n, _ in counts},
-                          sum(int(c) for _, _, c in counts))
-        return tally, {"tiers": tiers, "words": [words(t) for t in tiers]}
+    def _reading(self) -> tuple[AreaTally, bool, bool, int]:
+        """The counts, whether the cells stored follow this layout, exact order, lines left.
 
-    def summary_text_rows(self, words: Callable[[str | None], str]
-                          ) -> tuple[AreaTally, list[tuple[str, float | None, float | None, str]]]:
-        """The counts and each building's text row but its location, laid out by the server."""
+        In the caller's transaction. Lines left: rows whose line the command lays out. The
+        order is the index's unless a name or an address is longer than its keys (then the
+        whole texts are sorted); parallel plans are off, so the aggregates take the rows in
+        the order given.
+        """
+        self._query("SET LOCAL max_parallel_workers_per_gather = 0")
+        stored = self._query(q.STORED_LAYOUT) == [(q.LAYOUT,)]
+        counts = self._query(q.TALLY if stored else q.TALLY_MADE)
+        tally = AreaTally(sum(int(r[1]) for r in counts), {r[0]: int(r[1]) for r in counts},
+                          sum(int(r[2]) for r in counts))
+        return (tally, stored, any(r[3] for r in counts), sum(int(r[4]) for r in counts))
+
+    def summary_lines(self, lay_out: Callable[[list[BuildingRow]], list[str]]
+                      ) -> tuple[AreaTally, str]:
+        """The counts and every building's text line, written by the server, in order.
+
+        A line the server leaves to the command (a person's text with wide, zero-width or
+        unsafe characters) comes back empty and is filled with `lay_out`'s line of its row.
+        """
         with self.conn.transaction():   # repeatable read: the counts agree with the rows
-            tally, params = self._reading(words)
-            params["words"] = [w.ljust(q.TIER_WIDTH) for w in params["words"]]
-            stored = self._query(q.STORED_LAYOUT) == [(q.LAYOUT,)]
-            return tally, self._query(q.TEXT_STORED if stored else q.TEXT_MADE, params)
+            tally, stored, exact, unlaid = self._reading()
+            text = self._query(q.lines_sql(stored, exact))[0][0] or ""
+            if unlaid:
+                rows = list(map(BuildingRow._make, self._query(q.unlaid_sql(stored))))
+                text = _fill(text, lay_out(rows), self.location)
+            return tally, text
 
-    def summary_features(self, words: Callable[[str | None], str], caution: str
-                         ) -> tuple[list[str], list[tuple[str, str]]]:
-        """Each located building's GeoJSON Feature written by the server, and those left out."""
+    def summary_features(self) -> tuple[str, list[tuple[str, str]]]:
+        """The located buildings' GeoJSON Features written by the server, and those left out."""
         with self.conn.transaction():
-            _, params = self._reading(words)
-            features = [r[0] for r in self._query(q.FEATURES, {**params, "caution": caution})]
-            return features, self._query(q.MISSING)
+            _, stored, exact, _ = self._reading()
+            features = self._query(q.features_sql(stored, exact))[0][0] or ""
+            return features, [(str(a), str(b)) for a, b in self._query(q.MISSING)]
 
     def close(self) -> None:
         """Close the connection."""
@@ -241,3 +254,14 @@ class CentreReader:
 
     def __exit__(self, *exc: object) -> None:
         self.close()
+
+
+def _fill(text: str, lines: list[str], where: str) -> str:
+    """The server's lines with each empty one replaced by the next of `lines`, in order."""
+    out = text.split("\n")
+    empty = [i for i, line in enumerate(out) if not line]
+    if len(empty) != len(lines):
+        raise CentreError(f"{where}: the summary's rows changed while read; run it again")
+    for i, line in zip(empty, lines, strict=True):
+        out[i] = line
+    return "\n".join(out)

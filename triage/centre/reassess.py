@@ -77,9 +77,6 @@ def reassess(url: str, *, batch: int = 200, progress: Progress | None = None) ->
         if rows:
             with conn.transaction():
                 out.assessed += _insert(conn, "assessments", rows)
-        if out.assessed:
-            with conn.transaction():
-                conn.execute("SELECT triage.refresh_map()")
     except psycopg.errors.InsufficientPrivilege as err:
         raise CentreError(f"{where}: this login may not reassess ({first_line(err, url)}); run "
                           "it as the schema's owner") from None

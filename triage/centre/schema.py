@@ -9,7 +9,9 @@ centre's administrator, a role that may create schemas and roles):
    database of a newer version is refused, unchanged);
 3. creates the roles `triage_field` and `triage_read` when missing (NOLOGIN: a login per
    laptop or coordinator is made `IN ROLE` one of them) and grants again what each may do;
-4. rebuilds the map view: with PostGIS a `geometry(Point, 4326)` column, else lat/lon.
+4. makes the summary's cells function of this triage (rewriting the rows' cells when it
+   changed: `summary_sql`) and the map view: with PostGIS a `geometry(Point, 4326)` column,
+   else lat/lon.
 
 History is append-only by the grants: `triage_field` has INSERT on the data tables (not on the
 columns the server fills: `seq`, `received_at`, `sent_by`) and SELECT only on the key columns
@@ -23,10 +25,9 @@ version: the laptop's, then any `reassess`), `reports`, `photos` (blobs by SHA-2
 `survey_list` (what `list` shows, conflicts computed: two current versions of one survey with
 different JSON are both kept, the first sent under the survey's id and the other under the id
 `merge` gives it), `conflicts`, `buildings` (the latest visible survey of each building),
-and the materialised `building_map` for GIS (indexed; refreshed by every sync and reassess).
-The list and the buildings are tables kept current by triggers (`survey_heads`,
-`building_latest`; see `heads`), the views read them; the migrations are in `migrations`,
-the data tables' columns in `tables`.
+and `building_map` for GIS (spatially indexed). The list and the buildings are tables kept
+current by triggers (`survey_heads`, `building_latest`; see `heads` and `schema_v5`), the
+views read them; the migrations are in `migrations`, the data tables' columns in `tables`.
 """
 
 from __future__ import annotations
@@ -84,8 +85,7 @@ def _grants() -> list[str]:
            f"GRANT SELECT ON ALL TABLES IN SCHEMA triage TO {READ_ROLE}",
            f"GRANT SELECT (version) ON triage.schema_version TO {FIELD_ROLE}",
            # The triggers' functions run as the owner; nobody calls them, nor heads_of.
-           "REVOKE ALL ON ALL FUNCTIONS IN SCHEMA triage FROM PUBLIC",
-           f"GRANT EXECUTE ON FUNCTION triage.refresh_map() TO {FIELD_ROLE}, {READ_ROLE}"]
+           "REVOKE ALL ON ALL FUNCTIONS IN SCHEMA triage FROM PUBLIC"]
     for table, cols in SENT.items():
         out.append(f"GRANT INSERT ({', '.join(cols)}) ON triage.{table} TO {FIELD_ROLE}")
         out.append(f"GRANT SELECT ({', '.join(FIELD_SELECT[table])}) ON triage.{table} "
@@ -118,27 +118,32 @@ def _postgis(conn: psycopg.Connection) -> tuple[str | None, str | None]:
 
 
 def _map_sql(gis: str | None) -> str:
-    """The materialised map layer: one row per building, its latest survey, a point."""
-    geom = (f", {gis}.ST_SetSRID({gis}.ST_MakePoint(lon, lat), 4326)"
-            f"::{gis}.geometry(Point, 4326) AS geom" if gis else "")
-    index = ("CREATE INDEX building_map_geom ON triage.building_map USING gist (geom);"
-             if gis else "CREATE INDEX building_map_lonlat ON triage.building_map (lon, lat);")
+    """The map layer: a view of `building_latest`, one row per located building, a point.
+
+    The spatial index is on `building_latest` (the point as an expression), which triggers
+    keep current row by row; the view's `geom` is the same expression, so a box query on the
+    view uses it.
+    """
+    located = "WHERE lat IS NOT NULL AND lon IS NOT NULL"
+    point = (f"{gis}.ST_SetSRID({gis}.ST_MakePoint(lon, lat), 4326)"
+             f"::{gis}.geometry(Point, 4326)" if gis else "")
+    if gis:
+        index = (f"DROP INDEX IF EXISTS triage.building_map_lonlat;\n"
+                 f"CREATE INDEX IF NOT EXISTS building_map_geom ON triage.building_latest "
+                 f"USING gist (({point})) {located};")
+    else:
+        index = ("DROP INDEX IF EXISTS triage.building_map_geom;\n"
+                 f"CREATE INDEX IF NOT EXISTS building_map_lonlat ON triage.building_latest "
+                 f"(lon, lat) {located};")
+    geom = f", {point} AS geom" if gis else ""
     return f"""
-DROP MATERIALIZED VIEW IF EXISTS triage.building_map;
-CREATE MATERIALIZED VIEW triage.building_map AS
+DROP VIEW IF EXISTS triage.building_map;
+{index}
+CREATE VIEW triage.building_map AS
 SELECT building_id, survey_id, building, address, tier, level AS performance_level,
        provisional, conflict, inspected_at, inspector, lat, lon{geom}
-FROM triage.buildings
-WHERE lat IS NOT NULL AND lon IS NOT NULL;
-CREATE UNIQUE INDEX building_map_id ON triage.building_map (building_id);
-{index}
-CREATE OR REPLACE FUNCTION triage.refresh_map() RETURNS void
-LANGUAGE plpgsql SECURITY DEFINER SET search_path = pg_catalog, triage SET jit = off
-SET work_mem = '64MB' AS $f$
-BEGIN
-  PERFORM pg_advisory_xact_lock({LOCK_KEY + 1});
-  REFRESH MATERIALIZED VIEW CONCURRENTLY triage.building_map;
-END $f$;
+FROM triage.building_latest
+{located};
 """
 
 

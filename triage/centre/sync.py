@@ -243,13 +243,6 @@ def sync(store: Store, url: str, *, batch: int = 200,
             done += len(part)
             if progress:
                 progress(done, total, time.perf_counter() - t0)
-        if not result.nothing:
-            try:
-                with conn.transaction():
-                    conn.execute("SELECT triage.refresh_map()")
-            except psycopg.Error as err:
-                result.notes.append(f"the map layer was not refreshed ({first_line(err, url)}); "
-                                    "the next sync refreshes it")
     except psycopg.errors.InsufficientPrivilege as err:
         raise CentreError(f"{where}: this login may not send surveys ({first_line(err, url)}); "
                           "it needs the role triage_field") from None

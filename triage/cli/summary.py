@@ -33,9 +33,9 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
 
 
 def _words(tier: str | None) -> str:
-    from triage.assess import tier_words
+    from triage.store.area import tier_text
 
-    return tier_words(tier) if tier else "not assessed"
+    return tier_text(tier)
 
 
 def _head() -> list[str]:
@@ -58,12 +58,18 @@ def _foot(tally: AreaTally) -> list[str]:
 
 def summary_text(rows: list[BuildingRow]) -> str:
     """The text form: caution, one row per building, counts per tier at the end."""
+    lines, tally = text_lines(rows)
+    return "\n".join([*_head(), *lines, *_foot(tally)]) + "\n"
+
+
+def text_lines(rows: list[BuildingRow]) -> tuple[list[str], AreaTally]:
+    """Each building's line of the text, and the counts."""
     from triage.assess import TIERS
     from triage.store.area import TEXT_COLUMNS, TEXT_GAP, AreaTally
 
     from .table import NOT_PLAIN, fit
 
-    lines = _head()
+    lines: list[str] = []
     # One pass, the per-row work inlined (an area has 100,000 buildings): tier words and flag
     # words looked up; the three columns of people's text (building, address, inspector) cut
     # and padded by display width (`table.fit`: a wide character takes two cells, a combining
@@ -100,18 +106,14 @@ def summary_text(rows: list[BuildingRow]) -> str:
             conflicts += 1
         append(row % (b, a, loc, r.at, p, w, r.level or "—", r.governing_storey or "—",
                       flags[r.provisional], "CONFLICT" if r.conflict else "—"))
-    lines += _foot(AreaTally(len(rows), tally, conflicts))
-    return "\n".join(lines) + "\n"
+    return lines, AreaTally(len(rows), tally, conflicts)
 
 
 def summary_text_of(st: AreaLines) -> str:
-    """The same text from a reader that lays the rows out itself (the location done here)."""
-    tally, rows = st.summary_text_rows(_words)
-    lines = _head()
-    lines += [before + ("%.5f,%.5f" % (lat, lon) if lat is not None and lon is not None  # noqa: UP031
-                        else "—").ljust(19) + after for before, lat, lon, after in rows]
-    lines += _foot(tally)
-    return "\n".join(lines) + "\n"
+    """The same text from a reader that writes the lines itself (rows it leaves: here)."""
+    tally, body = st.summary_lines(lambda rows: text_lines(rows)[0])
+    head = "\n".join(_head()) + "\n"
+    return head + (body + "\n" if body else "") + "\n".join(_foot(tally)) + "\n"
 
 
 def _props(r: BuildingRow) -> dict[str, Any]:
@@ -164,10 +166,10 @@ def _geojson_of(st: AreaLines) -> tuple[str, list[tuple[str, str]]]:
     """The GeoJSON text and the buildings left out, from a reader that writes the Features."""
     from triage.assess import CAUTION
 
-    features, missing = st.summary_features(_words, json.dumps(CAUTION, ensure_ascii=False))
+    features, missing = st.summary_features()
     head = json.dumps({"type": "FeatureCollection", "caution": CAUTION, "features": []},
                       ensure_ascii=False)
-    return head[:-2] + ", ".join(features) + "]}", missing
+    return head[:-2] + features + "]}", missing
 
 
 def summary_json(rows: list[BuildingRow]) -> dict[str, Any]:

@@ -38,29 +38,37 @@ class AreaTally:
     conflicts: int
 
 
-# A text row as a reader lays it out: the cells before the location, latitude, longitude,
-# the cells after it (each with its gaps); the caller formats the location between.
-TextRow = tuple[str, float | None, float | None, str]
+NOT_ASSESSED = "not assessed"
+
+
+def tier_text(tier: str | None) -> str:
+    """A tier's words in the summary (with our mark); "not assessed" for None."""
+    from triage.assess import tier_words
+
+    return tier_words(tier) if tier else NOT_ASSESSED
 
 
 @runtime_checkable
 class AreaLines(Protocol):
-    """A reader that does the summary's per-building work itself (the centre, in SQL)."""
+    """A reader that does the summary's per-building work itself (the centre, in SQL).
 
-    def summary_text_rows(self, words: Callable[[str | None], str]
-                          ) -> tuple[AreaTally, list[TextRow]]:
-        """The counts and one `TextRow` per building in the summary's order, as one reading.
+    Its words are `tier_text`'s and its caution `triage.assess.CAUTION`, as the command's.
+    """
 
-        `words(tier)` gives a tier's words (None: not assessed) for the tier column.
+    def summary_lines(self, lay_out: Callable[[list[BuildingRow]], list[str]]
+                      ) -> tuple[AreaTally, str]:
+        """The counts and the text's building rows (joined by newlines, in order), one reading.
+
+        Rows the reader cannot lay out as the command does (wide or unsafe characters in a
+        person's text) are given to `lay_out`, which returns their lines.
         """
         ...
 
-    def summary_features(self, words: Callable[[str | None], str], caution: str
-                         ) -> tuple[list[str], list[tuple[str, str]]]:
-        """Each located building's GeoJSON Feature text, and each one left out (no location).
+    def summary_features(self) -> tuple[str, list[tuple[str, str]]]:
+        """The located buildings' GeoJSON Features joined by ", ", and each one left out.
 
-        A Feature reads as `json.dumps` writes it, in the summary's order, with `caution` (a
-        JSON string) as its last property; a building left out is (name, id).
+        A Feature reads as `json.dumps` writes it, in the summary's order, with the caution
+        as its last property; a building left out (no location) is (name, id).
         """
         ...
 

@@ -183,3 +183,13 @@ def test_a_centre_with_cells_of_another_layout_is_read_the_slow_way_then_made_ag
     assert cli("--db", url, "summary") == local and q.lines_sql(True, True) in seen
     assert cli("--db", url, "summary", "--format", "geojson") == local_geo
     assert q.TALLY in seen
+
+
+def test_lines_left_to_the_command_are_filled_in_order_or_refused():
+    from triage.centre.connect import CentreError
+    from triage.centre.reader import _fill
+
+    assert _fill("a\n\nc\n", ["B", "D"], "centre") == "a\nB\nc\nD"
+    assert _fill("", ["only"], "centre") == "only"
+    with pytest.raises(CentreError, match="changed while read"):
+        _fill("a\n\nc", [], "centre")

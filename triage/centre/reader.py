@@ -242,7 +242,8 @@ class CentreReader:
         """The located buildings' GeoJSON Features written by the server, and those left out."""
         with self.conn.transaction():
             _, stored, exact, _ = self._reading()
-            features = self._query(q.features_sql(stored, exact))[0][0] or ""
+            # Rows joined here: for tens of megabytes, quicker than one string made there.
+            features = ", ".join([r[0] for r in self._query(q.features_sql(stored, exact))])
             return features, [(str(a), str(b)) for a, b in self._query(q.MISSING)]
 
     def close(self) -> None:

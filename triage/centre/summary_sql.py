@@ -15,7 +15,8 @@ version 5), by `triage.building_cells`, into `building_latest`:
   the server's shortest exact form, `.0` added to a whole one, as `repr`), NULL without a
   location.
 
-A reading is then one index-only scan and one string (`string_agg` of the lines in order).
+A text reading is then one index-only scan and one string (`string_agg` of the lines in
+order); a GeoJSON reading one index scan.
 The words and the caution come from this triage (`tier_text`, `CAUTION`), so the cells
 function is this triage's: `init` makes it again and, when its SQL differs from the one the
 rows were written with (`LAYOUT`, a hash of it, kept in `triage.text_layout`), writes every
@@ -187,11 +188,10 @@ def lines_sql(stored: bool, exact: bool) -> str:
 
 
 def features_sql(stored: bool, exact: bool) -> str:
-    """Every located building's Feature in order, joined by ', '."""
+    """Every located building's Feature, in order."""
     feature = "feature" if stored else FEATURE
-    return (f"SELECT string_agg(f, ', ') FROM (SELECT {feature} AS f "
-            "FROM triage.building_latest WHERE lat IS NOT NULL AND lon IS NOT NULL "
-            f"{_order(exact)}) s")
+    return (f"SELECT {feature} FROM triage.building_latest "
+            f"WHERE lat IS NOT NULL AND lon IS NOT NULL {_order(exact)}")
 
 
 _ROW = """building_id, building, address, lat, lon, inspected_at, inspector, tier, level,

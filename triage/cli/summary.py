@@ -109,11 +109,15 @@ def text_lines(rows: list[BuildingRow]) -> tuple[list[str], AreaTally]:
     return lines, AreaTally(len(rows), tally, conflicts)
 
 
-def summary_text_of(st: AreaLines) -> str:
-    """The same text from a reader that writes the lines itself (rows it leaves: here)."""
+def summary_text_of(st: AreaLines) -> list[str]:
+    """The same text from a reader that writes the lines itself (rows it leaves: here).
+
+    In pieces, written one after the other: the lines of 100,000 buildings are megabytes, and
+    each copy of them costs.
+    """
     tally, body = st.summary_lines(lambda rows: text_lines(rows)[0])
-    head = "\n".join(_head()) + "\n"
-    return head + (body + "\n" if body else "") + "\n".join(_foot(tally)) + "\n"
+    return ["\n".join(_head()) + "\n", *([body, "\n"] if body else []),
+            "\n".join(_foot(tally)) + "\n"]
 
 
 def _props(r: BuildingRow) -> dict[str, Any]:
@@ -162,14 +166,14 @@ def summary_geojson(rows: list[BuildingRow]) -> dict[str, Any]:
     return {"type": "FeatureCollection", "caution": CAUTION, "features": features}
 
 
-def _geojson_of(st: AreaLines) -> tuple[str, list[tuple[str, str]]]:
-    """The GeoJSON text and the buildings left out, from a reader that writes the Features."""
+def _geojson_of(st: AreaLines) -> tuple[list[str], list[tuple[str, str]]]:
+    """The GeoJSON in pieces, and the buildings left out: from a reader writing Features."""
     from triage.assess import CAUTION
 
     features, missing = st.summary_features()
     head = json.dumps({"type": "FeatureCollection", "caution": CAUTION, "features": []},
                       ensure_ascii=False)
-    return head[:-2] + features + "]}", missing
+    return [head[:-2], features, "]}\n"], missing
 
 
 def summary_json(rows: list[BuildingRow]) -> dict[str, Any]:
@@ -196,10 +200,10 @@ def run(args: argparse.Namespace) -> int:
     try:
         if isinstance(st, AreaLines) and args.format in ("text", "geojson"):
             if args.format == "text":
-                sys.stdout.write(summary_text_of(st))
+                sys.stdout.writelines(summary_text_of(st))
                 return 0
-            text, missing = _geojson_of(st)
-            sys.stdout.write(text + "\n")
+            parts, missing = _geojson_of(st)
+            sys.stdout.writelines(parts)
             _say_missing(missing)
             return 0
         rows = st.building_rows()

@@ -102,3 +102,36 @@ def test_an_embedded_assessment_this_engine_cannot_read_is_exit_5(clinic_pair, k
     assert r.message.endswith("; but this engine cannot read the embedded assessment (1 "
                               "validation error for Assessment)"), r.message
     assert "\n" not in r.message
+
+
+def test_every_rule_an_embedded_survey_breaks_is_named_once_each(clinic_pair, key, tmp_path,
+                                                                 monkeypatch, capsys):
+    s, a = clinic_pair
+
+    def refused(survey):
+        d = json.loads(s.model_dump_json())
+        d["storeys"][0]["height_m"] = -3.0
+        d["storeys"][0]["readings"][0]["dir"] = "z"
+        return json.dumps(d)
+
+    monkeypatch.setattr(report, "survey_text", refused)
+    out = tmp_path / "r.pdf"
+    write_report(s, a, out, key=key)
+    monkeypatch.undo()
+    r = verify_report(out, trusted=[key.public])
+    assert r.code == 5 and "more" not in r.message
+    assert "(storeys[0].height_m: " in r.message and "; 2 rules broken, each in the notes)" \
+        in r.message
+    assert [n.split(": ")[:2] for n in r.notes] == [["embedded survey", "storeys[0].height_m"],
+                                                    ["embedded survey",
+                                                     "storeys[0].readings[0].dir"]]
+    # the command line: the verdict, then each note on its own line naming the file
+    from triage.cli import main
+    from triage.report.keys import trust_key
+
+    monkeypatch.setenv("TRIAGE_HOME", str(tmp_path / "home"))
+    trust_key(key.public)
+    assert main(["verify", str(out)]) == 5
+    lines = capsys.readouterr().err.splitlines()
+    assert lines == [f"triage verify: {r.message}",
+                     *(f"triage verify: {out}: note: {n}" for n in r.notes)]

@@ -20,7 +20,8 @@ EXIT_CODES = (
     (4, "intact, but the signer is not accepted: not the key --expect names or, without it, "
         "not a key trusted here; or the name and id printed are not the key's"),
     (5, "intact and accepted, but this engine assesses the survey to another tier or level "
-        "(both named), or the probabilities differ by more than 0.01"),
+        "(both named), or the probabilities differ by more than 0.01, or it refuses the "
+        "embedded survey (each rule broken in a note)"),
 )
 
 RESULTS = {0: "verified", 1: "changed", 3: "unsigned", 4: "signer not accepted",
@@ -46,8 +47,10 @@ def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-ar
                         "the embedded survey and assessment against the signed digests, the "
                         "signer against the trusted keys (or --expect), then assess the "
                         "embedded survey again with this engine. The verdict is one line "
-                        "(standard output when it holds, standard error otherwise) and the "
-                        "exit status."), epilog=_epilog())
+                        "(standard output when it holds, standard error otherwise, followed "
+                        "there by its notes, one a line: another engine, other assumptions, "
+                        "each rule of an embedded survey this engine refuses) and the exit "
+                        "status."), epilog=_epilog())
     v.add_argument("pdf", metavar="OUT.pdf", help="the report PDF to check; - reads it from "
                    "standard input")
     v.add_argument("--expect", metavar="FINGERPRINT",
@@ -88,7 +91,8 @@ def run(args: argparse.Namespace) -> int:
         if result.code != 0:
             sys.stderr.write(f"triage verify: {result.message}\n")
         return result.code
-    if result.code != 0:
-        raise UserError(result.message, result.code)
+    if result.code != 0:   # the verdict, then each note on a line of its own
+        raise UserError(result.message, result.code, lines=[
+            result.message, *(f"{args.pdf}: note: {n}" for n in result.notes)])
     sys.stdout.write(result.message + "\n")
     return 0

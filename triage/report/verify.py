@@ -274,8 +274,11 @@ def _reassess(survey_data: Any, assess_data: Any) -> tuple[int, str, list[str]]:
 
     try:
         survey = parse_survey(survey_data)
-    except SurveyError as err:
-        return 5, f"but this engine refuses the embedded survey ({err})", []
+    except SurveyError as err:   # every rule broken in the notes, one each; the first here
+        rules = list(err.all_messages)
+        more = f"; {len(rules)} rules broken, each in the notes" if len(rules) > 1 else ""
+        return 5, f"but this engine refuses the embedded survey ({rules[0]}{more})", [
+            f"embedded survey: {r}" for r in rules]
     try:
         old = parse_assessment(assess_data)
     except ValueError as err:

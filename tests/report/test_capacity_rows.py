@@ -50,6 +50,7 @@ def test_storey_table_names_the_method_of_each_capacity_figure() -> None:
                                          "worse direction, with the method that gave it: "
                                          "JBDPA: the residual seismic capacity ratio R")
     assert "FEMA" not in m.capacity_caption   # only the methods this report shows
+    assert m.capacity_caption.endswith("; grade: JBDPA's, from R")
 
 
 def test_a_tie_names_both_methods_and_the_caption_explains_each() -> None:
@@ -61,20 +62,44 @@ def test_a_tie_names_both_methods_and_the_caption_explains_each() -> None:
     assert [r.capacity for r in m.storeys] == ["40.0%\nFEMA 352 / FEMA 306"]
     assert "FEMA 352: 1 − D/10" in m.capacity_caption
     assert "FEMA 306: the walls' residual strength ratio" in m.capacity_caption
-    assert "JBDPA" not in m.capacity_caption
+    methods, grade = m.capacity_caption.split("; grade: ")
+    assert "JBDPA" not in methods
+    assert grade == "ours, from the FEMA 306 ratio (JBDPA's bounds read onto it)"
     # a moderate wall gives the y direction more: the storey's figure is FEMA 352's alone
     m = _model([{"kind": "connection", "count": 10, "connection_type": "W2"},
                 {"kind": "wall", "count": 2, "dir": "y", "mode": "toe_crushing",
                  "severity": "slight"}], "steel_moment_frame", "urm_wall")
     assert [r.capacity for r in m.storeys] == ["40.0%\nFEMA 352"]
-    assert "FEMA 306" not in m.capacity_caption
+    methods, grade = m.capacity_caption.split("; grade: ")
+    assert "FEMA 306" not in methods and "FEMA 306 ratio" in grade   # its grade still shows
 
 
 def test_no_method_leaves_a_dash_and_says_so() -> None:
     m = _model([{"kind": "brace", "count": 4}], "steel_braced_frame", "steel_braced_frame")
     assert [r.capacity for r in m.storeys] == ["—"]
     assert m.capacity_caption == ("capacity: residual capacity ratio where a published method "
-                                  "covers the system (none here)")
+                                  "covers the system (none here); grade: none, as no method "
+                                  "here gives one")
+
+
+def test_the_grade_caption_follows_the_methods_that_grade() -> None:
+    # steel alone: FEMA 352 gives a level, no grade
+    m = _model([{"kind": "connection", "count": 10, "connection_type": "W2"}],
+               "steel_moment_frame", "steel_moment_frame")
+    assert m.capacity_caption.endswith("; grade: none, as no method here gives one (FEMA 352 "
+                                       "gives a level, not a grade)")
+    # concrete walls with a FEMA 306 mode: JBDPA's R and FEMA 306 both grade, the worse taken
+    m = _model([{"kind": "wall", "count": 2, "dir": "x", "mode": "flexure", "severity": "heavy",
+                 "crack_mm": 1.4}], "rc_wall", "rc_frame")
+    assert "; grade: the worse of JBDPA's, from R, and ours, from the FEMA 306 ratio" in \
+        m.capacity_caption
+    # every vertical member at class V: the rule of ours is named
+    m = _model([{"kind": "column", "count": 4, "damage_class": "V",
+                 "override_reason": "crushed"}], "rc_frame", "rc_frame")
+    assert m.storeys[0].grade == "collapse"
+    assert m.capacity_caption.endswith("; collapse: every vertical member of the storey logged "
+                                       "at class V (two or more), or a collapse hazard there "
+                                       "(rules of ours, not JBDPA grades)")
 
 
 def test_the_pdf_storey_table_heads_the_column_in_words_with_its_caption() -> None:

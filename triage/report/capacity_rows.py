@@ -59,14 +59,35 @@ def capacity_cell(a: Assessment, s: StoreyResult) -> str:
 
 
 def capacity_caption(a: Assessment) -> str:
-    """The caption's sentence on the capacity column: each method this report shows, in words."""
+    """The caption on the capacity and grade columns: each method this report shows, in words."""
     used = {m for s in a.storeys for m in storey_methods(a, s)}
     if not used:
-        return ("capacity: residual capacity ratio where a published method covers the system "
+        head = ("capacity: residual capacity ratio where a published method covers the system "
                 "(none here)")
-    said = "; ".join(METHOD_CAPTIONS[m] for m in METHOD_NAMES if m in used)
-    return (f"capacity: the storey's residual capacity ratio, its worse direction, with the "
-            f"method that gave it: {said}")
+    else:
+        said = "; ".join(METHOD_CAPTIONS[m] for m in METHOD_NAMES if m in used)
+        head = (f"capacity: the storey's residual capacity ratio, its worse direction, with the "
+                f"method that gave it: {said}")
+    return f"{head}; {_grade_caption(a)}"
+
+
+def _grade_caption(a: Assessment) -> str:
+    """Where the grade column's grades come from, for the methods of this building."""
+    graded = {c.method for c in a.residual_capacity if c.grade is not None}
+    if {"jbdpa", "fema306"} <= graded:
+        said = "grade: the worse of JBDPA's, from R, and ours, from the FEMA 306 ratio"
+    elif "jbdpa" in graded:
+        said = "grade: JBDPA's, from R"
+    elif "fema306" in graded:
+        said = "grade: ours, from the FEMA 306 ratio (JBDPA's bounds read onto it)"
+    else:
+        said = "grade: none, as no method here gives one" + (
+            " (FEMA 352 gives a level, not a grade)"
+            if any(c.method == "fema352" for c in a.residual_capacity) else "")
+    if any(s.damage_grade == "collapse" for s in a.storeys):
+        said += ("; collapse: every vertical member of the storey logged at class V (two or "
+                 "more), or a collapse hazard there (rules of ours, not JBDPA grades)")
+    return said
 
 
 def capacity_seen(mr: MemberResult) -> list[str]:

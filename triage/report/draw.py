@@ -215,8 +215,7 @@ def _storeys(m: ReportModel) -> list[Any]:
                   s.grade, s.access] for s in reversed(m.storeys)], w)
     return section("Storeys (top to bottom)", [tab, para(
         "drift: the largest absolute residual drift ratio read in the storey; level by drift "
-        f"(FEMA 356 figures); {m.capacity_caption}; grade: JBDPA's from R, or ours from a "
-        "FEMA 306 ratio (the worse where both apply).", "small")])
+        f"(FEMA 356 figures); {m.capacity_caption}.", "small")])
 
 
 def _members(m: ReportModel) -> list[Any]:

@@ -85,10 +85,14 @@ def test_an_embedded_survey_this_engine_refuses_is_exit_5(clinic_pair, key, tmp_
     assert v.warning.startswith(f"{out}: imported with a warning: intact, signed by")
 
 
-@pytest.mark.parametrize("change", [lambda d: d.pop("tier"), lambda d: d.update(tier="maybe")],
-                         ids=["no tier", "an unknown tier"])
+@pytest.mark.parametrize("change,said", [
+    (lambda d: d.pop("tier"), ["tier: field required"]),
+    (lambda d: d.update(tier="maybe"), ["tier: input should be 'occupy', 'hold' or 'evacuate'"]),
+    (lambda d: (d.pop("tier"), d.pop("building")), ["building: field required",
+                                                    "tier: field required"]),
+], ids=["no tier", "an unknown tier", "two keys"])
 def test_an_embedded_assessment_this_engine_cannot_read_is_exit_5(clinic_pair, key, tmp_path,
-                                                                  monkeypatch, change):
+                                                                  monkeypatch, change, said):
     s, a = clinic_pair
     d = json.loads(a.to_json())
     change(d)
@@ -99,8 +103,11 @@ def test_an_embedded_assessment_this_engine_cannot_read_is_exit_5(clinic_pair, k
     monkeypatch.undo()
     r = verify_report(out, trusted=[key.public])
     assert r.code == 5, r.message
-    assert r.message.endswith("; but this engine cannot read the embedded assessment (1 "
-                              "validation error for Assessment)"), r.message
+    # each key refused is named, never "1 validation error for Assessment"
+    more = f"; {len(said)} keys refused, each in the notes" if len(said) > 1 else ""
+    assert r.message.endswith(f"; but this engine cannot read the embedded assessment "
+                              f"({said[0]}{more})"), r.message
+    assert r.notes == tuple(f"embedded assessment: {x}" for x in said)
     assert "\n" not in r.message
 
 
@@ -135,3 +142,10 @@ def test_every_rule_an_embedded_survey_breaks_is_named_once_each(clinic_pair, ke
     lines = capsys.readouterr().err.splitlines()
     assert lines == [f"triage verify: {r.message}",
                      *(f"triage verify: {out}: note: {n}" for n in r.notes)]
+
+
+def test_an_assessment_error_that_is_not_pydantics_is_one_line() -> None:
+    from triage.report.verify import _error_lines
+
+    assert _error_lines(ValueError("no tier here\nsecond line")) == ["no tier here"]
+    assert _error_lines(ValueError("")) == ["ValueError"]

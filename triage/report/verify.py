@@ -265,6 +265,19 @@ def _trusted_or_none() -> list[PublicKey] | None:
         return None
 
 
+def _error_lines(err: ValueError) -> list[str]:
+    """`key.path: what is wrong` for each error of a pydantic `ValidationError` (else one)."""
+    errors = getattr(err, "errors", None)
+    if not callable(errors):
+        return [str(err).splitlines()[0] if str(err) else type(err).__name__]
+    out = []
+    for e in errors(include_url=False):
+        path = "".join(f"[{p}]" if isinstance(p, int) else f".{p}" for p in e.get("loc", ()))
+        msg = str(e.get("msg", ""))
+        out.append(f"{path.lstrip('.') or '(assessment)'}: {msg[:1].lower()}{msg[1:]}")
+    return out or [str(err).splitlines()[0]]
+
+
 def _reassess(survey_data: Any, assess_data: Any) -> tuple[int, str, list[str]]:
     """Re-assess the embedded survey with this engine and compare with the embedded result."""
     from triage import __version__
@@ -281,9 +294,11 @@ def _reassess(survey_data: Any, assess_data: Any) -> tuple[int, str, list[str]]:
             f"embedded survey: {r}" for r in rules]
     try:
         old = parse_assessment(assess_data)
-    except ValueError as err:
-        return 5, ("but this engine cannot read the embedded assessment "
-                   f"({str(err).splitlines()[0]})"), []
+    except ValueError as err:   # a pydantic ValidationError: each error in the notes
+        rules = _error_lines(err)
+        more = f"; {len(rules)} keys refused, each in the notes" if len(rules) > 1 else ""
+        return 5, f"but this engine cannot read the embedded assessment ({rules[0]}{more})", [
+            f"embedded assessment: {r}" for r in rules]
     new = assess(survey)
     notes = []
     if old.engine.version != __version__:

@@ -343,6 +343,9 @@ def test_command_text_starts_with_the_caution_and_escapes_control_characters(tmp
     assert done.returncode == 0, done.stderr
     assert done.stdout.startswith("CAUTION: Indicative")
     assert "engineer of record" in done.stdout.splitlines()[1]
+    # each survey by its code and whole id, as reports print them
+    assert f"earlier: survey 0c3d2a1b (id {OLD_ID}) by Tess Tester" in done.stdout
+    assert f"later:   survey 0c3d2a1b (id {NEW_ID}) by Tess Tester" in done.stdout
     assert "\x1b" not in done.stdout and "A\\u001b[2J" in done.stdout
     assert "significant" in done.stdout and "movement beyond chance" in done.stdout
     js = subprocess.run([*run, old, new, "--format", "json"], capture_output=True, text=True)

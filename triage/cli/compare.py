@@ -142,8 +142,10 @@ def text(result: Comparison, old: Survey, new: Survey) -> str:
             "This comparison is indicative too: the engineer of record decides what a change "
             "means for the building.", "",
             f"{new.building.name}, {new.building.address}: what changed between the two surveys",
-            f"earlier: {old.survey_id} by {old.inspection.inspector.name}",
-            f"later:   {new.survey_id} by {new.inspection.inspector.name}",
+            f"earlier: survey {str(old.survey_id)[:8]} (id {old.survey_id}) by "
+            f"{old.inspection.inspector.name}",
+            f"later:   survey {str(new.survey_id)[:8]} (id {new.survey_id}) by "
+            f"{new.inspection.inspector.name}",
             *([] if result.same_building else ["NOTE: these are surveys of different buildings"]),
             ""]
     k = f"{result.k:g}"

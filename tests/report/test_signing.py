@@ -288,7 +288,8 @@ def test_other_engine_version_and_assumptions_named(clinic_pair, tmp_path: Path)
     r = verify_report(out)
     assert r.code == 0, r.message
     assert "engine 0.0.9" in r.message
-    assert "keep_out_factor 1.5 then, 1.0 now" in r.message
+    # the assumption in words (docs: no internal key reaches a person)
+    assert "assumptions differ: keep-out width per height 1.5 then, 1.0 now" in r.message
 
 
 def test_first_way_reports_differ_only_by_time(clinic_pair, tmp_path: Path):

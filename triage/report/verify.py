@@ -308,8 +308,11 @@ def _reassess(survey_data: Any, assess_data: Any) -> tuple[int, str, list[str]]:
     changed = sorted(k for k in set(now) | set(old.engine.assumptions)
                      if now.get(k) != old.engine.assumptions.get(k))
     if changed:
+        from triage.standards.vocabulary import words
+
         notes.append("assumptions differ: " + ", ".join(
-            f"{k} {old.engine.assumptions.get(k)!r} then, {now.get(k)!r} now" for k in changed))
+            f"{words('assumptions', k)} {old.engine.assumptions.get(k)!r} then, "
+            f"{now.get(k)!r} now" for k in changed))
     was = f"{old.tier}/{old.performance_level or 'no level'}"
     now_txt = f"{new.tier}/{new.performance_level or 'no level'}"
     if (old.tier, old.performance_level) != (new.tier, new.performance_level):

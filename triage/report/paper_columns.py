@@ -15,7 +15,7 @@ Pure data and the vocabulary: no reportlab here, so the tests can read the same 
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from typing import Literal
 
@@ -57,8 +57,9 @@ class MemberCol:
     """A row of the member-grid table: a member-group field and where it belongs.
 
     `kinds` and `materials` limit the column to those member kinds and to members of a system of
-    those materials (None: every one). `field = "signs"` stands for one tick column per sign the
-    forms list for the kind.
+    those materials (None: every one); `where`, when given, to grids it says yes to for the kind
+    and the grid's systems (the rules the screens use: `triage.standards.takes_*`).
+    `field = "signs"` stands for one tick column per sign the forms list for the kind.
     """
 
     field: str
@@ -68,6 +69,7 @@ class MemberCol:
     materials: tuple[str, ...] | None = None
     head: str = ""       # heading when the field's own words need more (else the vocabulary's)
     choices: str = ""
+    where: Callable[[str, Sequence[str]], bool] | None = None
 
 
 def _field_head(block: str, field: str) -> str:
@@ -89,6 +91,13 @@ MEMBER_COLUMNS: tuple[MemberCol, ...] = (
               head=f"{words('fields.member_group', 'weight')} (blank: 1)"),
     MemberCol("crack_mm", 44.0, materials=CRACK_MATERIALS),
     MemberCol("crack_sd_mm", 46.0, materials=CRACK_MATERIALS),
+    # residual capacity beyond concrete: written as the look-up sheet lists them
+    MemberCol("inspected", 44.0, where=standards.takes_inspected,
+              head=f"{words('fields.member_group', 'inspected')} (blank: all)"),
+    MemberCol("connection_type", 50.0, where=standards.takes_connection_type,
+              head=f"{words('fields.member_group', 'connection_type')} (code)"),
+    MemberCol("mode", 62.0, where=standards.takes_wall_mode),
+    MemberCol("severity", 56.0, where=standards.takes_wall_mode),
     MemberCol("signs", 42.0, "tick"),
     MemberCol("damage_class", 40.0, head=f"{words('fields.member_group', 'damage_class')} "
                                         "(I–V)"),
@@ -152,6 +161,8 @@ def member_columns(kind: str, systems: Sequence[str],
         if mc.kinds is not None and kind not in mc.kinds:
             continue
         if mc.materials is not None and not mats & set(mc.materials):
+            continue
+        if mc.where is not None and not mc.where(kind, systems):
             continue
         if mc.field == "signs":
             out += [Col(words("signs", s), mc.width, "tick", field=f"member_group.signs.{s}")

@@ -8,6 +8,7 @@ Nothing here computes: `triage.assess` reads these objects.
 from __future__ import annotations
 
 import tomllib
+from collections.abc import Sequence
 from functools import cache
 from pathlib import Path
 from typing import Any, Literal
@@ -353,8 +354,49 @@ def wall_modes_of(kind: str) -> tuple[str, ...]:
     return (*(m for m in WALL_MODES if m in found), "unknown")
 
 
+STEEL_MOMENT_FRAME = "steel_moment_frame"  # the one system FEMA 352's damage types are read in
+
+
+def takes_connection_type(kind: str, systems: Sequence[str]) -> bool:
+    """Whether a group of this kind records a FEMA 352 type in a building of these systems.
+
+    A connection of a steel moment frame; elsewhere a type is kept but only sets the class, so
+    screens and paper forms do not ask for it.
+    """
+    return kind == "connection" and STEEL_MOMENT_FRAME in systems
+
+
+def takes_wall_mode(kind: str, systems: Sequence[str]) -> bool:
+    """Whether a group of this kind records a FEMA 306 mode and severity in these systems.
+
+    A wall or infill panel of a component type FEMA 306 covers in one of them.
+    """
+    walls = load().walls
+    return any(walls.component_of(kind, s) is not None for s in systems)
+
+
+def takes_inspected(kind: str, systems: Sequence[str]) -> bool:
+    """Whether screens and paper forms ask how many of a group's members were inspected.
+
+    With a FEMA 352 type or a FEMA 306 mode: the methods whose ratios count members seen.
+    """
+    return takes_connection_type(kind, systems) or takes_wall_mode(kind, systems)
+
+
+def wall_modes_kept(kind: str, systems: Sequence[str]) -> tuple[str, ...]:
+    """The FEMA 306 modes the tool keeps for this kind in these systems, "unknown" last."""
+    walls = load().walls
+    kept: set[str] = set()
+    for s in systems:
+        found = walls.component_of(kind, s)
+        if found is not None:
+            kept |= set(found[1].modes)
+    return (*(m for m in WALL_MODES if m in kept), "unknown")
+
+
 __all__ = ["CLASSES", "DIRS", "GRADES", "HERE", "LEVELS", "SEVERITIES", "WALL_MODES",
            "Assumption", "Assumptions", "CapacityTable", "DamageClass", "DriftTable", "Grade",
            "Level", "Severity", "Source", "Standards", "Status", "SteelTable", "WallMode",
            "WallTable", "connection_type_keys", "hazard_keys", "load", "sign_keys",
-           "system_keys", "wall_modes_of", "with_tables"]
+           "system_keys", "takes_connection_type", "takes_inspected", "takes_wall_mode",
+           "wall_modes_kept", "wall_modes_of", "with_tables"]

@@ -99,3 +99,60 @@ def class_texts(systems: tuple[str, ...]) -> dict[str, str]:
         return dict(f.class_text)
     return {}
 
+
+
+# --- residual capacity beyond concrete: what a member group of these systems may record ---
+
+def connection_type_choices() -> list[tuple[str, str]]:
+    """(words, code) of every FEMA 352 connection damage type: the code with its family."""
+    from triage import standards
+    from triage.standards.vocabulary import words
+
+    return [(words("connection_types", c), c) for c in standards.connection_type_keys()]
+
+
+def wall_mode_choices(kind: str, systems: tuple[str, ...]) -> list[tuple[str, str]]:
+    """(words, key) of the FEMA 306 modes the tool keeps for this kind in these systems.
+
+    In the table's order, "not known" last (it takes the worst of the type's modes).
+    """
+    from triage import standards
+    from triage.standards.vocabulary import words
+
+    return [(words("wall_modes", m), m) for m in standards.wall_modes_kept(kind, systems)]
+
+
+def severity_choices() -> list[tuple[str, str]]:
+    """(words, key) of the FEMA 306 severities, insignificant to extreme."""
+    from triage.standards import SEVERITIES
+    from triage.standards.vocabulary import words
+
+    return [(words("severities", s), s) for s in SEVERITIES]
+
+
+def capacity_hint(kind: str, connection_type: str | None, mode: str | None,
+                  severity: str | None) -> str:
+    """What the picked FEMA 352 type, or FEMA 306 mode and severity, mean: in words."""
+    from triage import standards
+    from triage.standards.vocabulary import describe, meaning, words
+
+    std = standards.load()
+    if kind == "connection":
+        if connection_type is None:
+            dflt = std.assumptions.fema352_fractured_type
+            return (f"FEMA 352 damage type blank: none seen (with {words('signs', FRACTURED)} "
+                    f"ticked, taken as {words('connection_types', dflt)}, ours)")
+        t = std.steel.types[connection_type]
+        return (f"FEMA 352 type {words('connection_types', connection_type)}: "
+                f"{describe('connection_types', connection_type)}; damage index {t.index:g} "
+                "(from memory)")
+    m = ("behaviour mode blank: the worst of the wall's modes is taken" if mode is None
+         else f"behaviour mode {words('wall_modes', mode)}"
+         + (f" ({meaning('wall_modes', mode)})" if meaning("wall_modes", mode) else ""))
+    s = ("FEMA 306 severity blank: read from the widest crack on the mode's bounds"
+         if severity is None else
+         f"FEMA 306 severity {words('severities', severity)}: {meaning('severities', severity)}")
+    return f"{m} · {s} (from memory)"
+
+
+FRACTURED = "connection_fractured"  # the sign that, without a type, takes our default type

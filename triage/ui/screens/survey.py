@@ -304,7 +304,8 @@ class SurveyScreen(Screen[None]):
         pane = next((a for a in event.field.ancestors if isinstance(a, ItemPane)), None)
         if pane is not None:
             pane.retry_refused(event.field)
-        if event.path.endswith((".count", ".kind", ".crack_mm", ".signs", ".damage_class")):
+        if event.path.endswith((".count", ".kind", ".crack_mm", ".signs", ".damage_class",
+                                ".inspected", ".connection_type", ".severity")):
             set_text(self.query_one(MembersPane).class_line, "class: working it out …",
                      fixed=True)
 

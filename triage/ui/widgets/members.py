@@ -12,9 +12,17 @@ from textual.containers import Horizontal, Vertical
 from textual.widgets import Label, OptionList, SelectionList, Static
 
 from triage import standards
-from triage.standards import CLASSES
+from triage.standards import CLASSES, takes_connection_type, takes_inspected, takes_wall_mode
 from triage.standards.vocabulary import words
-from triage.ui.choices import class_texts, member_kinds, sign_choices
+from triage.ui.choices import (
+    capacity_hint,
+    class_texts,
+    connection_type_choices,
+    member_kinds,
+    severity_choices,
+    sign_choices,
+    wall_mode_choices,
+)
 from triage.ui.messages import FieldAccepted
 from triage.ui.widgets.field import Choice, Field, Saving, set_text
 from triage.ui.widgets.pane import ItemPane, values_of
@@ -28,8 +36,9 @@ class MemberField:
 
     `build(pane)` makes the widget (a `Field` or `Choice`; the pane gives the building's
     systems); `default` is a new group's value; `kinds`, when given, shows the field only for
-    those member kinds (a connection's type, a wall's mode); `keep`: a new group keeps the
-    last group's value.
+    those member kinds (a connection's type, a wall's mode); `where`, when given, only where
+    it says yes for the kind and the building's systems (a FEMA 352 type in a steel moment
+    frame); `keep`: a new group keeps the last group's value.
     """
 
     key: str
@@ -37,6 +46,13 @@ class MemberField:
     default: Any = None
     kinds: tuple[str, ...] = ()
     keep: bool = False
+    where: Callable[[str, tuple[str, ...]], bool] | None = None
+
+    def shown(self, kind: str, systems: tuple[str, ...]) -> bool:
+        """Whether the field is shown (and gathered) for a group of this kind here."""
+        if self.kinds and kind not in self.kinds:
+            return False
+        return self.where is None or self.where(kind, systems)
 
 
 def _kinds(pane: Any) -> Any:
@@ -51,6 +67,18 @@ FIELDS: tuple[MemberField, ...] = (
     MemberField("signs", lambda p: SignChecks(id="m-signs"), ()),
     MemberField("crack_mm", lambda p: Field("widest crack", None, kind="float", unit="mm",
                                             id="m-crack", placeholder="none")),
+    MemberField("inspected", lambda p: Field(
+        "inspected", None, kind="int", id="m-inspected", placeholder="all of them"),
+        kinds=("connection", "wall", "infill"), where=takes_inspected),
+    MemberField("connection_type", lambda p: Choice(
+        words("fields.member_group", "connection_type"), None, connection_type_choices(), None,
+        allow_blank=True, id="m-conn-type"), kinds=("connection",), where=takes_connection_type),
+    MemberField("mode", lambda p: Choice(
+        words("fields.member_group", "mode"), None, wall_mode_choices("wall", p.systems()),
+        None, allow_blank=True, id="m-mode"), kinds=("wall", "infill"), where=takes_wall_mode),
+    MemberField("severity", lambda p: Choice(
+        words("fields.member_group", "severity"), None, severity_choices(), None,
+        allow_blank=True, id="m-severity"), kinds=("wall", "infill"), where=takes_wall_mode),
     MemberField("ref", lambda p: Field("ref", None, id="m-ref", placeholder="e.g. C3")),
     MemberField("ductility", lambda p: Choice(
         "ductility", None, [("ductile", "ductile"), ("brittle (short, shear)", "brittle")],
@@ -253,21 +281,52 @@ class MembersPane(ItemPane):
                 str(len(item.signs)) if item.signs else "", cls, frm)
 
     def form_widgets(self) -> ComposeResult:
-        """The fields of FIELDS, in order; the class line under them."""
+        """The fields of FIELDS in order, then the class line.
+
+        The line saying what the capacity picks mean comes right after the last of them.
+        """
+        self.capacity_line = Static("", classes="pane-note capacity-line")
         for spec in FIELDS:
             widget = spec.build(self)
             widget.key = spec.key
             if spec.key == "signs":
                 self.signs = widget
             yield widget
+            if spec.key == "severity":   # what the capacity picks mean, right under them
+                yield self.capacity_line
         self.class_line = Static("", classes="pane-note class-line")
         yield self.class_line
 
     def shown_for(self, kind: str) -> None:
-        """Show the fields that apply to a member kind."""
+        """Show the fields that apply to a member kind in this building.
+
+        With them the kind's own list of modes (a wall's or an infill panel's) and what the
+        capacity fields mean.
+        """
+        systems = self.systems()
         for spec in FIELDS:
-            if spec.kinds:
-                self.form[spec.key].display = kind in spec.kinds
+            if spec.kinds or spec.where is not None:
+                self.form[spec.key].display = spec.shown(kind, systems)
+        mode = self.form["mode"]
+        if mode.display and getattr(self, "_modes_kind", "wall") != kind:
+            self._modes_kind = kind
+            keep = mode.value()
+            options = wall_mode_choices(kind, systems)
+            mode.set_options(options, keep if keep in {v for _, v in options} else None)
+        self.show_capacity()
+
+    def show_capacity(self) -> None:
+        """Under the class line, what the picked FEMA 352 type or FEMA 306 mode and severity mean.
+
+        Shown only where the group takes them.
+        """
+        kind = self.form["kind"].value() or "column"
+        fields = [k for k in ("connection_type", "mode", "severity") if self.form[k].display]
+        self.capacity_line.display = bool(fields)
+        if fields:
+            set_text(self.capacity_line, capacity_hint(
+                kind, self.form["connection_type"].value(), self.form["mode"].value(),
+                self.form["severity"].value()))
 
     def fill(self, item: Any | None) -> None:
         """A group's values, or a new group (the kind kept from the last one)."""
@@ -279,10 +338,11 @@ class MembersPane(ItemPane):
             self.form["kind"].set_value(kind)
             selected: list[str] = []
         else:
+            kind, selected = item.kind, list(item.signs)
+            self.shown_for(kind)   # the kind's own mode list, before its mode is shown
             for spec in FIELDS:
                 if spec.key != "signs":
                     self.form[spec.key].set_value(getattr(item, spec.key, None))
-            kind, selected = item.kind, list(item.signs)
         self._signs_kind = kind
         self.signs.set_choices(sign_choices(self.systems(), kind), selected)
         self.shown_for(kind)
@@ -330,14 +390,17 @@ class MembersPane(ItemPane):
         self.shown_for(kind)
 
     def form_changed(self, widget: Any) -> None:
-        """A new kind offers its own signs and fields."""
+        """A new kind offers its own signs and fields; a capacity pick says what it means."""
         if widget is self.form["kind"]:
             self.kind_picked(widget.value())
+        self.show_capacity()
 
     def on_field_accepted(self, event: FieldAccepted) -> None:
         """Kind changed in edit mode: offer its signs too (the save goes on up)."""
         if self.editing is not None and event.field is self.form["kind"]:
             self.kind_picked(event.value)
+        if self.editing is not None:
+            self.show_capacity()
         if self.editing is None and event.field is self.signs:
             event.stop()
             event.prevent_default()  # gathered with the new group, not added on its own
@@ -346,8 +409,9 @@ class MembersPane(ItemPane):
     def build_item(self) -> dict[str, Any]:
         """The group from the form."""
         kind = self.form["kind"].value() or "column"
+        systems = self.systems()
         data = values_of(self.form, [f.key for f in FIELDS if f.key != "signs"
-                                     and (not f.kinds or kind in f.kinds)])
+                                     and f.shown(kind, systems)])
         if "count" not in data:
             raise ValueError("count: how many members the group holds is needed")
         if data.get("weight") == 1:

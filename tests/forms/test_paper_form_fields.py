@@ -65,7 +65,10 @@ READING_KEYS = {"direction": "dir", "where": "where", "offset (mm)": "offset_mm"
 MEMBER_KEYS = {"mark": "ref", "count": "count", "ductility: tick if brittle": "ductility",
                "acts in (blank: both)": "dir", "weight per member (blank: 1)": "weight",
                "widest crack (mm)": "crack_mm", "crack uncertainty (mm)": "crack_sd_mm",
-               "class set by hand (I–V)": "damage_class", "why set by hand": "override_reason"}
+               "class set by hand (I–V)": "damage_class", "why set by hand": "override_reason",
+               "members inspected (blank: all)": "inspected",
+               "FEMA 352 damage type (code)": "connection_type", "behaviour mode": "mode",
+               "FEMA 306 severity": "severity"}
 HAZARD_KEYS = {"kind, and where to look": "kind", "where": "where", "storey": "storey",
                "height above ground (m)": "height_above_ground_m", "note": "note"}
 STEEL = ("steel_moment_frame", "steel_braced_frame")

@@ -27,6 +27,12 @@ READINGS = ["#", "direction", "where", "offset (mm)", "gauge (mm)", "uncertainty
 HAZARDS = ["seen", "kind, and where to look", "where", "storey", "height above ground (m)",
            "note"]
 CRACKED = {"reinforced concrete", "masonry"}   # materials judged by crack width
+# Residual capacity beyond concrete (docs/method.md, section 4a): FEMA 352 types on a steel
+# moment frame's connections; FEMA 306 modes and severities on the walls and infill panels of
+# the systems whose component types it covers.
+FEMA352 = {"connection": {"steel_moment_frame"}}
+FEMA306 = {"wall": {"urm_wall", "urm_infill", "reinforced_masonry_wall", "rc_wall"},
+           "infill": {"urm_infill"}}
 
 
 def expected_member_heads(kind: str, systems: tuple[str, ...], signs: list[str]) -> list[str]:
@@ -41,6 +47,14 @@ def expected_member_heads(kind: str, systems: tuple[str, ...], signs: list[str])
     table = standards.load().systems
     if {table[s].material for s in systems} & CRACKED:
         heads += ["widest crack (mm)", "crack uncertainty (mm)"]
+    steel = bool(FEMA352.get(kind, set()) & set(systems))
+    walls = bool(FEMA306.get(kind, set()) & set(systems))
+    if steel or walls:
+        heads.append("members inspected (blank: all)")
+    if steel:
+        heads.append("FEMA 352 damage type (code)")
+    if walls:
+        heads += ["behaviour mode", "FEMA 306 severity"]
     heads += [words("signs", s) for s in signs]
     return [*heads, "class set by hand (I–V)", "why set by hand"]
 

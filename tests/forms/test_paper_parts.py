@@ -34,12 +34,16 @@ def test_a_field_without_words_is_refused_by_name() -> None:
 def test_member_columns_follow_kind_and_material() -> None:
     heads = [c.head for c in member_columns("connection", ["steel_moment_frame"],
                                             [("connection_fractured", "welds")])]
-    assert heads == ["mark", "count", "acts in (blank: both)", "connection broken",
+    assert heads == ["mark", "count", "acts in (blank: both)", "members inspected (blank: all)",
+                     "FEMA 352 damage type (code)", "connection broken",
                      "class set by hand (I–V)", "why set by hand"]
+    heads = [c.head for c in member_columns("connection", ["steel_braced_frame"], [])]
+    assert "FEMA 352 damage type (code)" not in heads   # read in moment frames only
     heads = [c.head for c in member_columns("wall", ["urm_wall", "wood_stud_wall"], [])]
     assert "widest crack (mm)" in heads and "weight per member (blank: 1)" in heads
+    assert "behaviour mode" in heads and "FEMA 306 severity" in heads
     heads = [c.head for c in member_columns("wall", ["wood_stud_wall"], [])]
-    assert "widest crack (mm)" not in heads
+    assert "widest crack (mm)" not in heads and "behaviour mode" not in heads
 
 
 def test_one_or_two_forms_and_no_more(tmp_path: Path) -> None:

@@ -21,12 +21,13 @@ KEY = re.compile(r"\b[a-z]+_[a-z_]+\b|\w+\[\d+\]")
 CAPACITY = ("inspected", "connection_type", "mode", "severity")
 
 
-def _add_steel(db: Path) -> None:
+def _add_steel(db: Path, sid: str = STEEL, sx: str = "steel_moment_frame",
+               sy: str = "steel_braced_frame") -> None:
     from helpers import reading, storey, survey_dict
 
     d = survey_dict([storey("G", [reading("x", 1.0), reading("y", 1.0)], members=[])],
-                    sx="steel_moment_frame", sy="steel_braced_frame", name="Wharf Shed")
-    d["id"] = STEEL
+                    sx=sx, sy=sy, name="Wharf Shed")
+    d["id"] = sid
     d["building"]["address"] = "9 Wharf Road, Kōwhai Bay"
     with Store.open(db) as st:
         st.add_survey(parse_survey(d), "Tess Tester", "test")
@@ -128,3 +129,28 @@ async def test_a_concrete_frame_asks_for_none_of_them(db: Path, make_app) -> Non
             await pick(pilot, "m-kind", kind)
             assert _shown(pane) == set(), kind
             assert not pane.capacity_line.display
+
+
+INFILL = "44444444-4444-4444-8444-444444444444"
+
+
+async def test_each_kind_offers_its_own_modes(db: Path, make_app) -> None:
+    _add_steel(db, INFILL, "urm_infill", "urm_infill")
+    app: TriageApp = make_app(db, open_survey=INFILL)
+    async with app.run_test(size=(80, 24)) as pilot:
+        pane = await _members(pilot)
+        await pick(pilot, "m-kind", "wall")   # a masonry pier of the frame
+        assert "rocking" in _texts(pane.form["mode"])
+        await pick(pilot, "m-mode", "diagonal_tension")
+        await pick(pilot, "m-kind", "infill")
+        modes = _texts(pane.form["mode"])
+        assert modes == ["diagonal tension", "bed-joint sliding", "corner crushing",
+                         "not known"]
+        assert pane.form["mode"].value() == "diagonal_tension"   # kept: an infill's mode too
+        await pick(pilot, "m-mode", "corner_crushing")
+        await pick(pilot, "m-kind", "wall")
+        assert pane.form["mode"].value() is None   # not a pier's mode: cleared
+        assert "worst of the wall's modes" in str(pane.capacity_line.render())
+        await pick(pilot, "m-mode", "unknown")
+        assert "not known (the worst mode of the wall's type is taken)" in str(
+            pane.capacity_line.render())

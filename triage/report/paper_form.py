@@ -26,6 +26,7 @@ from triage.assess import CAUTION
 from triage.forms import Form
 from triage.standards.vocabulary import entry, many, words
 
+from .paper_capacity import capacity_lookup, capacity_step
 from .paper_columns import (
     DAMAGED_ROWS_OTHER,
     DAMAGED_ROWS_VERTICAL,
@@ -157,7 +158,8 @@ def _instructions(d: Sheet, grids: Sequence[KindGrid], sec: str) -> None:
         "offset or tilt at that spot with its uncertainty when known.",
         "4. Members: count the sound members of each kind on its first line; log each damaged "
         f"member (or group damaged alike) on its own line with its mark, {crack}and tick the "
-        f"signs seen: {lines} in each storey band. Set a class by hand only with the reason.",
+        f"signs seen: {lines} in each storey band. Set a class by hand only with the reason."
+        + capacity_step([(g.kind, g.systems) for g in grids]),
         "5. Sign at the end. The look-up sheet says what each sign and class looks like.",
     ]
     d.heading("How to fill it in", sec, 9)
@@ -291,6 +293,12 @@ def _lookup(d: Sheet, form: Form) -> None:
            w, 8.5, bold=True, section=sec)
     for c, text in form.class_text.items():
         d.para(MARGIN + 8, f"{c}: {text}", w - 8, 7.5, section=sec)
+    for head, lines in capacity_lookup(form.member_kinds, (form.system,)):
+        d.need(30, sec)
+        d.y -= 6
+        d.para(MARGIN, head, w, 8.5, bold=True, section=sec)
+        for text in lines:
+            d.para(MARGIN + 8, text, w - 8, 7, section=sec)
 
 
 def _forms(forms: Form | Sequence[Form]) -> tuple[Form, ...]:

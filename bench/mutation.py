@@ -58,7 +58,7 @@ GROUPS = [
            "tests/store/test_area_rows.py")),
     Group("signing", ("triage/report/signing.py",),
           ("tests/report/test_signing.py", "tests/report/test_first_round.py",
-           "tests/report/test_keys.py")),
+           "tests/report/test_keys.py", "tests/report/test_signing_parts.py")),
     Group("verify", ("triage/report/verify.py",),
           ("tests/report/test_signing.py", "tests/report/test_verify_edges.py",
            "tests/report/test_first_round.py", "tests/report/test_verify_more.py")),

@@ -1,11 +1,48 @@
-"""Builders of survey data for tests: small, explicit, invented (no real place or person)."""
+"""Builders of survey data for tests: small, explicit, invented (no real place or person); and
+the fixtures several test folders share, which a folder's conftest takes in by importing them
+(`triage_home`, private keys for every test; `cli`, the command in this process)."""
 
 from __future__ import annotations
 
 import copy
+import json
+from collections.abc import Callable
+from pathlib import Path
 from typing import Any
 
+import pytest
+
 from triage.model import Survey, parse_survey
+
+Run = Callable[..., tuple[int, str, str]]
+
+
+@pytest.fixture(autouse=True)
+def triage_home(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
+    """Keys and trusted keys of each test live in its own folder; no passphrase from outside."""
+    home = tmp_path / "home"
+    home.mkdir()
+    monkeypatch.setenv("TRIAGE_HOME", str(home))
+    monkeypatch.delenv("TRIAGE_KEY_PASSPHRASE", raising=False)
+    return home
+
+
+@pytest.fixture
+def cli(capsys: pytest.CaptureFixture[str]) -> Run:
+    """`triage ARGS` in this process: (status, stdout, stderr)."""
+    from triage.cli import main
+
+    def run(*argv: str) -> tuple[int, str, str]:
+        code = main(list(argv))
+        got = capsys.readouterr()
+        return code, got.out, got.err
+    return run
+
+
+def write_json(path: Path, data: Any) -> Path:
+    """`data` as a UTF-8 JSON file (characters kept), returning the path."""
+    path.write_text(json.dumps(data, ensure_ascii=False), encoding="utf-8")
+    return path
 
 
 def reading(d: str, offset_mm: float, gauge_mm: float = 2000.0, sd_mm: float | None = 1.0,
@@ -62,7 +99,8 @@ def make(storeys: list[dict[str, Any]], **kw: Any) -> Survey:
 
 
 def two_storey_frame() -> dict[str, Any]:
-    """The worked example of docs/method.md: storey 2 y at 0.60% in a concrete frame, one cracked column."""
+    """The worked example of docs/method.md: storey 2 y at 0.60% in a concrete frame, one cracked
+    column."""
     return survey_dict([
         storey("1", [reading("x", 1.0), reading("y", 1.6)], [{"kind": "column", "count": 20}]),
         storey("2", [reading("x", 2.0), reading("y", 12.0)],

@@ -2,24 +2,15 @@
 
 from __future__ import annotations
 
-from pathlib import Path
 from typing import Any
 
 import pytest
 
-from tests.helpers import reading, storey, survey_dict
+from tests.helpers import reading, storey, survey_dict, triage_home
 from triage.assess import assess
 from triage.model import Survey, parse_survey
 
-
-@pytest.fixture(autouse=True)
-def triage_home(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
-    """Keys and trusted keys of each test live in its own folder; no passphrase from outside."""
-    home = tmp_path / "home"
-    home.mkdir()
-    monkeypatch.setenv("TRIAGE_HOME", str(home))
-    monkeypatch.delenv("TRIAGE_KEY_PASSPHRASE", raising=False)
-    return home
+__all__ = ["clinic", "clinic_dict", "clinic_pair", "triage_home"]
 
 
 def clinic_dict() -> dict[str, Any]:

@@ -2,18 +2,30 @@
 
 from __future__ import annotations
 
-import json
-from collections.abc import Callable
+import sqlite3
 from datetime import UTC, datetime
 from pathlib import Path
 from typing import Any
 
 import pytest
 
-from tests.helpers import reading, storey, survey_dict
-from triage.cli import main
+from tests.helpers import cli, reading, storey, survey_dict, write_json
 from triage.model import Survey, parse_survey
 from triage.store import Store
+
+__all__ = [
+    "FIXED",
+    "cli",
+    "db",
+    "fetch",
+    "fixed_clock",
+    "laptop",
+    "sample",
+    "sample_dict",
+    "store",
+    "stored",
+    "write_json",
+]
 
 FIXED = datetime(2026, 11, 29, 1, 0, 0, tzinfo=UTC)
 
@@ -54,15 +66,21 @@ def stored(store: Store) -> tuple[Store, str]:
     return store, str(s.survey_id)
 
 
-@pytest.fixture
-def cli(capsys: pytest.CaptureFixture[str]) -> Callable[..., tuple[int, str, str]]:
-    def run(*argv: str) -> tuple[int, str, str]:
-        code = main(list(argv))
-        out, err = capsys.readouterr()
-        return code, out, err
-    return run
+def laptop(path: Path, *names: str) -> list[str]:
+    """A laptop's database at `path` holding one sample survey per name; their ids in order."""
+    with Store.open(path, who=path.stem) as st:
+        ids = []
+        for n in names:
+            s = sample(n)
+            st.add_survey(s)
+            ids.append(str(s.survey_id))
+    return ids
 
 
-def write_json(path: Path, data: Any) -> Path:
-    path.write_text(json.dumps(data, ensure_ascii=False), encoding="utf-8")
-    return path
+def fetch(db: Path, sql: str, *args: object) -> list[tuple[object, ...]]:
+    """The rows of one query on the database file, through a connection of its own."""
+    c = sqlite3.connect(db)
+    try:
+        return c.execute(sql, args).fetchall()
+    finally:
+        c.close()

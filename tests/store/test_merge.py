@@ -7,7 +7,7 @@ import json
 import sqlite3
 from pathlib import Path
 
-from tests.store.conftest import sample
+from tests.store.conftest import laptop
 from triage.store import Store
 from triage.store.area import building_rows
 from triage.store.merge import merge_into
@@ -28,20 +28,10 @@ def _dump(db: Path) -> dict[str, list[tuple[object, ...]]]:
     return out
 
 
-def _laptop(path: Path, names: list[str]) -> list[str]:
-    with Store.open(path, who=path.stem) as st:
-        ids = []
-        for n in names:
-            s = sample(n)
-            st.add_survey(s)
-            ids.append(str(s.survey_id))
-        return ids
-
-
 def test_merge_gathers_every_survey_with_its_log_and_again_changes_nothing(tmp_path, cli):
     a, b, target = tmp_path / "ana.db", tmp_path / "ben.db", tmp_path / "centre.db"
-    ids_a = _laptop(a, ["Clinic", "School"])
-    ids_b = _laptop(b, ["Warehouse"])
+    ids_a = laptop(a, "Clinic", "School")
+    ids_b = laptop(b, "Warehouse")
     with Store.open(a) as st:
         st.set_value(ids_a[0], "storeys[0].notes", "checked twice")
         st.record_report(ids_a[0], 2, "clinic.pdf", "aa")
@@ -67,7 +57,7 @@ def test_merge_gathers_every_survey_with_its_log_and_again_changes_nothing(tmp_p
 
 def test_a_source_edited_further_brings_the_target_forward(tmp_path):
     a, target = tmp_path / "ana.db", tmp_path / "centre.db"
-    (sid,) = _laptop(a, ["Clinic"])
+    (sid,) = laptop(a, "Clinic")
     with Store.open(target) as st:
         merge_into(st, [a])
     with Store.open(a) as st:
@@ -85,8 +75,8 @@ def test_a_source_edited_further_brings_the_target_forward(tmp_path):
 
 def test_edited_differently_on_two_laptops_keeps_both_and_flags_the_conflict(tmp_path, cli):
     a, b, target = tmp_path / "ana.db", tmp_path / "ben.db", tmp_path / "centre.db"
-    (sid,) = _laptop(a, ["Clinic"])
-    _laptop(b, ["Clinic"])   # the same survey file imported on both laptops
+    (sid,) = laptop(a, "Clinic")
+    laptop(b, "Clinic")   # the same survey file imported on both laptops
     with Store.open(a) as st:
         st.set_value(sid, "storeys[0].readings[0].offset_mm", 3.0)
     with Store.open(b) as st:
@@ -124,7 +114,7 @@ def test_edited_differently_on_two_laptops_keeps_both_and_flags_the_conflict(tmp
 
 def test_sources_are_never_changed_and_their_wal_edits_are_not_lost(tmp_path, cli):
     a, target = tmp_path / "ana.db", tmp_path / "centre.db"
-    (sid,) = _laptop(a, ["Clinic"])
+    (sid,) = laptop(a, "Clinic")
     live = Store.open(a)   # still open: the last edits are only in ana.db-wal
     live.conn.execute("PRAGMA wal_autocheckpoint = 0")
     live.set_value(sid, "storeys[0].notes", "only in the WAL")
@@ -147,11 +137,11 @@ def test_sources_are_never_changed_and_their_wal_edits_are_not_lost(tmp_path, cl
 
 def test_a_bad_or_newer_source_is_named_and_skipped_and_the_rest_go_on(tmp_path, cli):
     good, target = tmp_path / "good.db", tmp_path / "centre.db"
-    (sid,) = _laptop(good, ["Clinic"])
+    (sid,) = laptop(good, "Clinic")
     junk = tmp_path / "photo.db"
     junk.write_bytes(b"\xff\xd8\xff\xe0 not a database" * 10)
     newer = tmp_path / "newer.db"
-    _laptop(newer, ["School"])
+    laptop(newer, "School")
     c = sqlite3.connect(newer)
     c.execute("PRAGMA user_version = 7")
     c.close()
@@ -172,14 +162,14 @@ def test_a_bad_or_newer_source_is_named_and_skipped_and_the_rest_go_on(tmp_path,
 
 def test_merging_the_target_into_itself_is_refused(tmp_path, cli):
     target = tmp_path / "centre.db"
-    _laptop(target, ["Clinic"])
+    laptop(target, "Clinic")
     code, _, err = cli("merge", str(target), "--into", str(target))
     assert code == 1 and "is the target database itself" in err
 
 
 def test_merged_json_is_the_source_json(tmp_path):
     a, target = tmp_path / "ana.db", tmp_path / "centre.db"
-    ids = _laptop(a, ["Clinic", "Flats"])
+    ids = laptop(a, "Clinic", "Flats")
     with Store.open(target) as st:
         merge_into(st, [a])
         with Store.open(a) as src:
@@ -190,7 +180,7 @@ def test_merged_json_is_the_source_json(tmp_path):
 
 def test_a_damaged_source_with_its_wal_is_named_not_its_copy(tmp_path, cli):
     bad, target = tmp_path / "bad.db", tmp_path / "centre.db"
-    _laptop(bad, ["Clinic", "School", "Flats", "Shed", "Store", "Hall"])
+    laptop(bad, "Clinic", "School", "Flats", "Shed", "Store", "Hall")
     data = bytearray(bad.read_bytes())
     page = int.from_bytes(data[16:18], "big")
     for k in range(page + 8, len(data) - page, page):

@@ -3,10 +3,9 @@ whose original was hidden at the centre."""
 
 from __future__ import annotations
 
-import sqlite3
 from pathlib import Path
 
-from tests.store.conftest import sample
+from tests.store.conftest import fetch, laptop
 from triage.store import Store
 from triage.store.area import building_rows
 from triage.store.merge import merge_into
@@ -14,28 +13,10 @@ from triage.store.merge import merge_into
 OFFSET = "storeys[0].readings[0].offset_mm"
 
 
-def _laptop(path: Path, *names: str) -> list[str]:
-    with Store.open(path, who=path.stem) as st:
-        ids = []
-        for n in names:
-            s = sample(n)
-            st.add_survey(s)
-            ids.append(str(s.survey_id))
-        return ids
-
-
-def _rows(db: Path, sql: str, *args: object) -> list[tuple[object, ...]]:
-    c = sqlite3.connect(db)
-    try:
-        return c.execute(sql, args).fetchall()
-    finally:
-        c.close()
-
-
 def test_the_same_edit_on_two_laptops_is_no_conflict(tmp_path: Path):
     a, b, centre = tmp_path / "ana.db", tmp_path / "ben.db", tmp_path / "centre.db"
-    (sid,) = _laptop(a, "Clinic")
-    _laptop(b, "Clinic")   # the same survey file imported on both laptops
+    (sid,) = laptop(a, "Clinic")
+    laptop(b, "Clinic")   # the same survey file imported on both laptops
     for lap in (a, b):
         with Store.open(lap, who=lap.stem) as st:
             st.set_value(sid, OFFSET, 12.0)   # the same value, typed twice: two log entries
@@ -51,12 +32,12 @@ def test_the_same_edit_on_two_laptops_is_no_conflict(tmp_path: Path):
         assert sorted(c.who for c in st.change_log(sid) if c.op == "set") == ["ana", "ben"]
         again = merge_into(st, [a, b])
         assert [(r.added, r.updated, r.conflicts) for r in again] == [(0, 0, 0), (0, 0, 0)]
-    assert _rows(centre, "SELECT count(*) FROM surveys") == [(1,)]
+    assert fetch(centre, "SELECT count(*) FROM surveys") == [(1,)]
 
 
 def test_a_report_of_another_version_is_not_attached(tmp_path: Path):
     lap, centre = tmp_path / "lap.db", tmp_path / "centre.db"
-    clinic, school = _laptop(lap, "Clinic", "School")
+    clinic, school = laptop(lap, "Clinic", "School")
     with Store.open(centre) as st:
         merge_into(st, [lap])
         st.set_value(clinic, OFFSET, 3.0)                       # the centre's version 2
@@ -70,13 +51,13 @@ def test_a_report_of_another_version_is_not_attached(tmp_path: Path):
         rows = {x.id: x for x in st.list_surveys()}
         assert rows[clinic].reported_revision is None           # the 3 mm text: no report
         assert rows[school].reported_revision == 1
-    assert _rows(centre, "SELECT survey_id, path FROM reports ORDER BY path") == [
+    assert fetch(centre, "SELECT survey_id, path FROM reports ORDER BY path") == [
         (school, "school.pdf")]
 
 
 def test_a_conflict_whose_original_was_hidden_keeps_it_hidden(tmp_path: Path):
     lap, centre = tmp_path / "lap.db", tmp_path / "centre.db"
-    (sid,) = _laptop(lap, "Clinic")
+    (sid,) = laptop(lap, "Clinic")
     with Store.open(centre) as st:
         merge_into(st, [lap])
         st.hide_survey(sid)                                     # withdrawn at the centre
@@ -93,4 +74,4 @@ def test_a_conflict_whose_original_was_hidden_keeps_it_hidden(tmp_path: Path):
         assert [(x.id, x.conflict) for x in st.list_surveys()] == [(copy.id, False)]
         (b_row,) = building_rows(st)
         assert b_row.survey_id == copy.id and not b_row.conflict
-    assert _rows(centre, "SELECT hidden FROM surveys WHERE id = ?", sid) == [(1,)]
+    assert fetch(centre, "SELECT hidden FROM surveys WHERE id = ?", sid) == [(1,)]

@@ -13,19 +13,9 @@ from pathlib import Path
 
 import pytest
 
-from tests.store.conftest import sample
+from tests.store.conftest import laptop
 from triage.store import Store, StoreError
 from triage.store.merge import merge_into, merge_source
-
-
-def _laptop(path: Path, *names: str) -> list[str]:
-    with Store.open(path, who=path.stem) as st:
-        ids = []
-        for n in names:
-            s = sample(n)
-            st.add_survey(s)
-            ids.append(str(s.survey_id))
-    return ids
 
 
 def _digest(p: Path) -> str:
@@ -38,7 +28,7 @@ def _attached(st: Store) -> list[str]:
 
 def test_a_source_whose_journal_cannot_be_read_is_skipped_with_the_reason(tmp_path: Path):
     src = tmp_path / "laptop.db"
-    _laptop(src, "Harbour Flats")
+    laptop(src, "Harbour Flats")
     (tmp_path / "laptop.db-wal").mkdir()   # a sidecar that cannot be copied
     with Store.open(tmp_path / "area.db") as st:
         r = merge_source(st, src)
@@ -49,7 +39,7 @@ def test_a_source_whose_journal_cannot_be_read_is_skipped_with_the_reason(tmp_pa
 
 def test_a_source_that_cannot_be_attached_is_skipped_and_the_target_unchanged(tmp_path: Path):
     src = tmp_path / "laptop.db"
-    _laptop(src, "Harbour Flats")
+    laptop(src, "Harbour Flats")
     before = _digest(src)
     with Store.open(tmp_path / "area.db") as st:
         st.conn.execute("ATTACH DATABASE ':memory:' AS src")   # the name merge attaches as
@@ -63,8 +53,8 @@ def test_a_source_that_cannot_be_attached_is_skipped_and_the_target_unchanged(tm
 
 def test_an_error_half_way_rolls_the_source_back_and_detaches_it(tmp_path: Path):
     a, b = tmp_path / "a.db", tmp_path / "b.db"
-    ids_a = _laptop(a, "Harbour Flats")
-    ids_b = _laptop(b, "Quay Stores", "Old Post Office")
+    ids_a = laptop(a, "Harbour Flats")
+    ids_b = laptop(b, "Quay Stores", "Old Post Office")
     target = tmp_path / "area.db"
     said = []
     with Store.open(target) as st:
@@ -95,8 +85,8 @@ def test_an_error_half_way_rolls_the_source_back_and_detaches_it(tmp_path: Path)
 
 def test_the_merge_command_names_each_source_and_goes_on_past_a_missing_one(tmp_path: Path, cli):
     a, b = tmp_path / "a.db", tmp_path / "b.db"
-    _laptop(a, "Harbour Flats")
-    _laptop(b, "Quay Stores")
+    laptop(a, "Harbour Flats")
+    laptop(b, "Quay Stores")
     target = tmp_path / "area.db"
     code, out, err = cli("merge", str(a), str(tmp_path / "missing.db"), str(b), "--into",
                          str(target))

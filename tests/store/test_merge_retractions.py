@@ -5,16 +5,9 @@ from __future__ import annotations
 import sqlite3
 from pathlib import Path
 
-from tests.store.conftest import sample
+from tests.store.conftest import laptop
 from triage.store import Store
 from triage.store.merge import merge_into
-
-
-def _laptop(path: Path, name: str = "Clinic") -> str:
-    with Store.open(path, who=path.stem) as st:
-        s = sample(name)
-        st.add_survey(s)
-        return str(s.survey_id)
 
 
 def _offset(st: Store, sid: str) -> float | None:
@@ -36,7 +29,7 @@ def _changes(db: Path) -> int:
 def test_a_hide_on_a_laptop_reaches_a_centre_holding_the_same_text(tmp_path):
     # The centre made an edit and took it back: same text as the laptop, different logs.
     lap, centre = tmp_path / "lap.db", tmp_path / "centre.db"
-    sid = _laptop(lap)
+    (sid,) = laptop(lap, "Clinic")
     with Store.open(centre) as st:
         merge_into(st, [lap])
         st.set_value(sid, "storeys[0].notes", "looked again")
@@ -57,7 +50,7 @@ def test_a_hide_on_a_laptop_reaches_a_centre_holding_the_same_text(tmp_path):
 
 def test_an_undone_hide_on_a_laptop_shows_the_survey_again(tmp_path):
     lap, centre = tmp_path / "lap.db", tmp_path / "centre.db"
-    sid = _laptop(lap)
+    (sid,) = laptop(lap, "Clinic")
     with Store.open(lap) as st:
         st.hide_survey(sid)
     with Store.open(centre) as st:
@@ -74,7 +67,7 @@ def test_an_undone_hide_on_a_laptop_shows_the_survey_again(tmp_path):
 
 def test_an_undo_on_a_laptop_retires_its_conflict_copy(tmp_path):
     lap, centre = tmp_path / "lap.db", tmp_path / "centre.db"
-    sid = _laptop(lap)
+    (sid,) = laptop(lap, "Clinic")
     with Store.open(centre) as st:
         merge_into(st, [lap])
     with Store.open(lap) as st:
@@ -97,7 +90,7 @@ def test_an_undo_on_a_laptop_retires_its_conflict_copy(tmp_path):
 
 def test_area_to_laptop_to_area_adds_no_copy_of_the_centres_own_text(tmp_path):
     lap, area = tmp_path / "lap.db", tmp_path / "area.db"
-    sid = _laptop(lap)
+    (sid,) = laptop(lap, "Clinic")
     with Store.open(area) as st:
         merge_into(st, [lap])
         st.set_value(sid, "storeys[0].readings[0].offset_mm", 5.0)      # the centre's edit
@@ -125,8 +118,8 @@ def test_area_to_laptop_to_area_adds_no_copy_of_the_centres_own_text(tmp_path):
 
 def test_each_source_is_reported_as_it_commits(tmp_path):
     a, b, centre = tmp_path / "a.db", tmp_path / "b.db", tmp_path / "centre.db"
-    _laptop(a, "Clinic")
-    _laptop(b, "School")
+    laptop(a, "Clinic")
+    laptop(b, "School")
     seen: list[tuple[str, int]] = []
 
     def each(r):

@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import copy
 import json
+import os
 from collections.abc import Callable
 from pathlib import Path
 from typing import Any
@@ -37,6 +38,13 @@ def cli(capsys: pytest.CaptureFixture[str]) -> Run:
         got = capsys.readouterr()
         return code, got.out, got.err
     return run
+
+
+def unmeasured_env() -> dict[str, str]:
+    """This environment without the coverage measurement that `pytest --cov` hands on to child
+    processes: coverage loads sqlite3 itself, so a child checking which modules an import loads
+    runs without it (the walls stay exact under the README's test command)."""
+    return {k: v for k, v in os.environ.items() if not k.startswith("COVERAGE_")}
 
 
 def write_json(path: Path, data: Any) -> Path:

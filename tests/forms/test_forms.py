@@ -10,6 +10,7 @@ from pathlib import Path
 
 import pytest
 
+from tests.helpers import unmeasured_env
 from tests.wording import BORROWED
 from triage import standards
 from triage.forms import (
@@ -182,5 +183,5 @@ def test_loader_imports_no_screen_pdf_or_database_library() -> None:
             "'sqlite3', 'rich') if m in sys.modules]; print(bad); "
             "raise SystemExit(1 if bad else 0)")
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                          check=False)
+                          check=False, env=unmeasured_env())
     assert done.returncode == 0, done.stdout + done.stderr

@@ -1,7 +1,10 @@
-"""Backup refuses a copy that fails its check, and leaves neither the copy nor its `.part`."""
+"""Backup refuses a copy that fails its check or cannot be written, and leaves neither the copy
+nor its `.part`; a copy kept is one file with no journal beside it."""
 
 from __future__ import annotations
 
+import errno
+import os
 import sqlite3
 from pathlib import Path
 
@@ -64,3 +67,65 @@ def test_refusals_name_the_file_and_leave_no_part(tmp_path: Path):
         assert st.backup_to(tmp_path / "b.db") == tmp_path / "b.db"
         assert not stale.exists()
     assert sorted(p.name for p in tmp_path.iterdir() if p.name.startswith("b.db")) == ["b.db"]
+
+
+class _FailingSource:
+    """The store's connection, whose copy step fails the way SQLite does on a full disk."""
+
+    def __init__(self, conn: sqlite3.Connection, part: Path, message: str):
+        self.conn, self.part, self.message = conn, part, message
+
+    def backup(self, out: sqlite3.Connection) -> None:
+        self.conn.backup(out)
+        assert self.part.exists()          # half a copy is on disk when the step fails
+        raise sqlite3.OperationalError(self.message)
+
+
+@pytest.mark.parametrize("message, words", [
+    ("database or disk is full", "the disk is full"),
+    ("disk I/O error", "database error: disk I/O error"),
+])
+def test_an_sqlite_failure_while_copying_is_one_line_and_leaves_no_part(tmp_path: Path,
+                                                                        message, words):
+    db, dest = tmp_path / "s.db", tmp_path / "copy.db"
+    part = tmp_path / "copy.db.part"
+    with Store.open(db) as st:
+        st.add_survey(sample("Harbour Flats"))
+        with pytest.raises(StoreError) as err:
+            backup_connection(_FailingSource(st.conn, part, message), db,  # type: ignore[arg-type]
+                              dest)
+    text = str(err.value)
+    assert text.startswith(f"{dest}: ") and words in text and "\n" not in text
+    assert sorted(p.name for p in tmp_path.iterdir() if p.name.startswith("copy")) == []
+
+
+def test_an_os_failure_at_the_rename_is_named_and_leaves_no_part(tmp_path: Path, monkeypatch):
+    db, dest = tmp_path / "s.db", tmp_path / "copy.db"
+    renamed: list[tuple[str, str]] = []
+
+    def full(src, dst):
+        renamed.append((os.fspath(src), os.fspath(dst)))
+        raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
+
+    with Store.open(db) as st:
+        st.add_survey(sample("Harbour Flats"))
+        monkeypatch.setattr("triage.store.backup.os.replace", full)
+        with pytest.raises(StoreError) as err:
+            st.backup_to(dest)
+    assert renamed == [(str(tmp_path / "copy.db.part"), str(dest))]   # the checked copy's turn
+    assert str(err.value) == f"{dest}: cannot write the backup (No space left on device)"
+    assert not dest.exists() and not (tmp_path / "copy.db.part").exists()
+
+
+def test_a_copy_is_one_file_that_needs_no_journal(tmp_path: Path):
+    db, dest = tmp_path / "s.db", tmp_path / "copy.db"
+    with Store.open(db) as st:
+        st.add_survey(sample("Harbour Flats"))
+        st.backup_to(dest)
+    assert sorted(p.name for p in tmp_path.iterdir() if p.name.startswith("copy")) == ["copy.db"]
+    c = sqlite3.connect(dest)
+    try:
+        assert c.execute("PRAGMA journal_mode").fetchone()[0] == "delete"
+        assert c.execute("PRAGMA quick_check").fetchone()[0] == "ok"
+    finally:
+        c.close()

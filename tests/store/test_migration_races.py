@@ -128,6 +128,7 @@ def test_a_backup_that_cannot_be_written_stops_the_upgrade_unchanged(tmp_path, m
         "this change was not saved and earlier data is whole; free some space and try again); "
         "nothing was changed")
     assert CALLS == [] and _version(db) == NOW and _tables(db) == before
+    assert not backup.exists()     # the name claimed for the copy is given back
 
 
 def test_the_backup_name_never_replaces_an_earlier_backup(tmp_path):
@@ -140,3 +141,71 @@ def test_the_backup_name_never_replaces_an_earlier_backup(tmp_path):
     second.write_text("another")
     assert schema.backup_path(db, 1) == tmp_path / "field.v1-backup-3.db"
     assert schema.backup_path(tmp_path / "noext", 2) == tmp_path / "noext.v2-backup.db"
+
+
+def test_a_backup_name_is_claimed_so_two_programs_never_share_one(tmp_path, monkeypatch):
+    db = tmp_path / "field.db"
+    earlier = tmp_path / "field.v1-backup.db"
+    earlier.write_text("an earlier backup")
+    mine = schema.claim_backup(db, 1)
+    theirs = schema.claim_backup(db, 1)
+    assert (mine, theirs) == (tmp_path / "field.v1-backup-2.db", tmp_path / "field.v1-backup-3.db")
+    assert mine.read_bytes() == b"" and theirs.read_bytes() == b""   # empty: VACUUM INTO takes it
+    assert earlier.read_text() == "an earlier backup"
+    # Another program takes the free name between this one's look and its claim: the next.
+    real = schema.backup_path
+
+    def taken_meanwhile(path: Path, version: int) -> Path:
+        out = real(path, version)
+        if out.name == "field.v1-backup-4.db" and not out.exists():
+            out.write_text("the other program's copy")
+        return out
+
+    monkeypatch.setattr(schema, "backup_path", taken_meanwhile)
+    assert schema.claim_backup(db, 1) == tmp_path / "field.v1-backup-5.db"
+    assert (tmp_path / "field.v1-backup-4.db").read_text() == "the other program's copy"
+
+
+def test_an_upgrade_copies_into_the_name_it_claimed(tmp_path, monkeypatch):
+    db = tmp_path / "field.db"
+    with Store.open(db) as st:
+        st.add_survey(sample())
+    monkeypatch.setattr(schema, "MIGRATIONS", [*schema.MIGRATIONS, _counted_next])
+    (tmp_path / f"field.v{NOW}-backup.db").write_text("taken")
+    conn = connect(db)
+    try:
+        saved = schema.ensure_schema(conn, db, NOW)
+    finally:
+        conn.close()
+    assert saved == tmp_path / f"field.v{NOW}-backup-2.db"
+    assert _version(saved) == NOW and _version(db) == NOW + 1
+    assert (tmp_path / f"field.v{NOW}-backup.db").read_text() == "taken"
+
+
+def test_a_backup_name_that_cannot_be_claimed_stops_the_upgrade_unchanged(tmp_path,
+                                                                           monkeypatch):
+    import errno
+    import os
+
+    db = tmp_path / "field.db"
+    with Store.open(db) as st:
+        st.add_survey(sample())
+    monkeypatch.setattr(schema, "MIGRATIONS", [*schema.MIGRATIONS, _counted_next])
+    CALLS.clear()
+    before = _tables(db)
+
+    def read_only(*args: Any) -> int:
+        raise OSError(errno.EROFS, os.strerror(errno.EROFS))
+
+    conn = connect(db)
+    try:
+        monkeypatch.setattr(schema.os, "open", read_only)
+        with pytest.raises(StoreError) as err:
+            schema.ensure_schema(conn, db, NOW)
+    finally:
+        monkeypatch.undo()
+        conn.close()
+    assert str(err.value) == (
+        f"{db}: could not back up before upgrading the schema "
+        f"({tmp_path / f'field.v{NOW}-backup.db'}: Read-only file system); nothing was changed")
+    assert CALLS == [] and _version(db) == NOW and _tables(db) == before

@@ -4,13 +4,15 @@ The version is `PRAGMA user_version`; `PRAGMA application_id` marks the file as 
 the schema: write a function `_to_N(conn)` that turns version N-1 into N with plain SQL (keep
 every row; add columns with defaults rather than rebuilding tables), append it to `MIGRATIONS`,
 and raise `SCHEMA_VERSION` to N. Opening an older file first copies it beside itself
-(`VACUUM INTO` `NAME.vK-backup.db`), then runs each step in its own BEGIN IMMEDIATE transaction,
+(`VACUUM INTO` `NAME.vK-backup.db`, a name claimed first, so two programs upgrading the same file
+at once each keep their own copy), then runs each step in its own BEGIN IMMEDIATE transaction,
 setting `user_version` in the same transaction, so a crash mid-way leaves a file of a known
 version. A file of a newer version than `SCHEMA_VERSION` is refused, never changed.
 """
 
 from __future__ import annotations
 
+import os
 import sqlite3
 import uuid
 from collections.abc import Callable
@@ -161,6 +163,17 @@ def backup_path(path: Path, version: int) -> Path:
     return out
 
 
+def claim_backup(path: Path, version: int) -> Path:
+    """A free backup name (`backup_path`), taken as an empty file no other program can take."""
+    while True:
+        out = backup_path(path, version)
+        try:
+            os.close(os.open(out, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o644))
+        except FileExistsError:   # another program took it between the look and the claim
+            continue
+        return out
+
+
 def ensure_schema(conn: sqlite3.Connection, path: Path, version: int) -> Path | None:
     """Bring the file from `version` to the current schema; return the backup made, if any."""
     migrations = MIGRATIONS
@@ -172,10 +185,16 @@ def ensure_schema(conn: sqlite3.Connection, path: Path, version: int) -> Path | 
         return None
     saved: Path | None = None
     if version > 0:
-        saved = backup_path(path, version)
         try:
-            conn.execute("VACUUM INTO ?", (str(saved),))
+            saved = claim_backup(path, version)
+        except OSError as err:
+            raise StoreError(f"{path}: could not back up before upgrading the schema "
+                             f"({backup_path(path, version)}: {err.strerror}); nothing was "
+                             "changed") from None
+        try:
+            conn.execute("VACUUM INTO ?", (str(saved),))   # into the empty file claimed
         except sqlite3.Error as err:
+            saved.unlink(missing_ok=True)
             raise StoreError(f"{path}: could not back up before upgrading the schema "
                              f"({explain(err, saved)}); nothing was changed") from None
     for v in range(version, target):

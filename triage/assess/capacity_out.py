@@ -41,11 +41,8 @@ def _jbdpa(ctx: Context, sm: StoreyMembers, d: str) -> CapacityResult | None:
     if d not in ctx.rc or r is None:
         return None
     st = ctx.survey.storeys[sm.storey]
-    seen = count = 0
-    for m in st.members:
-        if dmg.counts_in(m, d) and dmg.eta_table(m, ctx.std) is not None:
-            seen += m.seen
-            count += m.count
+    terms = sm.model.terms[d]  # R is measured in d, so its groups are there
+    seen, count = terms.seen, terms.count
     grade = dmg.grade_of(r, ctx.std)
     return CapacityResult(
         storey=st.label, dir=d, method="jbdpa", ratio=sig6(r),

@@ -216,6 +216,10 @@ class CapacityTerms:
     groups: tuple[int, ...]  # member group indices counted
     weights: np.ndarray  # count * weight per counted group
     etas: np.ndarray  # shape (n, 6)
+    # Members of the groups of kinds R counts in this direction, inspected and in all (groups
+    # with none inspected among them): what the assessment's JBDPA line reports.
+    seen: int = 0
+    count: int = 0
 
     @cached_property
     def total(self) -> float:
@@ -243,13 +247,15 @@ def capacity_terms_all(storey: Storey, etas: Sequence[np.ndarray | None],
     members = storey.members
     seen = [m.seen for m in members]
     for d in dirs:
+        of_kind = [g for g, m in enumerate(members) if etas[g] is not None and counts_in(m, d)]
         # members not inspected are left out of R, never counted as undamaged
-        idx = [g for g, m in enumerate(members)
-               if etas[g] is not None and seen[g] > 0 and counts_in(m, d)]
+        idx = [g for g in of_kind if seen[g] > 0]
         if idx:
             out[d] = CapacityTerms(tuple(idx),
                                    np.array([seen[g] * members[g].weight for g in idx]),
-                                   np.array([etas[g] for g in idx]))
+                                   np.array([etas[g] for g in idx]),
+                                   sum(seen[g] for g in idx),
+                                   sum(members[g].count for g in of_kind))
     return out
 
 

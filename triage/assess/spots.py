@@ -184,11 +184,11 @@ def combine(values: Sequence[float], us: Sequence[float]) -> tuple[float, float,
     Returns (value, u, Q, disagree, pick): `pick` is the index taken when the repeats
     disagree (the largest absolute value, the first among equals), else -1.
     """
+    if len(values) == 1:
+        return values[0], us[0], 0.0, False, -1
     w = [1.0 / (u * u) for u in us]
     total = math.fsum(w)
     mean = math.fsum(x * wi for x, wi in zip(values, w, strict=True)) / total
-    if len(values) == 1:
-        return values[0], us[0], 0.0, False, -1
     q = math.fsum(((x - mean) / u) ** 2 for x, u in zip(values, us, strict=True))
     if chi2_cdf(q, len(values) - 1) > AGREEMENT_QUANTILE:
         pick = max(range(len(values)), key=lambda i: (abs(values[i]), -i))

@@ -56,6 +56,10 @@ def drift_stage(ctx: Context) -> DriftStage:
     defaulted = []
     for st in ctx.survey.storeys:
         for ri, r in enumerate(st.readings):
+            if not (r.sd_deg is None if r.by_tilt else r.sd_mm is None) and (
+                    r.baseline_deg is None or r.baseline_sd_deg is not None) and (
+                    r.baseline_mm is None or r.baseline_sd_mm is not None):
+                continue  # nothing defaulted (the common case: no line to word)
             at = f" ({r.where})" if r.where else ""
             head = f"storey {st.label}, {r.dir}, reading {ri + 1}{at}"
             if r.by_tilt and r.sd_deg is None:

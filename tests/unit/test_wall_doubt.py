@@ -115,3 +115,17 @@ def test_the_same_crack_moves_class_and_severity_together() -> None:
     assert a.tier_probability["occupy"] == pytest.approx(0.5, abs=1e-6)
     assert a.tier_probability["occupy"] != pytest.approx(0.5 * PHI(0.5 / 0.3), abs=1e-3)
     assert a.tier_probability["evacuate"] == pytest.approx(1 - PHI(1.0 / 0.3), abs=1e-6)
+
+
+def test_measure_next_names_the_crack_near_a_severity_bound() -> None:
+    # 6.2 +- 0.2 mm: 0.5 sd under the 6.3 mm bound, across which the tier would be evacuate
+    a = assess(_infill([6.2]))
+    nxt = a.measure_next
+    assert nxt is not None and nxt.what == "crack" and nxt.member == "infill panel group 1"
+    assert nxt.z == pytest.approx(0.5, abs=1e-6)
+    assert "0.5 sd under the FEMA 306 severity bound 6.3 mm" in nxt.why
+    over = assess(_infill([6.4])).measure_next
+    assert over is not None and "0.5 sd over the FEMA 306 severity bound 6.3 mm" in over.why
+    # 4 sd away (over the 3 sd of measure_next_max_z): nothing to measure, the tier settled
+    far = assess(_infill([5.5]))
+    assert far.measure_next is None and far.settled_by is not None

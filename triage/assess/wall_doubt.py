@@ -45,6 +45,9 @@ class Outcomes:
     cls: np.ndarray  # (m,) JBDPA class index per outcome
     lam_q: dict[str, np.ndarray]  # per direction it acts in under FEMA 306: (m,) lambda Q
     probs: np.ndarray  # (m,)
+    tops: np.ndarray  # (m,) the widest crack of each outcome (the last: infinity)
+    point: int  # the outcome the crack as read falls in
+    fema: frozenset[float]  # the FEMA 306 crack bounds among the tops (mm)
 
 
 @dataclass(frozen=True)
@@ -90,12 +93,17 @@ def _pieces(crack: float, sd: float, cuts: list[float]) -> tuple[np.ndarray, np.
     return inside, np.diff(np.concatenate([[0.0], f, [1.0]]))
 
 
-def _merged(g: int, cls: np.ndarray, lam: dict[str, np.ndarray], p: np.ndarray) -> Outcomes:
+def _merged(g: int, cls: np.ndarray, lam: dict[str, np.ndarray], p: np.ndarray,
+            tops: np.ndarray, crack: float, fema: set[float]) -> Outcomes:
     """Neighbouring pieces that give the same class and factors as one outcome."""
     keys = [(int(c), *(float(v[i]) for v in lam.values())) for i, c in enumerate(cls)]
     first = [i for i, k in enumerate(keys) if i == 0 or k != keys[i - 1]]
+    last = [*(i - 1 for i in first[1:]), len(keys) - 1]
     sums = np.add.reduceat(p, first)
-    return Outcomes(g, cls[first], {d: v[first] for d, v in lam.items()}, sums / sums.sum())
+    top = tops[last]
+    point = min(int(np.searchsorted(top, crack, side="left")), len(top) - 1)
+    return Outcomes(g, cls[first], {d: v[first] for d, v in lam.items()}, sums / sums.sum(),
+                    top, point, frozenset(float(t) for t in top[:-1] if float(t) in fema))
 
 
 def wall_doubt(survey: Survey, si: int, beyond: StoreyCapacity, std: Standards,
@@ -129,7 +137,10 @@ def wall_doubt(survey: Survey, si: int, beyond: StoreyCapacity, std: Standards,
             for d, row in by_dir.items()}
         keep = p > EPS
         if any(len(set(v[keep].tolist())) > 1 for v in lam.values()):
-            outs.append(_merged(g, cls[keep], {d: v[keep] for d, v in lam.items()}, p[keep]))
+            tops = np.append(np.array(cuts), np.inf)
+            fema = {b for r in by_dir.values() for b in r.crack_mm}
+            outs.append(_merged(g, cls[keep], {d: v[keep] for d, v in lam.items()}, p[keep],
+                                tops[keep], float(m.crack_mm or 0.0), fema))
     if not outs:
         return None
     doubt = {o.group for o in outs}
@@ -148,6 +159,17 @@ def wall_doubt(survey: Survey, si: int, beyond: StoreyCapacity, std: Standards,
                      np.array([Level.of(a.grade_to_level[g])
                                for g in ("slight", "light", "moderate", "severe")]),
                      np.array([gb["slight"], gb["light"], gb["moderate"]]))
+
+
+def level_moved(model: MemberModel, doubt: WallDoubt, group: int, to: int) -> int:
+    """The member component's level were one wall's crack in outcome `to`, the rest as read."""
+    k = model.point[None, :].copy()
+    pick = {o.group: np.array([o.point]) for o in doubt.groups}
+    pick[group] = np.array([to])
+    moved = next(o for o in doubt.groups if o.group == group)
+    k[0, group] = moved.cls[to]
+    others = dataclasses.replace(model, fixed=doubt.fixed)
+    return int(max(others.level(k)[0], doubt.fema_level(pick, 1)[0]))
 
 
 def wall_doubt_cdf(model: MemberModel, doubt: WallDoubt,

@@ -6,6 +6,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from triage.model import Storey
+
 from .. import damage as dmg
 from ..context import DIRS, Component, Context, Plumbness
 from ..drift import level_index, pct
@@ -13,6 +15,7 @@ from ..levels import Level, Tier
 from ..result import MeasureNext
 from ..spots import Spot
 from ..stats import sig6
+from ..wall_doubt import level_moved
 from ..wording import kind_words
 from .drift import DirDrift, DriftStage
 from .governing import GoverningStage
@@ -153,10 +156,13 @@ def measure_next(ctx: Context, drift: DriftStage, members: list[StoreyMembers],
                     continue
                 rows.append(k)
                 meta.append((gi, b, z, under_b))
-        if not rows:
-            continue
-        levels = sm.model.level(np.array(rows))
-        for (gi, b, z, under_b), new in zip(meta, levels.tolist(), strict=True):
+        levels = sm.model.level(np.array(rows)).tolist() if rows else []
+        what = ["class bound"] * len(rows)
+        for gi, b, z, under_b, across in fema306_moves(sm, st, max_z):
+            meta.append((gi, b, z, under_b))
+            levels.append(across)
+            what.append("FEMA 306 severity bound")
+        for (gi, b, z, under_b), new, bound in zip(meta, levels, what, strict=True):
             if lv.tier_if({("members", sm.storey, ""): Level(new)}) == lv.tier:
                 continue
             key = (round(z, 9), sm.storey, 2, gi)
@@ -168,9 +174,32 @@ def measure_next(ctx: Context, drift: DriftStage, members: list[StoreyMembers],
                 name = f"{kind} group {m.ref}" if m.ref else f"{kind} group {gi + 1}"
                 pick = MeasureNext(
                     storey=st.label, dir=None, what="crack", member=name, z=sig6(z),
-                    why=f"crack {m.crack_mm:g} mm is {z:.1f} sd {side} the class bound "
+                    why=f"crack {m.crack_mm:g} mm is {z:.1f} sd {side} the {bound} "
                         f"{b:g} mm; across it the tier would change")
     return pick
+
+
+def fema306_moves(sm: StoreyMembers, st: Storey,
+                  max_z: float) -> list[tuple[int, float, float, bool, int]]:
+    """Each FEMA 306 crack bound near a wall's crack where the severity across it differs.
+
+    (group, bound, z, under it, level across it), within `max_z` sd (`wall_doubt.py`).
+    """
+    wd = sm.walls_doubt
+    out: list[tuple[int, float, float, bool, int]] = []
+    if wd is None:
+        return out
+    for o in wd.groups:
+        crack = float(st.members[o.group].crack_mm or 0.0)
+        sd = sm.classes.items[o.group].crack_sd or 1.0
+        for i, top in enumerate(o.tops[:-1].tolist()):
+            z = abs(top - crack) / sd
+            if top not in o.fema or z > max_z:
+                continue
+            under = o.point <= i
+            out.append((o.group, top, z, under,
+                        level_moved(sm.model, wd, o.group, i + 1 if under else i)))
+    return out
 
 
 def settled_by(ctx: Context, gov: GoverningStage) -> str:

@@ -28,6 +28,18 @@ def test_visible_escapes_control_and_bidi(raw, shown):
     assert is_safe(shown) and not is_safe(raw)
 
 
+def test_no_character_visible_escapes_counts_as_printable():
+    """`visible` leaves a printable text as it is without its pattern: sound only while every
+    character the pattern escapes is one `str.isprintable` refuses (all are in the BMP)."""
+    from triage.safetext import _FIND, _UNSAFE
+
+    assert all(ord(c) < 0x10000 for c in _UNSAFE)
+    escaped = [chr(c) for c in range(0x10000) if _FIND.match(chr(c))]
+    assert len(escaped) == 9 + 21 + 33 + 5 + 4
+    assert not any(c.isprintable() for c in escaped)
+    assert [visible(f"a{c}b") for c in escaped] == [f"a\\u{ord(c):04x}b" for c in escaped]
+
+
 def test_ordinary_text_passes_unchanged_and_is_not_copied():
     text = "Kōwhai Bay — 3 storeys\n\tnote: 'ok' \\ path C:\\x"
     assert visible(text) is text

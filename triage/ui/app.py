@@ -11,13 +11,18 @@ from __future__ import annotations
 from collections.abc import Callable
 from datetime import datetime
 from pathlib import Path
-from typing import Any, ClassVar
+from typing import TYPE_CHECKING, ClassVar, TypedDict, Unpack
 
 from textual import events, work
 from textual.app import App
 from textual.binding import Binding, BindingType
+from textual.notifications import SeverityLevel
 from textual.theme import Theme
 from textual.worker import Worker, WorkerState
+
+if TYPE_CHECKING:  # the store and the engine load after the first screen is drawn
+    from triage.ui.data import FieldData
+    from triage.ui.verdicts import VerdictThread
 
 # One accent hue (a slate blue) in stronger or weaker weight; no traffic-light colours: the
 # theme's success, warning and error colours are the same hue, so no widget turns green,
@@ -62,8 +67,8 @@ class TriageApp(App[None]):
                  demo_samples: Path | None = None) -> None:
         super().__init__()
         self.db_path = Path(db_path)
-        self.data: Any = None  # triage.ui.data.FieldData, once the database is open
-        self.verdicts: Any = None  # triage.ui.verdicts.VerdictThread
+        self._data: FieldData | None = None  # once the database is open
+        self._verdicts: VerdictThread | None = None
         self.clock = clock
         self.blink = blink
         self.open_survey = open_survey
@@ -71,6 +76,25 @@ class TriageApp(App[None]):
         self.demo_samples = demo_samples
         self.who = "inspector"
         self.refusal: str | None = None
+
+    @property
+    def is_open(self) -> bool:
+        """Whether the survey database is open (it opens behind the first screen)."""
+        return self._data is not None
+
+    @property
+    def data(self) -> FieldData:
+        """The survey database (`triage.ui.data.FieldData`); ask `is_open` first."""
+        if self._data is None:
+            raise RuntimeError("the survey database is not open yet")
+        return self._data
+
+    @property
+    def verdicts(self) -> VerdictThread:
+        """The thread that recomputes the verdict, once the database is open."""
+        if self._verdicts is None:
+            raise RuntimeError("the survey database is not open yet")
+        return self._verdicts
 
     async def on_event(self, event: events.Event) -> None:
         """Keys are acted on in the order they were typed (triage/ui/focus.py).
@@ -139,18 +163,18 @@ class TriageApp(App[None]):
         """Open the database on the UI thread and fill the first screen."""
         from triage.store import default_who
         from triage.ui.data import FieldData, Refused
+        from triage.ui.screens.survey_list import SurveyListScreen
         from triage.ui.verdicts import VerdictThread
 
         try:
-            self.data = FieldData(self.db_path, clock=self.clock)
+            self._data = FieldData(self.db_path, clock=self.clock)
         except Refused as err:
             self.refuse(str(err))
             return
-        self.verdicts = VerdictThread(self.db_path)
+        self._verdicts = VerdictThread(self.db_path)
         self.who = str(self.data.setting("last_inspector_name") or default_who())
-        screen: Any = self.screen
-        if hasattr(screen, "refresh_rows"):
-            screen.refresh_rows()
+        if isinstance(self.screen, SurveyListScreen):
+            self.screen.refresh_rows()
         if self.open_survey:
             from triage.store import StoreError
             from triage.ui.screens.survey import SurveyScreen
@@ -165,7 +189,7 @@ class TriageApp(App[None]):
         self.refusal = message
         self.exit(return_code=1)
 
-    def notify(self, message: str, *, title: str = "", severity: Any = "information",
+    def notify(self, message: str, *, title: str = "", severity: SeverityLevel = "information",
                timeout: float | None = None, markup: bool = False) -> None:
         """A notification; its text may quote a survey, so it is escaped and never markup."""
         from triage.safetext import visible
@@ -225,13 +249,23 @@ class TriageApp(App[None]):
 
     def on_unmount(self) -> None:
         """Close the database."""
-        if self.verdicts is not None:
-            self.verdicts.close()
-        if self.data is not None:
-            self.data.close()
+        if self._verdicts is not None:
+            self._verdicts.close()
+        if self._data is not None:
+            self._data.close()
 
 
-def build_app(db_path: Path | str, **options: Any) -> TriageApp:
+class Options(TypedDict, total=False):
+    """What `build_app` takes beside the database (see TriageApp)."""
+
+    clock: Callable[[], datetime] | None
+    blink: bool
+    open_survey: str | None
+    report_dir: Path | None
+    demo_samples: Path | None
+
+
+def build_app(db_path: Path | str, **options: Unpack[Options]) -> TriageApp:
     """The app on a survey database (created when missing).
 
     Options: `clock` (a callable giving the time, for tests), `blink` (False stops cursors

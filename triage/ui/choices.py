@@ -6,7 +6,10 @@ class descriptions (the lists completed from the standard tables).
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # the forms load when first asked for
+    from triage.forms import Form
 
 # How storeys above ground are named, chosen when a survey is made (basements are B1, B2 …
 # either way): the ground storey G then 1, 2 …, or 1, 2, 3 … from the ground storey up.
@@ -36,10 +39,10 @@ def next_label(existing: list[str]) -> str:
 
 
 
-def _forms(systems: tuple[str, ...]) -> list[Any]:
+def _forms(systems: tuple[str, ...]) -> list[Form]:
     from triage.forms import FormError, load_form
 
-    out = []
+    out: list[Form] = []
     for s in dict.fromkeys(systems):
         try:
             out.append(load_form(s))

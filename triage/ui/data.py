@@ -16,10 +16,14 @@ import uuid
 from collections.abc import Callable
 from datetime import datetime
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING
 
 from triage.model import Survey, SurveyError, parse_survey, parse_survey_text
 from triage.store import Store, StoreError
+from triage.store.rows import Change, SurveyRow
+
+if TYPE_CHECKING:  # the engine loads in the verdict thread
+    from triage.assess import Assessment
 
 Clock = Callable[[], datetime]
 
@@ -44,7 +48,7 @@ def rule_of(message: str) -> str:
     return plain_text(message)
 
 
-def said(message: str, survey: Any = None) -> str:
+def said(message: str, survey: Survey | None = None) -> str:
     """A one-line message for a person: its field and any key in it as words."""
     from triage.standards.vocabulary import plain_text
 
@@ -75,11 +79,11 @@ class FieldData:
 
     # --- reading ---------------------------------------------------------------------------
 
-    def surveys(self, include_hidden: bool = False) -> list[Any]:
+    def surveys(self, include_hidden: bool = False) -> list[SurveyRow]:
         """The surveys on this laptop, as rows for the list."""
         return list(self.store.list_surveys(include_hidden=include_hidden))
 
-    def row(self, survey_id: str) -> Any | None:
+    def row(self, survey_id: str) -> SurveyRow | None:
         """The list row of one survey (None when hidden or gone)."""
         return self.store.survey_row(survey_id)
 
@@ -91,24 +95,24 @@ class FieldData:
         """The survey's current revision number."""
         return int(self.store.revision(survey_id))
 
-    def stored_assessment(self, survey_id: str) -> Any | None:
+    def stored_assessment(self, survey_id: str) -> Assessment | None:
         """The last assessment saved for the survey, if any."""
         return self.store.load_assessment(survey_id)
 
-    def changes(self, survey_id: str) -> list[Any]:
+    def changes(self, survey_id: str) -> list[Change]:
         """The survey's change log, newest first."""
         return list(self.store.change_log(survey_id))
 
     # --- editing ---------------------------------------------------------------------------
 
-    def set(self, survey_id: str, path: str, value: Any, who: str) -> int:
+    def set(self, survey_id: str, path: str, value: object, who: str) -> int:
         """Save one field; returns the new revision, or raises `Refused` with the rule."""
         try:
             return int(self.store.set_value(survey_id, path, value, who))
         except (StoreError, SurveyError, ValueError) as err:
             raise Refused(str(err).splitlines()[0] if str(err) else "refused") from None
 
-    def add(self, survey_id: str, path: str, item: dict[str, Any], who: str,
+    def add(self, survey_id: str, path: str, item: dict[str, object], who: str,
             index: int | None = None) -> int:
         """Add an item to a list of the survey (a reading, a member group, a storey …)."""
         try:
@@ -140,7 +144,7 @@ class FieldData:
         except (StoreError, SurveyError, ValueError) as err:
             raise Refused(str(err).splitlines()[0] if str(err) else "refused") from None
 
-    def undo(self, survey_id: str, who: str) -> Any | None:
+    def undo(self, survey_id: str, who: str) -> Change | None:
         """Undo the survey's last change; the change undone, or None when there is none."""
         try:
             return self.store.undo_last(survey_id, who)
@@ -151,7 +155,7 @@ class FieldData:
         """Hide a survey from the list (kept, and logged)."""
         self.store.hide_survey(survey_id, who)
 
-    def add_survey(self, data: dict[str, Any], who: str, source: str | None = None) -> str:
+    def add_survey(self, data: dict[str, object], who: str, source: str | None = None) -> str:
         """Validate survey data and store it as a new survey; returns its id."""
         try:
             survey = parse_survey(data)
@@ -160,19 +164,22 @@ class FieldData:
             raise Refused(str(err)) from None
         return str(survey.survey_id)
 
-    def new_survey(self, data: dict[str, Any], who: str) -> str:
+    def new_survey(self, data: dict[str, object], who: str) -> str:
         """A new survey from the new-survey form: fresh ids, inspected now."""
         data = dict(data)
         data.setdefault("format", "triage-survey/1")
         data["id"] = str(uuid.uuid4())
-        data["building"] = dict(data["building"])
-        data["building"].setdefault("id", str(uuid.uuid4()))
-        insp = dict(data.get("inspection") or {})
+        building = data["building"]
+        data["building"] = dict(building) if isinstance(building, dict) else building
+        if isinstance(data["building"], dict):
+            data["building"].setdefault("id", str(uuid.uuid4()))
+        given = data.get("inspection")
+        insp: dict[str, object] = dict(given) if isinstance(given, dict) else {}
         insp.setdefault("at", now_local(self.clock).isoformat())
         data["inspection"] = insp
         return self.add_survey(data, who, source="new survey")
 
-    def reinspect(self, survey_id: str, inspector: dict[str, Any], who: str) -> str:
+    def reinspect(self, survey_id: str, inspector: dict[str, object], who: str) -> str:
         """A re-inspection of a survey; returns the new survey's id.
 
         Building and storeys are copied, readings and damage cleared, and the earlier survey
@@ -205,11 +212,11 @@ class FieldData:
 
     # --- settings and reports ---------------------------------------------------------------
 
-    def setting(self, key: str, default: Any = None) -> Any:
+    def setting(self, key: str, default: object = None) -> object:
         """A remembered setting (last inspector, last gauge length, last key file)."""
         return self.store.settings_get(key, default)
 
-    def remember(self, key: str, value: Any) -> None:
+    def remember(self, key: str, value: object) -> None:
         """Remember a setting for next time."""
         self.store.settings_set(key, value)
 

@@ -16,10 +16,11 @@ from __future__ import annotations
 
 import asyncio
 import contextlib
-from typing import Any
+
+from textual.widget import Widget
 
 
-def focus_now(widget: Any) -> None:
+def focus_now(widget: Widget) -> None:
     """Give a widget the focus at once (not after the keys already queued)."""
     try:
         screen = widget.screen
@@ -30,7 +31,7 @@ def focus_now(widget: Any) -> None:
     screen.set_focus(widget)
 
 
-async def drain(widget: Any, timeout: float = 1.0) -> None:
+async def drain(widget: Widget, timeout: float = 1.0) -> None:
     """Wait until a widget has handled every message already queued for it.
 
     Runs inside a priority binding of the app, which takes no key off its queue meanwhile.

@@ -5,9 +5,15 @@ Kept in one module so a reader finds every event and every caution line in one p
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING
 
 from textual.message import Message
+
+if TYPE_CHECKING:  # the fields import these messages
+    from triage.ui.widgets.pane import FormField
+
+    CAUTION_FULL: str
+    PROBABILITY_NOTE: str
 
 # The caution, short; it keeps "indicative" and "engineer of record". The whole caution
 # (CAUTION_FULL) and the probability label come from triage.assess, imported on first use
@@ -31,7 +37,7 @@ UNSIGNED = "UNSIGNED report: no key was used; nobody vouches for it by signature
 class FieldAccepted(Message):
     """A field's value passed its own check and asks to be saved at `path`."""
 
-    def __init__(self, field: Any, path: str, value: Any) -> None:
+    def __init__(self, field: FormField, path: str, value: object) -> None:
         super().__init__()
         self.field = field
         self.path = path

@@ -12,7 +12,6 @@ import json
 import os
 import tempfile
 from pathlib import Path
-from typing import Any
 
 from triage.paths import data_home
 
@@ -24,7 +23,7 @@ def settings_path() -> Path:
     return data_home() / FILE
 
 
-def load_settings() -> dict[str, Any]:
+def load_settings() -> dict[str, object]:
     """The settings saved, or none."""
     try:
         data = json.loads(settings_path().read_text(encoding="utf-8"))
@@ -33,7 +32,7 @@ def load_settings() -> dict[str, Any]:
     return data if isinstance(data, dict) else {}
 
 
-def save_setting(key: str, value: Any) -> bool:
+def save_setting(key: str, value: object) -> bool:
     """Save one setting (the file replaced whole); False when it could not be written."""
     path = settings_path()
     data = load_settings()

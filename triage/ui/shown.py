@@ -13,18 +13,16 @@ not put back.
 
 from __future__ import annotations
 
-from typing import Any
-
 from rich.text import Text
 
 from triage.safetext import visible, visible_line
 
 
-def line(text: Any) -> Text:
+def line(text: object) -> Text:
     """One line of survey text (a table cell, a pick, a title), escaped and plain."""
     return Text(visible_line(str(text)), no_wrap=True)
 
 
-def block(text: Any) -> Text:
+def block(text: object) -> Text:
     """Survey text that may wrap (newlines and tabs kept), escaped and plain."""
     return Text(visible(str(text)))

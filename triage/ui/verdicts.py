@@ -9,13 +9,17 @@ from __future__ import annotations
 
 import contextlib
 from collections.abc import Iterator
+from concurrent.futures import Future
 from contextlib import contextmanager
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING
 
 from triage.model import Survey
 from triage.store import Store
+
+if TYPE_CHECKING:  # imported in the worker thread, not on the way to the first screen
+    from triage.assess import Assessment
 
 
 @dataclass(frozen=True)
@@ -23,7 +27,7 @@ class Verdict:
     """A survey as stored at one revision and its assessment, made in a worker thread."""
 
     survey: Survey
-    assessment: Any  # triage.assess.Assessment (imported in the worker)
+    assessment: Assessment
     revision: int
 
 
@@ -68,7 +72,7 @@ class VerdictThread:
             self._store = Store.open(self.db_path, create=False, refresh=False)
         return verdict_of(self._store, survey_id)
 
-    def submit(self, survey_id: str) -> Any:
+    def submit(self, survey_id: str) -> Future[Verdict]:
         """Assess a survey in the thread; a concurrent.futures.Future of its `Verdict`."""
         return self.pool.submit(self._run, survey_id)
 

@@ -2,12 +2,12 @@
 
 from __future__ import annotations
 
-from typing import Any, ClassVar
+from typing import ClassVar
 
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import VerticalScroll
-from textual.screen import ModalScreen
+from textual.screen import ModalScreen, Screen
 from textual.widgets import Static
 
 from triage.ui.messages import CAUTION_FULL
@@ -23,7 +23,7 @@ HOW = """How it works
 """
 
 
-def binding_lines(screen: Any) -> list[str]:
+def binding_lines(screen: Screen[object]) -> list[str]:
     """One line per key of a screen and of the app."""
     seen: set[str] = set()
     lines = []
@@ -47,7 +47,7 @@ class HelpScreen(ModalScreen[None]):
         Binding("escape,f1", "close", "close help", priority=True),
     ]
 
-    def __init__(self, under: Any) -> None:
+    def __init__(self, under: Screen[object]) -> None:
         super().__init__()
         self.under = under
 

@@ -4,20 +4,22 @@ from __future__ import annotations
 
 import json
 import re
-from datetime import datetime
-from typing import Any, ClassVar
+from datetime import datetime, tzinfo
+from typing import TYPE_CHECKING, ClassVar
 
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
-from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Static
 
 from triage.safetext import visible_line
 from triage.ui.data import Refused
 from triage.ui.shown import block, line
+from triage.ui.typed import TriageScreen
 
+if TYPE_CHECKING:  # the store is loaded behind the first screen
+    from triage.store.rows import Change
 
-def _short(v: Any, n: int = 18) -> str:
+def _short(v: object, n: int = 18) -> str:
     if v is None:
         return "—"
     text = v if isinstance(v, str) else json.dumps(v, ensure_ascii=False)
@@ -40,7 +42,7 @@ def _in_words(path: str, labels: list[str] | None) -> list[str]:
     return said.split(", ")
 
 
-def describe_change(op: str, path: str, new: Any = None,
+def describe_change(op: str, path: str, new: object = None,
                     labels: list[str] | None = None) -> str:
     """A change in words, the field first: `offset (mm), storey G, reading 1`.
 
@@ -61,7 +63,7 @@ def describe_change(op: str, path: str, new: Any = None,
     return f"undone: {text}" if op == "undo" else text
 
 
-def storey_labels(changes: list[Any], labels: list[str]) -> dict[int, list[str]]:
+def storey_labels(changes: list[Change], labels: list[str]) -> dict[int, list[str]]:
     """The storey labels each change is told with, by its `seq` (changes newest first).
 
     Worked back from the survey's labels now: each change is undone on the list of labels in
@@ -88,7 +90,7 @@ def storey_labels(changes: list[Any], labels: list[str]) -> dict[int, list[str]]
     return out
 
 
-def _local(at: str, fmt: str, tz: Any = None) -> str:
+def _local(at: str, fmt: str, tz: tzinfo | None = None) -> str:
     """A stored UTC time stamp as this laptop's local time (the app clock's zone)."""
     try:
         return datetime.fromisoformat(at).astimezone(tz).strftime(fmt)
@@ -96,7 +98,7 @@ def _local(at: str, fmt: str, tz: Any = None) -> str:
         return at
 
 
-class HistoryScreen(Screen[bool]):
+class HistoryScreen(TriageScreen[bool]):
     """What changed, old and new, when and by whom; ctrl+z undoes the last change."""
 
     CSS_PATH = "history.tcss"
@@ -110,7 +112,7 @@ class HistoryScreen(Screen[bool]):
         super().__init__()
         self.survey_id = survey_id
         self.changed = False
-        self.entries: dict[str, Any] = {}
+        self.entries: dict[str, Change] = {}
         self.labels: dict[int, list[str]] = {}
 
     def compose(self) -> ComposeResult:
@@ -130,7 +132,7 @@ class HistoryScreen(Screen[bool]):
 
     def fill(self) -> None:
         """Reload the log."""
-        app: Any = self.app
+        app = self.app
         t = self.query_one("#log", DataTable)
         t.clear()
         changes = app.data.changes(self.survey_id)
@@ -159,21 +161,21 @@ class HistoryScreen(Screen[bool]):
             f"revision {c.revision}\n{visible_line(what + values)}"))
 
     @property
-    def tz(self) -> Any:
+    def tz(self) -> tzinfo | None:
         """The zone times are shown in: the laptop's (or the test clock's)."""
-        app: Any = self.app
+        app = self.app
         return app.now().tzinfo
 
-    def what(self, c: Any) -> str:
+    def what(self, c: Change) -> str:
         """A change in words; a survey made on this screen was created, not imported."""
         if c.op == "import":
-            app: Any = self.app
+            app = self.app
             row = app.data.row(self.survey_id)
             if row is not None and row.source == "new survey":
                 return "survey created"
         return describe_change(c.op, c.path, c.new, self.labels.get(c.seq))
 
-    def value(self, c: Any, v: Any) -> str:
+    def value(self, c: Change, v: object) -> str:
         """An old or new value in words, with its unit; a whole survey is not shown."""
         from triage.standards.vocabulary import value_words
 
@@ -183,7 +185,7 @@ class HistoryScreen(Screen[bool]):
 
     def action_undo(self) -> None:
         """Undo the last change not yet undone."""
-        app: Any = self.app
+        app = self.app
         status = self.query_one("#history-status", Static)
         try:
             change = app.data.undo(self.survey_id, app.who)

@@ -2,23 +2,26 @@
 
 from __future__ import annotations
 
-from typing import Any, ClassVar
+from dataclasses import dataclass
+from typing import ClassVar
 
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import VerticalScroll
-from textual.screen import Screen
+from textual.widget import Widget
 from textual.widgets import Button, Footer, Input, Static
 
 from triage import standards
+from triage.ui.app import TriageApp
 from triage.ui.choices import NAMINGS, storey_labels
 from triage.ui.data import Refused, rule_of, said
 from triage.ui.messages import FieldAccepted
 from triage.ui.shown import block
+from triage.ui.typed import TriageScreen
 from triage.ui.widgets.field import Choice, Field, parse_team, team_text, when_text
 
 
-def when_field(app: Any, label: str, path: str, value: Any, fid: str) -> Field:
+def when_field(app: TriageApp, label: str, path: str, value: object, fid: str) -> Field:
     """A date and time field; a time typed without offset takes the laptop's (or the test's)."""
     from triage.ui.widgets.field import parse_when
 
@@ -29,10 +32,27 @@ def when_field(app: Any, label: str, path: str, value: Any, fid: str) -> Field:
                  width=24, placeholder="YYYY-MM-DD HH:MM")
 
 
-def team_field(label: str, path: str, value: Any, fid: str) -> Field:
+def team_field(label: str, path: str, value: object, fid: str) -> Field:
     """The others of the team: 'Ana Rewi (NZ-42); Tom Hale'."""
     return Field(label, path, value, show=team_text, parse=parse_team, id=fid, width=40,
                  placeholder="name (id); name (id)")
+
+
+def _whole(value: object) -> int:
+    """A whole-number field's value (none is 0)."""
+    return int(value) if isinstance(value, (int, float)) else 0
+
+
+@dataclass(frozen=True)
+class Collected:
+    """What the form holds, checked: the survey to store and what is remembered of it."""
+
+    survey: dict[str, object]
+    who: str
+    inspector_id: object
+    height: object
+    team: object
+    event: object
 
 
 def system_options() -> list[tuple[str, str]]:
@@ -43,7 +63,7 @@ def system_options() -> list[tuple[str, str]]:
             for k, s in standards.load().systems.items()]
 
 
-class NewSurveyScreen(Screen[str | None]):
+class NewSurveyScreen(TriageScreen[str | None]):
     """The form that starts a survey; returns the new survey's id (None when given up)."""
 
     CSS_PATH = "new_survey.tcss"
@@ -54,7 +74,7 @@ class NewSurveyScreen(Screen[str | None]):
 
     def compose(self) -> ComposeResult:
         """The form."""
-        app: Any = self.app
+        app = self.app
         typical = app.data.setting("last_storey_height_m") or 3.2
         yield Static("New survey", classes="title")
         with VerticalScroll(id="new-form"):
@@ -112,7 +132,7 @@ class NewSurveyScreen(Screen[str | None]):
         if isinstance(event.field, Field):
             event.field.saved_text = event.field.text  # leaving it now asks nothing more
 
-    def enter_pressed(self, widget: Any) -> bool:
+    def enter_pressed(self, widget: Widget) -> bool:
         """Enter in a field moves on to the next one at once (leaving it checks it)."""
         if isinstance(widget, Input) and isinstance(widget.parent, Field):
             self.focus_next()
@@ -124,8 +144,8 @@ class NewSurveyScreen(Screen[str | None]):
         if event.button.id == "create":
             self.action_create()
 
-    def _collect(self) -> dict[str, Any] | None:
-        values: dict[str, Any] = {}
+    def _collect(self) -> Collected | None:
+        values: dict[str, object] = {}
         bad = False
         for f in self.query(Field):
             try:
@@ -135,8 +155,8 @@ class NewSurveyScreen(Screen[str | None]):
                 bad = True
         if bad:
             return None
-        above = values["f-above"]
-        below = values["f-below"] or 0
+        above = _whole(values["f-above"])
+        below = _whole(values["f-below"])
         height = values["f-height"]
         for fid, v, rule in (("f-above", above, "at least one storey above ground"),
                              ("f-below", below, "0 or more")):
@@ -146,7 +166,7 @@ class NewSurveyScreen(Screen[str | None]):
                 bad = True
         if bad:
             return None
-        building: dict[str, Any] = {
+        building: dict[str, object] = {
             "name": values["f-name"], "address": values["f-address"],
             "system": {"x": self.query_one("#f-sx", Choice).value(),
                        "y": self.query_one("#f-sy", Choice).value()},
@@ -157,20 +177,23 @@ class NewSurveyScreen(Screen[str | None]):
             building["year_built"] = values["f-year"]
         if values["f-lat"] is not None or values["f-lon"] is not None:
             building["location"] = {"lat": values["f-lat"], "lon": values["f-lon"]}
-        inspector = {"name": values["f-inspector"]}
+        who = str(values["f-inspector"])
+        inspector: dict[str, object] = {"name": who}
         if values["f-inspector-id"]:
             inspector["id"] = values["f-inspector-id"]
-        naming = self.query_one("#f-naming", Choice).value() or "G"
+        naming = str(self.query_one("#f-naming", Choice).value() or "G")
         storeys = [{"label": lab, "height_m": height, "below_grade": lab.startswith("B")}
                    for lab in storey_labels(above, below, naming)]
-        inspection: dict[str, Any] = {"inspector": inspector, "at": values["f-at"]}
+        inspection: dict[str, object] = {"inspector": inspector, "at": values["f-at"]}
         for key, fid in (("team", "f-team"), ("event", "f-event"), ("weather", "f-weather"),
                          ("not_inspected", "f-not-inspected")):
             if values[fid]:
                 inspection[key] = values[fid]
-        return {"building": building, "inspection": inspection, "storeys": storeys}
+        return Collected({"building": building, "inspection": inspection, "storeys": storeys},
+                         who, inspector.get("id"), height, inspection.get("team"),
+                         inspection.get("event"))
 
-    def _field_for(self, message: str) -> Any:
+    def _field_for(self, message: str) -> Field | Choice | None:
         path = message.partition(":")[0]
         if path.startswith("storeys"):
             return self.query_one("#f-height", Field)
@@ -191,10 +214,10 @@ class NewSurveyScreen(Screen[str | None]):
         if data is None:
             status.update("not created: a field breaks its rule (shown beside it)")
             return
-        app: Any = self.app
-        who = data["inspection"]["inspector"]["name"]
+        app = self.app
+        who = data.who
         try:
-            sid = app.data.new_survey(data, who)
+            sid = app.data.new_survey(data.survey, who)
         except Refused as err:
             f = self._field_for(str(err))
             if f is not None:
@@ -202,11 +225,11 @@ class NewSurveyScreen(Screen[str | None]):
             status.update(block(f"not created: {said(str(err))}"))
             return
         app.data.remember("last_inspector_name", who)
-        app.data.remember("last_inspector_id", data["inspection"]["inspector"].get("id"))
-        app.data.remember("last_storey_height_m", data["storeys"][0]["height_m"])
+        app.data.remember("last_inspector_id", data.inspector_id)
+        app.data.remember("last_storey_height_m", data.height)
         app.data.remember("last_storey_naming", self.query_one("#f-naming", Choice).value())
-        app.data.remember("last_team", data["inspection"].get("team"))
-        app.data.remember("last_event", data["inspection"].get("event"))
+        app.data.remember("last_team", data.team)
+        app.data.remember("last_event", data.event)
         app.who = who
         self.dismiss(sid)
 

@@ -10,19 +10,19 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any, ClassVar
+from typing import ClassVar
 
 from textual import work
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import VerticalScroll
-from textual.screen import Screen
 from textual.widgets import Button, Footer, Static
 from textual.worker import Worker, WorkerState
 
 from triage.ui.data import Refused, rule_of
 from triage.ui.messages import CAUTION_SHORT, UNSIGNED, FieldAccepted
 from triage.ui.shown import block, line
+from triage.ui.typed import TriageScreen
 from triage.ui.verdicts import verdict_of, worker_store
 from triage.ui.widgets.field import Field
 
@@ -60,7 +60,7 @@ def write_issued(db_path: Path, survey_id: str, out: Path, key_path: str | None,
     return Issued(Path(info.path), bool(info.signed), info.fingerprint, v.revision)
 
 
-class ReportScreen(Screen[bool]):
+class ReportScreen(TriageScreen[bool]):
     """The report form; returns whether a report was written."""
 
     CSS_PATH = "report.tcss"
@@ -77,7 +77,7 @@ class ReportScreen(Screen[bool]):
 
     def compose(self) -> ComposeResult:
         """The form."""
-        app: Any = self.app
+        app = self.app
         s = app.data.load(self.survey_id)
         rev = app.data.revision(self.survey_id)
         at = s.inspection.at.strftime("%Y%m%d-%H%M")
@@ -116,7 +116,7 @@ class ReportScreen(Screen[bool]):
         event.stop()
         if not event.path:
             return
-        app: Any = self.app
+        app = self.app
         try:
             app.data.set(self.survey_id, event.path, event.value, app.who)
         except Refused as err:
@@ -146,7 +146,7 @@ class ReportScreen(Screen[bool]):
         passphrase = self.query_one("#r-pass", Field).text
         self.query_one("#report-result", Static).update("writing the report …")
         self.query_one("#write", Button).disabled = True
-        app: Any = self.app
+        app = self.app
         if key:
             app.data.remember("last_key_path", key)
         self.write_worker(Path(out_text).expanduser(), key, passphrase)
@@ -154,7 +154,7 @@ class ReportScreen(Screen[bool]):
     @work(thread=True, exclusive=True, group="report", exit_on_error=False)
     def write_worker(self, out: Path, key: str | None, passphrase: str) -> Issued:
         """The PDF, off the UI thread."""
-        app: Any = self.app
+        app = self.app
         return write_issued(app.db_path, self.survey_id, out, key, passphrase)
 
     def on_worker_state_changed(self, event: Worker.StateChanged) -> None:

@@ -8,26 +8,29 @@ drawn when it comes back. The UI thread never assesses.
 from __future__ import annotations
 
 import asyncio
-from typing import Any, ClassVar
+from typing import ClassVar
 
 from textual import work
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical, VerticalScroll
-from textual.screen import Screen
+from textual.widget import Widget
 from textual.widgets import Footer, Input, OptionList, Static, TabbedContent, TabPane
 from textual.widgets.option_list import Option
 from textual.worker import Worker, WorkerState
 
+from triage.assess import Assessment
+from triage.model import Storey
 from triage.ui.choices import next_label
 from triage.ui.data import Refused, rule_of
 from triage.ui.messages import FieldAccepted
 from triage.ui.shown import block, line
+from triage.ui.typed import TriageScreen
 from triage.ui.verdicts import Verdict
 from triage.ui.widgets.field import Field, set_text
 from triage.ui.widgets.hazards import HazardsPane
 from triage.ui.widgets.members import MembersPane
-from triage.ui.widgets.pane import ItemPane
+from triage.ui.widgets.pane import FormPane, ItemPane
 from triage.ui.widgets.photos import PhotosPane
 from triage.ui.widgets.readings import ReadingsPane
 from triage.ui.widgets.storey_pane import StoreyPane
@@ -53,7 +56,7 @@ class StoreyTabs(TabbedContent):
 WIDE = 150  # columns from which the full verdict sits beside the form
 
 
-class SurveyScreen(Screen[None]):
+class SurveyScreen(TriageScreen[None]):
     """The logging screen of one survey."""
 
     CSS_PATH = "survey.tcss"
@@ -84,11 +87,11 @@ class SurveyScreen(Screen[None]):
     def __init__(self, survey_id: str) -> None:
         super().__init__()
         self.survey_id = survey_id
-        app: Any = self.app
+        app = self.app
         self.data = app.data
         self.survey = self.data.load(survey_id)
         self.revision = self.data.revision(survey_id)
-        self.assessment: Any = self.data.stored_assessment(survey_id)
+        self.assessment: Assessment | None = self.data.stored_assessment(survey_id)
         self.assessed_revision = -1
         self.storey_index = self._first_storey()
         self.who = app.who
@@ -101,7 +104,7 @@ class SurveyScreen(Screen[None]):
         return 0
 
     @property
-    def storey(self) -> Any:
+    def storey(self) -> Storey | None:
         """The storey in view."""
         if 0 <= self.storey_index < len(self.survey.storeys):
             return self.survey.storeys[self.storey_index]
@@ -274,7 +277,7 @@ class SurveyScreen(Screen[None]):
             raise SkipAction()  # elsewhere ctrl+d is the field's own (delete right)
         self.query_one(ReadingsPane).toggle_direction()
 
-    def enter_pressed(self, widget: Any) -> bool:
+    def enter_pressed(self, widget: Widget) -> bool:
         """Enter in a pane, acted on at once (see triage/ui/focus.py)."""
         for node in widget.ancestors_with_self:
             if isinstance(node, ItemPane):
@@ -319,7 +322,7 @@ class SurveyScreen(Screen[None]):
         self.show_title("✓ saved")
         self.request_verdict()
 
-    def add_item(self, path: str, item: dict[str, Any]) -> int:
+    def add_item(self, path: str, item: dict[str, object]) -> int:
         """Add an item (from a pane); Refused passes up to the pane."""
         rev = self.data.add(self.survey_id, path, item, self.who)
         self.survey = self.data.load(self.survey_id)
@@ -353,10 +356,10 @@ class SurveyScreen(Screen[None]):
         self.request_verdict()
         return rev
 
-    def current_pane(self) -> Any:
+    def current_pane(self) -> FormPane:
         """The pane of the tab in view."""
         tab = self.query_one(TabbedContent).active
-        return self.query_one(f"#{tab}-pane")
+        return self.query_one(f"#{tab}-pane", FormPane)
 
     def action_new(self) -> None:
         """A new item in the tab in view (a storey on top in the storey tab)."""
@@ -442,7 +445,7 @@ class SurveyScreen(Screen[None]):
     @work(exclusive=True, group="verdict", exit_on_error=False)
     async def verdict_worker(self) -> Verdict:
         """Assess in the verdict thread; draw the result here, on the UI thread."""
-        app: Any = self.app
+        app = self.app
         v: Verdict = await asyncio.wrap_future(app.verdicts.submit(self.survey_id))
         self.apply_verdict(v)
         return v

@@ -3,24 +3,26 @@
 from __future__ import annotations
 
 import contextlib
-from typing import Any, ClassVar
+from typing import TYPE_CHECKING, ClassVar
 
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
-from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Input, Static
 
 from triage.ui.messages import CAUTION_SHORT
 from triage.ui.shown import block, line
+from triage.ui.typed import TriageScreen
 from triage.ui.widgets.field import no_blink, set_text
 
+if TYPE_CHECKING:  # the store is loaded behind the first screen
+    from triage.store.rows import SurveyRow
 
 def _when(at: str) -> str:
     """'2026-11-29 14:05' from an ISO time."""
     return at[:16].replace("T", " ") if at else ""
 
 
-class SurveyListScreen(Screen[None]):
+class SurveyListScreen(TriageScreen[None]):
     """The list of surveys: the first screen."""
 
     CSS_PATH = "survey_list.tcss"
@@ -38,7 +40,7 @@ class SurveyListScreen(Screen[None]):
 
     def __init__(self) -> None:
         super().__init__()
-        self.rows: list[Any] = []
+        self.rows: list[SurveyRow] = []
         self.include_hidden = False
 
     def compose(self) -> ComposeResult:
@@ -70,21 +72,21 @@ class SurveyListScreen(Screen[None]):
 
     def ready(self) -> bool:
         """Whether the database is open; says so when not."""
-        app: Any = self.app
-        if app.data is None:
+        app = self.app
+        if not app.is_open:
             set_text(self.query_one("#list-status", Static), "opening the survey database …")
             return False
         return True
 
     def refresh_rows(self, keep: str | None = None) -> None:
         """Reload the rows from the store and apply the filter."""
-        app: Any = self.app
+        app = self.app
         if not self.ready():
             return
         self.rows = app.data.surveys(include_hidden=self.include_hidden)
         self.apply_filter(keep)
 
-    def _matches(self, row: Any, words: list[str]) -> bool:
+    def _matches(self, row: SurveyRow, words: list[str]) -> bool:
         # the id too, so the 8-character code a paper form gives finds the earlier survey
         hay = " ".join(str(x or "") for x in (row.building, row.address, row.inspector,
                                               row.tier, _when(row.at), row.id)).lower()
@@ -181,7 +183,7 @@ class SurveyListScreen(Screen[None]):
         sid = self.selected_id()
         if sid is None or not self.ready():
             return
-        app: Any = self.app
+        app = self.app
         inspector = {"name": app.data.setting("last_inspector_name") or app.who}
         iid = app.data.setting("last_inspector_id")
         if iid:
@@ -202,7 +204,7 @@ class SurveyListScreen(Screen[None]):
         sid = self.selected_id()
         if sid is None or not self.ready():
             return
-        app: Any = self.app
+        app = self.app
         app.data.hide(sid, app.who)
         self.refresh_rows()
         self.query_one("#list-status", Static).update(

@@ -2,19 +2,21 @@
 
 from __future__ import annotations
 
-from typing import Any, ClassVar
+from typing import ClassVar
 
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import VerticalScroll
-from textual.screen import Screen
 from textual.widgets import Footer, Static
 
+from triage.assess import Assessment
+from triage.model import Survey
 from triage.ui.shown import line
+from triage.ui.typed import TriageScreen
 from triage.ui.widgets.verdict import verdict_lines
 
 
-class VerdictScreen(Screen[None]):
+class VerdictScreen(TriageScreen[None]):
     """The verdict panel on its own screen (F2 from the logging screen)."""
 
     CSS_PATH = "verdict.tcss"
@@ -23,7 +25,7 @@ class VerdictScreen(Screen[None]):
         Binding("f2", "close", "back", show=False, priority=True),
     ]
 
-    def __init__(self, survey: Any, assessment: Any) -> None:
+    def __init__(self, survey: Survey, assessment: Assessment) -> None:
         super().__init__()
         self.survey = survey
         self.assessment = assessment

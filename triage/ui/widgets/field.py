@@ -11,10 +11,12 @@ from __future__ import annotations
 
 import math
 import re
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from datetime import datetime, tzinfo
-from typing import Any
 
+from rich.console import RenderableType
+from rich.text import Text
+from textual import events
 from textual.app import ComposeResult
 from textual.containers import Horizontal
 from textual.widgets import Checkbox, Input, Label, Select, Static
@@ -27,7 +29,7 @@ from triage.ui.widgets.search import PickSelect
 from triage.ui.widgets.ticks import TickBox
 
 
-def no_blink(widget: Any) -> None:
+def no_blink(widget: Input) -> None:
     """Stop a text cursor blinking when the app asks for it (tests and snapshots)."""
     try:
         if not getattr(widget.app, "blink", True):
@@ -36,7 +38,7 @@ def no_blink(widget: Any) -> None:
         pass
 
 
-def set_text(widget: Static, content: Any, fixed: bool = False) -> None:
+def set_text(widget: Static, content: str | Text, fixed: bool = False) -> None:
     """Update a Static only when its text changes.
 
     `fixed`: its size cannot change, so no new layout is needed (a layout pass of the whole
@@ -46,12 +48,11 @@ def set_text(widget: Static, content: Any, fixed: bool = False) -> None:
     if getattr(widget, "_triage_text", None) == text:
         return
     widget._triage_text = text  # type: ignore[attr-defined]
-    if isinstance(content, str):  # it may quote the survey: escaped, never markup
-        content = block(content)
-    widget.update(content, layout=not fixed)
+    # a str may quote the survey: escaped, never markup
+    widget.update(block(content) if isinstance(content, str) else content, layout=not fixed)
 
 
-def parse_value(text: str, kind: str, unit: str = "", required: bool = False) -> Any:
+def parse_value(text: str, kind: str, unit: str = "", required: bool = False) -> object:
     """The value of a field's text, or ValueError with the rule: empty means none."""
     text = text.strip()
     if not text:
@@ -74,7 +75,7 @@ def parse_value(text: str, kind: str, unit: str = "", required: bool = False) ->
     return v
 
 
-def show_text(value: Any) -> str:
+def show_text(value: object) -> str:
     """A value as a field shows it."""
     if value is None:
         return ""
@@ -87,7 +88,7 @@ WHEN_FORMATS = ("%Y-%m-%d %H:%M %z", "%Y-%m-%d %H:%M:%S %z", "%Y-%m-%d %H:%M",
                 "%Y-%m-%d %H:%M:%S", "%Y-%m-%dT%H:%M")
 
 
-def when_text(value: Any) -> str:
+def when_text(value: object) -> str:
     """A time as a field shows it: '2026-11-29 14:05 +13:00' (its own offset kept)."""
     if value is None or value == "":
         return ""
@@ -124,12 +125,12 @@ def parse_when(text: str, tz: tzinfo | None) -> str:
 _PERSON = re.compile(r"^(?P<name>[^()]*?)\s*(?:\((?P<id>[^()]*)\))?$")
 
 
-def team_text(value: Any) -> str:
+def team_text(value: object) -> str:
     """Team members as a field shows them: 'Ana Rewi (NZ-42); Tom Hale'."""
     out = []
-    for p in value or ():
-        name = p.get("name") if isinstance(p, dict) else p.name
-        pid = p.get("id") if isinstance(p, dict) else p.id
+    for p in value if isinstance(value, (list, tuple)) else ():
+        name = p.get("name") if isinstance(p, dict) else getattr(p, "name", p)
+        pid = p.get("id") if isinstance(p, dict) else getattr(p, "id", None)
         out.append(f"{name} ({pid})" if pid else str(name))
     return "; ".join(out)
 
@@ -152,16 +153,35 @@ def parse_team(text: str) -> list[dict[str, str]]:
     return out
 
 
-def picks(options: list[tuple[str, Any]]) -> list[tuple[Any, Any]]:
+def picks(options: Sequence[tuple[str, object]]) -> list[tuple[RenderableType, object]]:
     """Options of a pick list, their words shown through `triage.ui.shown.line`."""
     return [(line(text) if isinstance(text, str) else text, value) for text, value in options]
 
 
 class Saving:
-    """The saved / refused status shared by the field widgets."""
+    """The saved / refused status shared by the field widgets, and what a form asks of them.
+
+    A mixin, not a widget: a field widget is a `Saving` before its container class
+    (`Field(Saving, Horizontal)`), so these handlers come first, and Textual takes its CSS
+    from the container (it follows a widget's first widget base only). The value methods
+    are each widget's own.
+    """
 
     status: Static
     key: str = ""  # the JSON key the widget edits, inside a pane's form
+    path: str | None = None  # where it saves in the survey; None: a new item's form
+
+    def value(self) -> object:
+        """The value shown (ValueError with the rule when it breaks the field's own)."""
+        raise NotImplementedError
+
+    def set_value(self, value: object) -> None:
+        """Show a stored value without asking to save it."""
+        raise NotImplementedError
+
+    def mark_saved(self, note: str = "", value: object = ...) -> None:
+        """The store took the value."""
+        raise NotImplementedError
 
     def show_saved(self, note: str = "") -> None:
         """Mark the value as saved."""
@@ -183,11 +203,11 @@ class Saving:
         self.status.set_class(False, "refused")
         self.status.set_class(False, "saved")
 
-    def on_descendant_focus(self, event: Any) -> None:
+    def on_descendant_focus(self, event: events.DescendantFocus) -> None:
         """The cursor came into this field: its label marks it."""
         self.set_class(True, "-here")  # type: ignore[attr-defined]
 
-    def on_descendant_blur(self, event: Any) -> None:
+    def on_descendant_blur(self, event: events.DescendantBlur) -> None:
         """The cursor left this field."""
         self.set_class(False, "-here")  # type: ignore[attr-defined]
 
@@ -213,11 +233,11 @@ class Field(Saving, Horizontal):
     Field > .fstatus.refused { color: $accent; text-style: bold; }
     """
 
-    def __init__(self, label: str, path: str | None, value: Any = None, *, kind: str = "text",
+    def __init__(self, label: str, path: str | None, value: object = None, *, kind: str = "text",
                  unit: str = "", required: bool = False, width: int | None = None,
                  placeholder: str = "", password: bool = False, id: str | None = None,
-                 classes: str | None = None, show: Callable[[Any], str] | None = None,
-                 parse: Callable[[str], Any] | None = None) -> None:
+                 classes: str | None = None, show: Callable[[object], str] | None = None,
+                 parse: Callable[[str], object] | None = None) -> None:
         super().__init__(id=id, classes=classes)
         self.label_text = label
         self.path = path
@@ -249,18 +269,18 @@ class Field(Saving, Horizontal):
         """The text typed in the field."""
         return self.input.value
 
-    def shown(self, value: Any) -> str:
+    def shown(self, value: object) -> str:
         """A stored value as the field shows it (control and bidi characters as escapes)."""
         return visible_line(self.show(value))
 
-    def set_value(self, value: Any, saved: bool = True) -> None:
+    def set_value(self, value: object, saved: bool = True) -> None:
         """Put a value in the field (as stored)."""
         t = self.shown(value)
         self.input.value = t
         if saved:
             self.saved_text = t
 
-    def value(self) -> Any:
+    def value(self) -> object:
         """The field's value; ValueError with the rule when it breaks the field's own rule."""
         if self.parse is not None:
             if not self.input.value.strip() and not self.required:
@@ -279,7 +299,7 @@ class Field(Saving, Horizontal):
             return
         self.post_message(FieldAccepted(self, self.path or "", v))
 
-    def mark_saved(self, note: str = "", value: Any = ...) -> None:
+    def mark_saved(self, note: str = "", value: object = ...) -> None:
         """The store took the value (the field's text: it is not typed in meanwhile)."""
         self.saved_text = self.input.value
         self.show_saved(note)
@@ -314,15 +334,15 @@ class Choice(Saving, Horizontal):
     Choice > .fstatus.refused { color: $accent; text-style: bold; }
     """
 
-    def __init__(self, label: str, path: str | None, options: list[tuple[str, Any]],
-                 value: Any = None, *, allow_blank: bool = False, width: int | None = None,
+    def __init__(self, label: str, path: str | None, options: Sequence[tuple[str, object]],
+                 value: object = None, *, allow_blank: bool = False, width: int | None = None,
                  id: str | None = None, classes: str | None = None) -> None:
         super().__init__(id=id, classes=classes)
         self.label_text = label
         self.path = path
         self.saved_value = value
         self._width = width
-        self.select: Select[Any] = PickSelect(
+        self.select = PickSelect(
             picks(options), value=value if value is not None else Select.NULL,
             allow_blank=allow_blank or value is None, compact=True, prompt="—")
         self.status = Static("", classes="fstatus")
@@ -338,24 +358,24 @@ class Choice(Saving, Horizontal):
         if self._width:
             self.select.styles.width = self._width
 
-    def value(self) -> Any:
+    def value(self) -> object:
         """The picked value, None when blank."""
         v = self.select.value
         return None if v is Select.NULL or isinstance(v, type(Select.NULL)) else v
 
-    def set_value(self, value: Any) -> None:
+    def set_value(self, value: object) -> None:
         """Show a stored value without asking to save it."""
         self.saved_value = value
         self.select.value = value if value is not None else Select.NULL
 
-    def set_options(self, options: list[tuple[str, Any]], value: Any = None) -> None:
+    def set_options(self, options: Sequence[tuple[str, object]], value: object = None) -> None:
         """Replace the choices."""
         self.saved_value = value
         self.select.set_options(picks(options))
         if value is not None:
             self.select.value = value
 
-    def mark_saved(self, note: str = "", value: Any = ...) -> None:
+    def mark_saved(self, note: str = "", value: object = ...) -> None:
         """The store took `value` (by default the value shown; a later pick may differ)."""
         self.saved_value = self.value() if value is ... else value
         self.show_saved(note)
@@ -397,14 +417,14 @@ class Tick(Saving, Horizontal):
         """Ticked or not."""
         return bool(self.box.value)
 
-    def set_value(self, value: bool) -> None:
+    def set_value(self, value: object) -> None:
         """Show a stored value without asking to save it."""
-        self.saved_value = value
-        self.box.value = value
+        self.saved_value = bool(value)
+        self.box.value = bool(value)
 
-    def mark_saved(self, note: str = "", value: Any = ...) -> None:
+    def mark_saved(self, note: str = "", value: object = ...) -> None:
         """The store took `value` (by default the value shown; a later pick may differ)."""
-        self.saved_value = self.value() if value is ... else value
+        self.saved_value = self.value() if value is ... else bool(value)
         self.show_saved(note)
 
     def on_checkbox_changed(self, event: Checkbox.Changed) -> None:

@@ -2,20 +2,25 @@
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING
 
 from textual.app import ComposeResult
 
 from triage.assess import tier_words
+from triage.model import Hazard
 from triage.standards.vocabulary import words
 from triage.ui.choices import hazard_choices
+from triage.ui.messages import FieldAccepted
 from triage.ui.widgets.field import Choice, Field, set_text
 from triage.ui.widgets.pane import ItemPane, values_of
+
+if TYPE_CHECKING:
+    from triage.ui.widgets.pane import FormField
 
 KEYS = ["kind", "height_above_ground_m", "where", "storey", "note"]  # the form's order
 
 
-class HazardsPane(ItemPane):
+class HazardsPane(ItemPane[Hazard]):
     """The hazards of the survey (any time, whatever storey is in view)."""
 
     first_key = "kind"
@@ -27,7 +32,7 @@ class HazardsPane(ItemPane):
         """Hazards belong to the survey."""
         return "hazards"
 
-    def items(self) -> list[Any]:
+    def items(self) -> list[Hazard]:
         """The survey's hazards."""
         return list(self.survey_screen.survey.hazards)
 
@@ -35,7 +40,7 @@ class HazardsPane(ItemPane):
         """What the list is."""
         return "Hazards (check list from the forms of the building's systems)"
 
-    def row(self, index: int, item: Any) -> tuple[str, ...]:
+    def row(self, index: int, item: Hazard) -> tuple[str, ...]:
         """One hazard with its keep-out distance as assessed."""
         a = self.survey_screen.assessment
         res = None
@@ -66,7 +71,7 @@ class HazardsPane(ItemPane):
     def form_widgets(self) -> ComposeResult:
         """Kind, height, where, storey, note."""
         opts = self._options()
-        w: list[Any] = [  # kind, then its height (the keep-out rests on it)
+        w: list[Field | Choice] = [  # kind, then its height (the keep-out rests on it)
             Choice("kind", None, opts, None, allow_blank=True, id="h-kind", width=40),
             Field("height", None, kind="float", unit="m", id="h-height",
                   placeholder="above ground"),
@@ -78,9 +83,9 @@ class HazardsPane(ItemPane):
             widget.key = k
         yield from w
 
-    def fill(self, item: Any | None) -> None:
+    def fill(self, item: Hazard | None) -> None:
         """A hazard's values, or a new one."""
-        self.form["storey"].set_options(self._storeys(),
+        self.choice("storey").set_options(self._storeys(),
                                         None if item is None else item.storey)
         if item is None:
             for k in ("where", "height_above_ground_m", "note"):
@@ -93,18 +98,18 @@ class HazardsPane(ItemPane):
         set_text(self.note, "keep-out: a falling hazard's zone is at least as wide as it is "
                          "high; give its height above ground")
 
-    def form_changed(self, widget: Any) -> None:
+    def form_changed(self, widget: FormField) -> None:
         """Say where to look for the kind picked."""
         if widget is self.form["kind"]:
-            set_text(self.note, self.hint(widget.value()))
+            set_text(self.note, self.hint(str(widget.value() or "")))
 
-    def on_field_accepted(self, event: Any) -> None:
+    def on_field_accepted(self, event: FieldAccepted) -> None:
         """Show the hint of a kind picked while editing too."""
         if self.editing is not None and event.field is self.form["kind"]:
-            set_text(self.note, self.hint(event.value))
+            set_text(self.note, self.hint(str(event.value or "")))
         # (Textual then calls ItemPane.on_field_accepted itself: handlers run down the MRO)
 
-    def build_item(self) -> dict[str, Any]:
+    def build_item(self) -> dict[str, object]:
         """The hazard from the form."""
         data = values_of(self.form, KEYS)
         if "kind" not in data:

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING
 
 from textual import events
 from textual.app import ComposeResult
@@ -12,6 +12,8 @@ from textual.containers import Horizontal, Vertical
 from textual.widgets import Label, OptionList, SelectionList, Static
 
 from triage import standards
+from triage.assess.result import MemberResult
+from triage.model import MemberGroup
 from triage.standards import CLASSES, takes_connection_type, takes_inspected, takes_wall_mode
 from triage.standards.vocabulary import words
 from triage.ui.choices import (
@@ -26,6 +28,9 @@ from triage.ui.choices import (
 from triage.ui.messages import FieldAccepted
 from triage.ui.widgets.field import Choice, Field, Saving, set_text
 from triage.ui.widgets.pane import ItemPane, values_of
+
+if TYPE_CHECKING:
+    from triage.ui.widgets.pane import FormField
 from triage.ui.widgets.search import Searcher, searchable
 from triage.ui.widgets.ticks import TickList
 
@@ -42,8 +47,8 @@ class MemberField:
     """
 
     key: str
-    build: Callable[[Any], Any]
-    default: Any = None
+    build: Callable[[MembersPane], FormField]
+    default: object = None
     kinds: tuple[str, ...] = ()
     keep: bool = False
     where: Callable[[str, tuple[str, ...]], bool] | None = None
@@ -55,7 +60,7 @@ class MemberField:
         return self.where is None or self.where(kind, systems)
 
 
-def _kinds(pane: Any) -> Any:
+def _kinds(pane: MembersPane) -> Choice:
     kinds = [(words("member_kinds", k), k) for k in member_kinds(pane.systems())]
     return Choice("kind", None, kinds, "column", id="m-kind")
 
@@ -107,8 +112,8 @@ class SignList(TickList):
     moves to the next sign whose words begin with it (triage/ui/widgets/search.py).
     """
 
-    def __init__(self, *args: Any, **kwargs: Any) -> None:
-        super().__init__(*args, **kwargs)
+    def __init__(self, *, compact: bool = False) -> None:
+        super().__init__(compact=compact)
         self.searcher = Searcher()
 
     def check_consume_key(self, key: str, character: str | None) -> bool:
@@ -206,16 +211,18 @@ class SignChecks(Saving, Horizontal):
         """The ticked signs, in list order."""
         return [str(v) for v in self.checks.selected]
 
-    def set_value(self, value: Any) -> None:
+    def set_value(self, value: object) -> None:
         """Tick the given signs (kept choices)."""
-        self.saved_value = list(value or [])
+        self.saved_value = [str(v) for v in value] if isinstance(value, (list, tuple)) else []
 
-    def mark_saved(self, note: str = "", value: Any = ...) -> None:
+    def mark_saved(self, note: str = "", value: object = ...) -> None:
         """The store took these signs (a sign ticked since is saved by its own message)."""
-        self.saved_value = self.value() if value is ... else list(value)
+        self.saved_value = self.value() if not isinstance(value, (list, tuple)) else [
+            str(v) for v in value]
         self.show_saved(note)
 
-    def on_selection_list_selected_changed(self, event: SelectionList.SelectedChanged) -> None:
+    def on_selection_list_selected_changed(
+            self, event: SelectionList.SelectedChanged[str]) -> None:
         """Ticking a sign asks to save the list."""
         event.stop()
         if self._quiet:
@@ -227,7 +234,7 @@ class SignChecks(Saving, Horizontal):
         self.post_message(FieldAccepted(self, self.path or "", v))
 
 
-class MembersPane(ItemPane):
+class MembersPane(ItemPane[MemberGroup]):
     """The member groups of the storey in view."""
 
     first_key = "kind"  # a letter picks the kind; Tab goes on to the count
@@ -239,7 +246,7 @@ class MembersPane(ItemPane):
         """E.g. storeys[1].members."""
         return f"storeys[{self.survey_screen.storey_index}].members"
 
-    def items(self) -> list[Any]:
+    def items(self) -> list[MemberGroup]:
         """The storey's member groups."""
         st = self.survey_screen.storey
         return list(st.members) if st is not None else []
@@ -249,7 +256,7 @@ class MembersPane(ItemPane):
         s = self.survey_screen.survey
         return (s.building.system.x, s.building.system.y)
 
-    def result(self, index: int) -> Any | None:
+    def result(self, index: int) -> MemberResult | None:
         """The assessed class and eta of a group."""
         scr = self.survey_screen
         a, st = scr.assessment, scr.storey
@@ -270,7 +277,7 @@ class MembersPane(ItemPane):
         return (f"Member groups, storey {st.label} · {total} members in {len(st.members)} "
                 "groups")
 
-    def row(self, index: int, item: Any) -> tuple[str, ...]:
+    def row(self, index: int, item: MemberGroup) -> tuple[str, ...]:
         """One group, with its assessed class and eta."""
         res = self.result(index)
         cls = "—" if res is None else (res.damage_class or "none")
@@ -289,7 +296,7 @@ class MembersPane(ItemPane):
         for spec in FIELDS:
             widget = spec.build(self)
             widget.key = spec.key
-            if spec.key == "signs":
+            if isinstance(widget, SignChecks):
                 self.signs = widget
             yield widget
             if spec.key == "severity":   # what the capacity picks mean, right under them
@@ -307,7 +314,7 @@ class MembersPane(ItemPane):
         for spec in FIELDS:
             if spec.kinds or spec.where is not None:
                 self.form[spec.key].display = spec.shown(kind, systems)
-        mode = self.form["mode"]
+        mode = self.choice("mode")
         if mode.display and getattr(self, "_modes_kind", "wall") != kind:
             self._modes_kind = kind
             keep = mode.value()
@@ -320,21 +327,21 @@ class MembersPane(ItemPane):
 
         Shown only where the group takes them.
         """
-        kind = self.form["kind"].value() or "column"
+        kind = str(self.form["kind"].value() or "column")
         fields = [k for k in ("connection_type", "mode", "severity") if self.form[k].display]
         self.capacity_line.display = bool(fields)
         if fields:
-            set_text(self.capacity_line, capacity_hint(
-                kind, self.form["connection_type"].value(), self.form["mode"].value(),
-                self.form["severity"].value()))
+            picked = [self.form[k].value() for k in ("connection_type", "mode", "severity")]
+            conn, mode, severity = (None if v is None else str(v) for v in picked)
+            set_text(self.capacity_line, capacity_hint(kind, conn, mode, severity))
 
-    def fill(self, item: Any | None) -> None:
+    def fill(self, item: MemberGroup | None) -> None:
         """A group's values, or a new group (the kind kept from the last one)."""
         if item is None:
             for spec in FIELDS:
                 if spec.key != "signs" and not spec.keep:
                     self.form[spec.key].set_value(spec.default)
-            kind = self.form["kind"].value() or "column"
+            kind = str(self.form["kind"].value() or "column")
             self.form["kind"].set_value(kind)
             selected: list[str] = []
         else:
@@ -374,22 +381,22 @@ class MembersPane(ItemPane):
 
         (Textual runs ItemPane.on_mount too: handlers run down the MRO.)
         """
-        self.form["kind"].select.on_pick = self.kind_picked
+        self.choice("kind").select.on_pick = self.kind_picked
 
-    def kind_picked(self, kind: Any) -> None:
+    def kind_picked(self, picked: object) -> None:
         """Another kind, picked: its signs and fields, before the next key is taken.
 
         Keys typed ahead (Tab, a letter finding a sign, Space) must meet the new kind's sign
         list, not the old one rebuilt under them later.
         """
-        kind = kind or "column"
+        kind = str(picked or "column")
         if kind == getattr(self, "_signs_kind", None):
             return
         self._signs_kind = kind
         self.signs.set_choices(sign_choices(self.systems(), kind), self.signs.value())
         self.shown_for(kind)
 
-    def form_changed(self, widget: Any) -> None:
+    def form_changed(self, widget: FormField) -> None:
         """A new kind offers its own signs and fields; a capacity pick says what it means."""
         if widget is self.form["kind"]:
             self.kind_picked(widget.value())
@@ -406,9 +413,9 @@ class MembersPane(ItemPane):
             event.prevent_default()  # gathered with the new group, not added on its own
         # (Textual then calls ItemPane.on_field_accepted itself: handlers run down the MRO)
 
-    def build_item(self) -> dict[str, Any]:
+    def build_item(self) -> dict[str, object]:
         """The group from the form."""
-        kind = self.form["kind"].value() or "column"
+        kind = str(self.form["kind"].value() or "column")
         systems = self.systems()
         data = values_of(self.form, [f.key for f in FIELDS if f.key != "signs"
                                      and f.shown(kind, systems)])

@@ -10,33 +10,58 @@ field and nothing is written.
 from __future__ import annotations
 
 import re
-from typing import Any
+from typing import TYPE_CHECKING, Generic, TypeAlias, TypeVar, cast
 
 from rich.text import Text
+from textual import getters
 from textual.app import ComposeResult
 from textual.containers import VerticalScroll
 from textual.coordinate import Coordinate
+from textual.widget import Widget
 from textual.widgets import DataTable, Static
 from textual.widgets._select import SelectOverlay
 
+from triage.ui.app import TriageApp
 from triage.ui.data import Refused, rule_of
 from triage.ui.focus import focus_now
 from triage.ui.messages import FieldAccepted
 from triage.ui.shown import line
 from triage.ui.widgets.field import Choice, Field, Saving, Tick, set_text
 
+if TYPE_CHECKING:  # the screen imports the panes; the members pane imports this module
+    from triage.ui.screens.survey import SurveyScreen
+    from triage.ui.widgets.members import SignChecks
+
+    FormField: TypeAlias = Field | Choice | Tick | SignChecks  # a field of a pane's form
+
+ItemT = TypeVar("ItemT")
 FIELD_KEY = re.compile(r"\.(\w+)(?:\[\d+\])?:")
 
 
-def cell(text: Any) -> Text:
+def cell(text: object) -> Text:
     """A table cell: one escaped line, ending in an ellipsis where its column cuts it."""
     out = line(text)
     out.overflow = "ellipsis"
     return out
 
 
-class ItemPane(VerticalScroll):
-    """Base of the panes holding a table of items and the form of one."""
+class FormPane(VerticalScroll):
+    """A tab's pane on the survey screen: a form, entered where `focus_first` puts the cursor."""
+
+    app = getters.app(TriageApp)
+
+    @property
+    def survey_screen(self) -> SurveyScreen:
+        """The survey screen this pane lives on."""
+        return cast("SurveyScreen", self.screen)
+
+    def focus_first(self) -> None:
+        """Put the cursor where entry starts."""
+        raise NotImplementedError
+
+
+class ItemPane(FormPane, Generic[ItemT]):
+    """Base of the panes holding a table of items (of type ItemT) and the form of one."""
 
     can_focus = False
     DEFAULT_CSS = """
@@ -56,8 +81,8 @@ class ItemPane(VerticalScroll):
         self.editing: int | None = None
         self.dirty = False
         self.rows: list[tuple[str, ...]] = []
-        self.form: dict[str, Any] = {}
-        self.table: DataTable[Any] = DataTable(cursor_type="row", zebra_stripes=True)
+        self.form: dict[str, FormField] = {}
+        self.table: DataTable[object] = DataTable(cursor_type="row", zebra_stripes=True)
         self.head = Static("", classes="pane-head")
         self.empty = Static("", classes="pane-empty")  # in place of an empty table
         self.empty.display = False
@@ -70,11 +95,11 @@ class ItemPane(VerticalScroll):
         """The survey path of the list this pane edits, e.g. 'storeys[1].readings'."""
         raise NotImplementedError
 
-    def items(self) -> list[Any]:
+    def items(self) -> list[ItemT]:
         """The items of the list in the survey as loaded."""
         raise NotImplementedError
 
-    def row(self, index: int, item: Any) -> tuple[str, ...]:
+    def row(self, index: int, item: ItemT) -> tuple[str, ...]:
         """A table row for an item."""
         raise NotImplementedError
 
@@ -82,11 +107,11 @@ class ItemPane(VerticalScroll):
         """The form's fields; each gets a `key` attribute, its JSON key."""
         raise NotImplementedError
 
-    def fill(self, item: Any | None) -> None:
+    def fill(self, item: ItemT | None) -> None:
         """Put an item's values (or the defaults of a new one) in the form."""
         raise NotImplementedError
 
-    def build_item(self) -> dict[str, Any]:
+    def build_item(self) -> dict[str, object]:
         """The new item from the form; ValueError('key: rule') when a field breaks a rule."""
         raise NotImplementedError
 
@@ -102,15 +127,10 @@ class ItemPane(VerticalScroll):
         """Said in place of the table when the list is empty ("": the bare table is shown)."""
         return ""
 
-    def form_changed(self, widget: Any) -> None:
+    def form_changed(self, widget: FormField) -> None:
         """A pick in the form changed (new mode)."""
 
     # --- the mechanics -------------------------------------------------------------------
-
-    @property
-    def survey_screen(self) -> Any:
-        """The survey screen this pane lives on."""
-        return self.screen
 
     def compose(self) -> ComposeResult:
         """Heading, table, form."""
@@ -118,10 +138,11 @@ class ItemPane(VerticalScroll):
         yield self.table
         yield self.empty
         yield self.form_title
+        from triage.ui.widgets.members import SignChecks
+
         for w in self.form_widgets():
-            key = getattr(w, "key", None)
-            if key:
-                self.form[key] = w
+            if isinstance(w, (Field, Choice, Tick, SignChecks)) and w.key:
+                self.form[w.key] = w
             yield w
         yield self.note
 
@@ -180,6 +201,18 @@ class ItemPane(VerticalScroll):
                      content=f"{self.noun} {self.editing + 1}: each field saves as accepted · "
                      "^n new · ^r remove")
 
+    def field(self, key: str) -> Field:
+        """The form's text field for `key`."""
+        w = self.form[key]
+        assert isinstance(w, Field), key
+        return w
+
+    def choice(self, key: str) -> Choice:
+        """The form's pick list for `key`."""
+        w = self.form[key]
+        assert isinstance(w, Choice), key
+        return w
+
     def item_path(self, index: int) -> str:
         """The survey path of the listed item at `index`, e.g. 'storeys[1].readings[3]'."""
         return f"{self.list_path()}[{index}]"
@@ -212,7 +245,7 @@ class ItemPane(VerticalScroll):
                 w.focus_input()
                 return
 
-    def enter_pressed(self, widget: Any) -> bool:
+    def enter_pressed(self, widget: Widget) -> bool:
         """Enter, acted on at once (the app's priority binding; see triage/ui/focus.py).
 
         On a row: edit that item, the cursor in its form. In any field of a new item (a text
@@ -255,7 +288,7 @@ class ItemPane(VerticalScroll):
             return
         self.add_item()
 
-    def retry_refused(self, saved: Any) -> None:
+    def retry_refused(self, saved: FormField) -> None:
         """After a field is saved, try again the fields of this form still refused.
 
         A class set by hand waits for its reason, for example.
@@ -323,9 +356,9 @@ class ItemPane(VerticalScroll):
         set_text(self.note, f"✓ saved: {self.noun} {idx + 1} removed (ctrl+z undoes it)")
 
 
-def values_of(form: dict[str, Any], keys: list[str]) -> dict[str, Any]:
+def values_of(form: dict[str, FormField], keys: list[str]) -> dict[str, object]:
     """The non-empty values of some form fields; ValueError('key: rule') on a broken one."""
-    out: dict[str, Any] = {}
+    out: dict[str, object] = {}
     for k in keys:
         w = form[k]
         try:

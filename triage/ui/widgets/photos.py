@@ -11,13 +11,19 @@ file itself is no longer needed. A refused file is said in one line beside the f
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING
 
 from textual.app import ComposeResult
 
+from triage.model import Hazard, MemberGroup, Photo, Storey
 from triage.standards.vocabulary import words
 from triage.ui.widgets.field import Choice, Field
 from triage.ui.widgets.pane import ItemPane, values_of
+
+if TYPE_CHECKING:
+    from triage.ui.widgets.pane import FormField
+
+Owner = Storey | MemberGroup | Hazard  # what a photo can be of
 
 
 @dataclass(frozen=True)
@@ -27,10 +33,10 @@ class Entry:
     owner: str       # in words, e.g. 'member group 2: column C3'
     list_path: str   # e.g. 'storeys[1].members[1].photos'
     index: int
-    photo: Any
+    photo: Photo
 
 
-class PhotosPane(ItemPane):
+class PhotosPane(ItemPane[Photo]):
     """Every photo of the storey in view; a new one attached to the storey, a group or a hazard."""
 
     first_key = "path"
@@ -48,13 +54,13 @@ class PhotosPane(ItemPane):
         """What a new photo can be of: the storey, its member groups, its hazards."""
         return [(owner, key) for key, owner, _ in self._owners()]
 
-    def _owners(self) -> list[tuple[str, str, Any]]:
+    def _owners(self) -> list[tuple[str, str, Owner]]:
         """(target key, owner in words, the item) for the storey in view."""
         scr = self.survey_screen
         st = scr.storey
         if st is None:
             return []
-        out: list[tuple[str, str, Any]] = [("storey", f"storey {st.label}", st)]
+        out: list[tuple[str, str, Owner]] = [("storey", f"storey {st.label}", st)]
         for j, m in enumerate(st.members):
             out.append((f"members[{j}]", f"member group {j + 1}: "
                         f"{words('member_kinds', m.kind)}" + (f" {m.ref}" if m.ref else ""), m))
@@ -80,7 +86,7 @@ class PhotosPane(ItemPane):
         e = self.entries[index]
         return f"{e.list_path}[{e.index}]"
 
-    def items(self) -> list[Any]:
+    def items(self) -> list[Photo]:
         """Every photo of the storey in view, in the order of their owners."""
         self.entries = [Entry(owner, self._list_path(key), n, photo)
                         for key, owner, item in self._owners()
@@ -101,7 +107,7 @@ class PhotosPane(ItemPane):
                 "one, pick what it shows, type the path of a JPEG or PNG on this laptop and "
                 "press Enter: the image is copied into the database.")
 
-    def row(self, index: int, item: Any) -> tuple[str, ...]:
+    def row(self, index: int, item: Photo) -> tuple[str, ...]:
         """#, of what, file, caption, kept in the database or missing."""
         owner = self.entries[index].owner if index < len(self.entries) else ""
         return (str(index + 1), owner, item.path, item.caption,
@@ -134,25 +140,25 @@ class PhotosPane(ItemPane):
         super().set_paths()
         self.form["path"].path = None
 
-    def fill(self, item: Any | None) -> None:
+    def fill(self, item: Photo | None) -> None:
         """A photo's values, or a new one."""
         for k in ("path", "caption"):
             self.form[k].set_value(None if item is None else getattr(item, k))
         editing = self.editing is not None
         self.of.select.disabled = editing
-        self.form["path"].input.disabled = editing
+        self.field("path").input.disabled = editing
         if editing and self.editing is not None and self.editing < len(self.entries):
             self.of.show_note(self.entries[self.editing].owner)
         else:
             self.of.show_note("")
 
-    def form_changed(self, widget: Any) -> None:
+    def form_changed(self, widget: FormField) -> None:
         """Another owner picked for the new photo."""
         if widget is self.of:
             self.target = str(self.of.value() or "storey")
             self.of.saved_value = self.target
 
-    def build_item(self) -> dict[str, Any]:
+    def build_item(self) -> dict[str, object]:
         """The file and caption from the form."""
         data = values_of(self.form, ["path", "caption"])
         if "path" not in data:
@@ -170,8 +176,8 @@ class PhotosPane(ItemPane):
             self.show_error(str(err))
             return
         try:
-            self.survey_screen.attach_photo(self.list_path(), data["path"],
-                                            data.get("caption", ""))
+            self.survey_screen.attach_photo(self.list_path(), str(data["path"]),
+                                            str(data.get("caption", "")))
         except Refused as err:
             self.form["path"].show_refused(str(err))
             return

@@ -9,8 +9,9 @@ past it; `I`, `L`, `C` mark the IO, LS and CP figures; a bar past the end ends i
 
 from __future__ import annotations
 
-from typing import Any
+from typing import Literal
 
+from triage.assess import Assessment
 from triage.assess.drift import pct
 
 BANDS = (0.0, 0.25, 0.5, 0.75, 1.0)  # where 0, IO, LS, CP and 1.25 x CP sit on a track
@@ -47,7 +48,10 @@ def _track(value: float | None, io: float, ls: float, cp: float, width: int) -> 
     return "".join(cells)
 
 
-def drift_profile(assessment: Any, width: int = 72) -> list[str]:
+DIRS: tuple[Literal["x", "y"], ...] = ("x", "y")
+
+
+def drift_profile(assessment: Assessment, width: int = 72) -> list[str]:
     """Lines of the profile, top storey first, for an `Assessment`."""
     figs = assessment.drift_figures
     label_w = max([len(s.label) for s in assessment.storeys] + [6])
@@ -63,7 +67,7 @@ def drift_profile(assessment: Any, width: int = 72) -> list[str]:
     lines = [head.rstrip()]
     for s in reversed(assessment.storeys):
         row = f"{s.label:<{label_w}}  "
-        for d in ("x", "y"):
+        for d in DIRS:
             f = figs[d]
             v = s.drift_ratio.get(d)
             val = "     —" if v is None else f"{pct(v):>6}"

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING
 
 from pydantic import ValidationError
 from textual.app import ComposeResult
@@ -13,6 +13,9 @@ from triage.model import Reading, error_lines
 from triage.ui.data import rule_of
 from triage.ui.widgets.field import Choice, Field, set_text, show_text
 from triage.ui.widgets.pane import ItemPane, values_of
+
+if TYPE_CHECKING:
+    from triage.ui.widgets.pane import FormField
 from triage.ui.widgets.verdict import storey_drift_text
 
 OFFSET_KEYS = ["dir", "offset_mm", "where", "gauge_mm", "sd_mm", "baseline_mm",
@@ -29,7 +32,7 @@ def reading_text(r: Reading) -> str:
     return f"{show_text(r.offset_mm)} / {show_text(r.gauge_mm)} mm"
 
 
-class ReadingsPane(ItemPane):
+class ReadingsPane(ItemPane[Reading]):
     """The readings of the storey in view."""
 
     DEFAULT_CSS = """
@@ -40,7 +43,7 @@ class ReadingsPane(ItemPane):
 
     def focus_first(self) -> None:
         """The cursor in the offset, or the tilt for a tilt reading."""
-        (self.form["tilt_deg"] if self._tilt() else self.form["offset_mm"]).focus_input()
+        self.field("tilt_deg" if self._tilt() else "offset_mm").focus_input()
     noun = "reading"
     columns = (("#", 3), ("dir", 3), ("offset / gauge", 16), ("sd", 7), ("where", 15),
                ("drift", 7))
@@ -49,7 +52,7 @@ class ReadingsPane(ItemPane):
         """E.g. storeys[1].readings."""
         return f"storeys[{self.survey_screen.storey_index}].readings"
 
-    def items(self) -> list[Any]:
+    def items(self) -> list[Reading]:
         """The storey's readings."""
         st = self.survey_screen.storey
         return list(st.readings) if st is not None else []
@@ -64,7 +67,7 @@ class ReadingsPane(ItemPane):
         drift = storey_drift_text(a, st.label) if a is not None else "drift: working it out"
         return f"Readings, storey {st.label} · {drift}"
 
-    def row(self, index: int, item: Any) -> tuple[str, ...]:
+    def row(self, index: int, item: Reading) -> tuple[str, ...]:
         """#, dir, value, sd, where, drift."""
         sd = item.sd_deg if item.tilt_deg is not None else item.sd_mm
         unit = "°" if item.tilt_deg is not None else ""
@@ -119,9 +122,9 @@ class ReadingsPane(ItemPane):
             self.form[k].display = tilt
         self.by.select.disabled = self.editing is not None
 
-    def fill(self, item: Any | None) -> None:
+    def fill(self, item: Reading | None) -> None:
         """A reading's values, or a new one with the last gauge remembered."""
-        app: Any = self.app
+        app = self.app
         if item is None:
             keep_dir = self.form["dir"].value() or "x"
             self.form["dir"].set_value(keep_dir)
@@ -129,7 +132,8 @@ class ReadingsPane(ItemPane):
                       "baseline_deg", "baseline_sd_deg"):
                 self.form[k].set_value(None)
             gauge = app.data.setting("last_gauge_mm")
-            self.form["gauge_mm"].set_value(float(gauge) if gauge else None)
+            self.form["gauge_mm"].set_value(
+                float(gauge) if isinstance(gauge, (int, float, str)) and gauge else None)
             self.form["sd_mm"].set_value(app.data.setting("last_sd_mm"))
             self.form["sd_deg"].set_value(app.data.setting("last_sd_deg"))
         else:
@@ -141,10 +145,10 @@ class ReadingsPane(ItemPane):
 
     def toggle_direction(self) -> None:
         """The direction from x to y and back, as a pick (saved at once when editing)."""
-        d = self.form["dir"]
+        d = self.choice("dir")
         d.select.value = "y" if d.value() == "x" else "x"
 
-    def form_changed(self, widget: Any) -> None:
+    def form_changed(self, widget: FormField) -> None:
         """Offset or tilt picked."""
         self._show_kind()
         self.preview()
@@ -173,7 +177,7 @@ class ReadingsPane(ItemPane):
             return
         set_text(out, fixed=True, content=f"drift ratio {pct(r.drift_ratio())} ({r.dir})")
 
-    def build_item(self) -> dict[str, Any]:
+    def build_item(self) -> dict[str, object]:
         """The reading from the form."""
         data = values_of(self.form, TILT_KEYS if self._tilt() else OFFSET_KEYS)
         if self._tilt():
@@ -187,7 +191,7 @@ class ReadingsPane(ItemPane):
 
     def after_add(self) -> None:
         """Keep direction, gauge and uncertainty for the next reading; remember them."""
-        app: Any = self.app
+        app = self.app
         for k, setting in (("gauge_mm", "last_gauge_mm"), ("sd_mm", "last_sd_mm"),
                            ("sd_deg", "last_sd_deg")):
             try:

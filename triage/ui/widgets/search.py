@@ -15,9 +15,9 @@ words ('spalled' finds 'cover spalled'). Space and the other keys keep their own
 from __future__ import annotations
 
 import time
-from collections.abc import Callable
-from typing import Any
+from collections.abc import Callable, Iterable
 
+from rich.console import RenderableType
 from textual import events
 from textual.app import ComposeResult
 from textual.widgets import Select
@@ -92,15 +92,17 @@ class PickOverlay(SelectOverlay):
         select.pick_at(i)
 
 
-class PickSelect(Select[Any]):
+class PickSelect(Select[object]):
     """A pick list that takes a typed letter while closed: the matching choice is picked."""
 
-    def __init__(self, *args: Any, **kwargs: Any) -> None:
-        super().__init__(*args, **kwargs)
+    def __init__(self, options: Iterable[tuple[RenderableType, object]], *, prompt: str,
+                 allow_blank: bool, value: object, compact: bool) -> None:
+        super().__init__(options, prompt=prompt, allow_blank=allow_blank, value=value,
+                         compact=compact)
         self.searcher = Searcher()
         # called with the value picked by a typed letter, at once (the Changed message that
         # also follows comes later, after keys typed ahead)
-        self.on_pick: Callable[[Any], None] | None = None
+        self.on_pick: Callable[[object], None] | None = None
 
     def compose(self) -> ComposeResult:
         """Textual's parts, with the open list that picks at once."""

@@ -2,19 +2,17 @@
 
 from __future__ import annotations
 
-from typing import Any
-
 from textual.app import ComposeResult
-from textual.containers import VerticalScroll
 from textual.widgets import Static
 
 from triage.ui.widgets.field import Choice, Field, Tick, set_text
+from triage.ui.widgets.pane import FormPane
 
 ACCESS = [("full: all of it entered", "full"), ("partial: part of it", "partial"),
           ("none: seen from outside", "none")]
 
 
-class StoreyPane(VerticalScroll):
+class StoreyPane(FormPane):
     """The fields of the storey in view; each saves as accepted."""
 
     can_focus = False
@@ -52,7 +50,7 @@ class StoreyPane(VerticalScroll):
 
     def load(self, refill: bool = True) -> None:
         """Show the storey in view."""
-        scr: Any = self.screen
+        scr = self.survey_screen
         st = scr.storey
         i = scr.storey_index
         if st is None:

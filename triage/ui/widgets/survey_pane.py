@@ -6,10 +6,10 @@ field saves as accepted, as the storey's do.
 
 from __future__ import annotations
 
-from typing import Any
+from datetime import tzinfo
+from typing import TypedDict
 
 from textual.app import ComposeResult
-from textual.containers import VerticalScroll
 from textual.widgets import Static
 
 from triage.ui.widgets.field import (
@@ -21,9 +21,19 @@ from triage.ui.widgets.field import (
     team_text,
     when_text,
 )
+from triage.ui.widgets.pane import FormPane
+
+
+class Options(TypedDict, total=False):
+    """A text field's options (see `Field`)."""
+
+    required: bool
+    width: int
+    kind: str
+
 
 # (id, path, label, options): the fields in the order an inspector fills them in
-Spec = tuple[tuple[str, str, str, dict[str, Any]], ...]
+Spec = tuple[tuple[str, str, str, Options], ...]
 TEXT: Spec = (("v-name", "building.name", "name", {"required": True, "width": 40}),
               ("v-address", "building.address", "address", {"required": True, "width": 40}),
               ("v-use", "building.use", "use", {"width": 24}),
@@ -33,13 +43,13 @@ INSPECTION: Spec = (("v-event", "inspection.event", "event", {"width": 40}),
                     ("v-not", "inspection.not_inspected", "not inspected", {"width": 40}))
 
 
-def _get(obj: Any, path: str) -> Any:
+def _get(obj: object, path: str) -> object:
     for part in path.split("."):
         obj = getattr(obj, part, None) if obj is not None else None
     return obj
 
 
-class SurveyPane(VerticalScroll):
+class SurveyPane(FormPane):
     """The building and inspection fields of the survey in view."""
 
     can_focus = False
@@ -55,7 +65,7 @@ class SurveyPane(VerticalScroll):
         from triage.standards.vocabulary import words
 
         systems = [(f"{words('systems', k)}", k) for k in standards.load().systems]
-        self.fields: dict[str, Any] = {}
+        self.fields: dict[str, Field | Choice] = {}
         yield Static("The building and the inspection", classes="pane-head")
         for fid, path, label, kw in TEXT:
             self.fields[path] = Field(label, path, id=fid, **kw)
@@ -88,20 +98,22 @@ class SurveyPane(VerticalScroll):
         self.note = Static("", classes="pane-note")
         yield self.note
 
-    def _tz(self) -> Any:
-        scr: Any = self.screen
+    def _tz(self) -> tzinfo | None:
+        scr = self.survey_screen
         at = scr.survey.inspection.at
         return at.tzinfo
 
     def focus_first(self) -> None:
         """Cursor in the building's name."""
-        self.fields["building.name"].focus_input()
+        name = self.fields["building.name"]
+        if isinstance(name, Field):
+            name.focus_input()
 
     def load(self, refill: bool = True) -> None:
         """Show the survey's values (kept as typed unless `refill`)."""
         if not refill:
             return
-        scr: Any = self.screen
+        scr = self.survey_screen
         survey = scr.survey
         for path, f in self.fields.items():
             f.set_value(_get(survey, path))

@@ -8,8 +8,6 @@ every theme and without colour.
 
 from __future__ import annotations
 
-from typing import Any
-
 from rich.segment import Segment
 from textual.strip import Strip
 from textual.widgets import Checkbox, SelectionList
@@ -28,8 +26,8 @@ def mark(ticked: bool) -> str:
 class TickBox(Checkbox):
     """A check box showing `TICKED` when ticked and an empty box when not."""
 
-    def __init__(self, *args: Any, **kwargs: Any) -> None:
-        super().__init__(*args, **kwargs)
+    def __init__(self, label: str, value: bool = False, *, compact: bool = False) -> None:
+        super().__init__(label, value, compact=compact)
         self.BUTTON_INNER = mark(self.value)
 
     def watch_value(self) -> None:

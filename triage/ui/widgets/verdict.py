@@ -6,22 +6,21 @@ tier's words and our mark; the only colour is the app's accent, stronger for the
 
 from __future__ import annotations
 
-from typing import Any
-
 from rich.text import Text
 from textual.widgets import Static
 
-from triage.assess import tier_words
+from triage.assess import Assessment, tier_words
 from triage.assess.drift import pct
 from triage.assess.result import probability_text
 from triage.assess.text import borderline_words, plumbness_words, probability_label
+from triage.model import Survey
 from triage.safetext import visible, visible_line
 from triage.standards.vocabulary import plain_text, words
 from triage.ui.messages import CAUTION_FULL, CAUTION_SHORT
 from triage.ui.widgets.profile import drift_profile
 
 
-def governing_text(a: Any) -> str:
+def governing_text(a: Assessment) -> str:
     """What sets the tier, in a few words."""
     g = a.governing
     if g.basis == "no-data":
@@ -30,7 +29,7 @@ def governing_text(a: Any) -> str:
     return f"{words('basis', g.basis)}, {where}" + (f" {g.dir}" if g.dir else "")
 
 
-def borderline_text(a: Any) -> str:
+def borderline_text(a: Assessment) -> str:
     """'borderline: hold 0.38' (the other tiers' chances), or '' when not borderline."""
     if not a.borderline:
         return ""
@@ -39,7 +38,7 @@ def borderline_text(a: Any) -> str:
     return "borderline: " + ", ".join(others) if others else "borderline"
 
 
-def verdict_summary(a: Any) -> str:
+def verdict_summary(a: Assessment) -> str:
     """One line: tier with mark, level, what governs, provisional, borderline with the chances."""
     parts = [tier_words(a.tier), f"level {a.performance_level or '—'}",
              f"governed by {governing_text(a)}"]
@@ -60,14 +59,14 @@ class VerdictLine(Static):
 
     def __init__(self, id: str | None = None) -> None:
         super().__init__("", id=id)
-        self.assessment: Any = None
+        self.assessment: Assessment | None = None
         self.pending = False
 
     def on_mount(self) -> None:
         """Start with the caution alone."""
         self.show(None)
 
-    def show(self, a: Any, pending: bool = False) -> None:
+    def show(self, a: Assessment | None, pending: bool = False) -> None:
         """Draw an assessment (None: not yet computed)."""
         self.assessment = a
         self.pending = pending
@@ -91,7 +90,7 @@ class VerdictLine(Static):
         return str(self.render())
 
 
-def _reason_plumbness(a: Any) -> dict[int, list[str]]:
+def _reason_plumbness(a: Assessment) -> dict[int, list[str]]:
     """Plumbness lines by the index of the reason they stand beside (-1: no reason names it).
 
     A plumbness spot stands beside the first reason naming its storey and direction.
@@ -104,7 +103,7 @@ def _reason_plumbness(a: Any) -> dict[int, list[str]]:
     return out
 
 
-def measure_next_text(a: Any, survey: Any = None) -> str:
+def measure_next_text(a: Assessment, survey: Survey | None = None) -> str:
     """The one measurement that could change the tier, or that no reading can."""
     if a.measure_next is not None:
         return plain_text(a.measure_next.text(), survey)
@@ -121,7 +120,7 @@ def measure_next_text(a: Any, survey: Any = None) -> str:
     return head + (f": {plain_text(settled, survey)}" if settled else "")
 
 
-def repairability_lines(a: Any) -> list[str]:
+def repairability_lines(a: Assessment) -> list[str]:
     """The named repairability alternatives, as the report gives them, and their basis."""
     largest = max((v for s in a.storeys for v in (s.drift_ratio.x, s.drift_ratio.y)
                    if v is not None), default=None)
@@ -134,7 +133,12 @@ def repairability_lines(a: Any) -> list[str]:
     return lines
 
 
-def verdict_lines(survey: Any, a: Any, width: int = 76) -> Text:
+def _share(v: float | None) -> str:
+    """A share as a percentage with one decimal, or a dash."""
+    return "—" if v is None else f"{v:.1%}"
+
+
+def verdict_lines(survey: Survey, a: Assessment, width: int = 76) -> Text:
     """The whole verdict as rich text: tier, caution, reasons, probabilities, profile, R.
 
     Every text that comes from the survey (labels, places, notes) is shown through
@@ -180,10 +184,8 @@ def verdict_lines(survey: Any, a: Any, width: int = 76) -> Text:
     t.append("\nResidual capacity R per storey\n", style="bold underline")
     t.append("  storey   R        by x     by y     grade     level\n", style="dim")
     for s in reversed(a.storeys):
-        def r(v: float | None) -> str:
-            return "—" if v is None else f"{v:.1%}"
-        add(f"  {s.label:<8} {r(s.residual_capacity):<8} "
-            f"{r(s.residual_capacity_by_dir.x):<8} {r(s.residual_capacity_by_dir.y):<8} "
+        add(f"  {s.label:<8} {_share(s.residual_capacity):<8} "
+            f"{_share(s.residual_capacity_by_dir.x):<8} {_share(s.residual_capacity_by_dir.y):<8} "
             f"{s.damage_grade or '—':<9} {s.level or '—'}\n")
     t.append("\nRepairability (named alternatives)\n", style="bold underline")
     for line in repairability_lines(a):
@@ -200,7 +202,7 @@ def verdict_lines(survey: Any, a: Any, width: int = 76) -> Text:
     return t
 
 
-def storey_drift_text(a: Any, label: str) -> str:
+def storey_drift_text(a: Assessment, label: str) -> str:
     """A storey's drift ratios and levels in one line."""
     try:
         s = a.storey(label)

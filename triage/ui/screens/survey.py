@@ -16,7 +16,6 @@ from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.widget import Widget
 from textual.widgets import Footer, Input, OptionList, Static, TabbedContent, TabPane
-from textual.widgets.option_list import Option
 from textual.worker import Worker, WorkerState
 
 from triage.assess import Assessment
@@ -24,7 +23,7 @@ from triage.model import Storey
 from triage.ui.choices import next_label
 from triage.ui.data import Refused, rule_of
 from triage.ui.messages import FieldAccepted
-from triage.ui.shown import block, line
+from triage.ui.shown import block
 from triage.ui.typed import TriageScreen
 from triage.ui.verdicts import Verdict
 from triage.ui.widgets.field import Field, set_text
@@ -34,25 +33,13 @@ from triage.ui.widgets.pane import FormPane, ItemPane
 from triage.ui.widgets.photos import PhotosPane
 from triage.ui.widgets.readings import ReadingsPane
 from triage.ui.widgets.storey_pane import StoreyPane
+from triage.ui.widgets.storeys import StoreyList, StoreyTabs
 from triage.ui.widgets.survey_pane import SurveyPane
 from triage.ui.widgets.verdict import VerdictLine, verdict_lines
 
 TABS = ("storey", "readings", "members", "hazards", "photos", "survey")
 
 
-class StoreyTabs(TabbedContent):
-    """The tabs of a storey, shown only by keys, clicks and the focus as it is now.
-
-    A tab pane says, in a message, that a widget in it took the focus; acted on later, after
-    an F-key typed ahead showed another tab, such a message showed the old tab again under
-    the cursor. A pane is shown for it only while the focus is still in it.
-    """
-
-    def _on_tab_pane_focused(self, event: TabPane.Focused) -> None:
-        focused = self.screen.focused
-        if focused is not None and event.tab_pane not in focused.ancestors:
-            event.stop()
-            event.prevent_default()  # TabbedContent's own handler (run after this) is skipped
 WIDE = 150  # columns from which the full verdict sits beside the form
 
 
@@ -117,7 +104,7 @@ class SurveyScreen(TriageScreen[None]):
         yield Static("", id="survey-title", classes="title")
         with Horizontal(id="body"):
             with Vertical(id="storey-column"):
-                yield OptionList(id="storeys")
+                yield StoreyList(id="storeys")
                 yield Static("PgUp ↑\nPgDn ↓", id="storey-keys")
             with StoreyTabs(id="tabs", initial="readings"):
                 with TabPane("storey [dim]f5[/]", id="storey"):
@@ -178,18 +165,7 @@ class SurveyScreen(TriageScreen[None]):
 
     def fill_storeys(self) -> None:
         """The storey list, top storey first (as the building stands)."""
-        ol = self.query_one("#storeys", OptionList)
-        ol.clear_options()
-        n = len(self.survey.storeys)
-        opts = []
-        for i in range(n - 1, -1, -1):
-            st = self.survey.storeys[i]
-            dirs = {r.dir for r in st.readings}
-            mark = "✓" if dirs == {"x", "y"} and st.members else ("·" if st.readings or
-                                                                  st.members else " ")
-            opts.append(Option(line(f"{st.label:<4}{mark}"), id=f"st-{i}"))
-        ol.add_options(opts)
-        ol.highlighted = n - 1 - self.storey_index
+        self.query_one(StoreyList).show(self.survey, self.storey_index)
 
     def load_all(self, keep_forms: bool = False) -> None:
         """Redraw every pane for the storey in view."""
@@ -201,19 +177,9 @@ class SurveyScreen(TriageScreen[None]):
     # --- storeys -------------------------------------------------------------------------
 
     def on_option_list_option_highlighted(self, event: OptionList.OptionHighlighted) -> None:
-        """Another storey picked in the list.
-
-        A highlight message that arrives after the list has moved on (a storey key acted on
-        at once while the message waited in the queue) is stale and is ignored: acting on it
-        would move the view back, and a removal that follows would take the wrong storey.
-        """
-        if event.option_index != event.option_list.highlighted:
-            return
-        oid = event.option.id
-        if oid is None or not oid.startswith("st-"):
-            return
-        i = int(oid[3:])
-        if i != self.storey_index:
+        """Another storey picked in the list (a stale highlight is ignored: `storey_of`)."""
+        i = self.query_one(StoreyList).storey_of(event)
+        if i is not None and i != self.storey_index:
             self.go_storey(i)
 
     def flush_focused(self) -> bool:
@@ -253,10 +219,7 @@ class SurveyScreen(TriageScreen[None]):
             pane.reload(keep_form=not editing)
             if not editing:
                 pane.set_paths()
-        ol = self.query_one("#storeys", OptionList)
-        want = len(self.survey.storeys) - 1 - self.storey_index
-        if ol.highlighted != want:
-            ol.highlighted = want
+        self.query_one(StoreyList).follow(self.survey, self.storey_index)
 
     def action_storey(self, step: int) -> None:
         """Walk up (1) or down (-1) a storey."""

@@ -38,7 +38,7 @@ def seen(monkeypatch: pytest.MonkeyPatch) -> dict[str, Any]:
         got["db"] = app.db_path
         got["demo"] = app.demo_samples
         got["screen"] = type(app.screen).__name__
-        got["surveys"] = sorted(r.building for r in app.data.surveys()) if app.data else None
+        got["surveys"] = sorted(r.building for r in app.data.surveys()) if app.is_open else None
         got["folder_during"] = app.db_path.parent.exists()
         if app.refusal is None:
             app.exit()

@@ -77,3 +77,4 @@ def test_the_systems_line_names_one_system_or_both_directions() -> None:
     assert systems_line([rc]) == "for concrete frame"
     assert systems_line([rc, steel]) == "for concrete frame (x), braced steel frame (y)"
     assert re.fullmatch(r"for [a-z ]+", systems_line([steel]))
+

@@ -119,3 +119,10 @@ def test_the_helvetica_fallback_prints_marks_it_has() -> None:
     assert d.t(f"{TICK} −0.5 mm, 20 °C, ✓ é") == "[ ] -0.5 mm, 20 °C, ? é"
     dejavu, _ = _sheet()
     assert dejavu.t(f"{TICK} −0.5 ✓") == f"{TICK} −0.5 ✓"
+
+
+@pytest.mark.parametrize(("widths", "row"), [(WIDTHS, ["1", ""]), (WIDTHS[:2], None)])
+def test_a_row_or_widths_short_of_the_columns_is_a_mistake_not_a_grid(widths, row) -> None:
+    d, _ = _sheet()
+    with pytest.raises(ValueError, match="zip"):
+        d.table(MARGIN, COLS, widths, [row] if row else [], "grid")

@@ -57,6 +57,7 @@ _RULES_TESTS = ("tests/unit/test_verdict_rules.py", "tests/unit/test_worked_exam
                 "tests/unit/test_capacity_tables.py", "tests/unit/test_wall_doubt.py",
                 "tests/unit/test_rules_pinned_spots.py", "tests/unit/test_rules_pinned_capacity.py",
                 "tests/unit/test_rules_pinned_walls.py", "tests/unit/test_rules_pinned_verdict.py",
+                "tests/unit/test_rules_pinned_members.py",
                 "tests/reference")
 
 GROUPS = [

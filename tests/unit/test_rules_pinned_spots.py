@@ -14,10 +14,13 @@ from scipy.stats import chi2
 
 from tests.helpers import make, reading, storey, tilt
 from triage.assess import assess
+from triage.assess.drift import figures, level_index, pct
+from triage.assess.repair import repairability
 from triage.assess.spots import chi2_quantile, spots_of_survey
 from triage.standards import load
 
-A = load().assumptions
+STD = load()
+A = STD.assumptions
 
 
 def _spots(readings):
@@ -90,3 +93,37 @@ def test_each_defaulted_uncertainty_is_worded_in_full():
 ])
 def test_chi_square_quantile_off_the_agreement_point(p, dof):
     assert chi2_quantile(p, dof) == pytest.approx(chi2.ppf(p, dof), rel=1e-5)
+
+
+# --- drift levels, percentages and repairability at their edges ----------------------------------
+
+@pytest.mark.parametrize(("v", "text"), [
+    (0.0099, "0.99%"), (0.00999, "1.00%"), (0.01, "1.0%"), (0.0125, "1.2%"), (-0.0099, "-0.99%"),
+    (-0.02, "-2.0%"), (0.0, "0.00%")])
+def test_a_drift_ratio_in_percent_two_decimals_under_one_percent(v, text):
+    assert pct(v) == text
+
+
+def test_a_drift_at_a_figure_meets_that_level():
+    f = figures("rc_frame", STD, A)   # IO 0.2% (ours for 'negligible'), LS 1.0%, CP 4.0%
+    assert (f.IO, f.LS, f.CP) == pytest.approx((0.002, 0.01, 0.04))
+    got = [level_index(d, f) for d in (0.0, f.IO, f.IO * 1.0001, f.LS, f.LS * 1.0001, f.CP,
+                                       f.CP * 1.0001)]
+    assert got == [0, 0, 1, 1, 2, 2, 3]
+
+
+@pytest.mark.parametrize(("largest", "over"), [(0.005, 0.0), (0.0050001, 1.0), (0.001, 0.0)])
+def test_the_japanese_threshold_counts_only_drift_over_it(largest, over):
+    # McCormick et al. (2008), 1/200 = 0.5% (tests/reference/test_repairability_fragilities.py):
+    # "over the threshold", so exactly 0.5% is not over it
+    got = {r.key: r.probability for r in repairability(largest, STD)}
+    assert got["repair_threshold_jp"] == over
+
+
+def test_the_fragilities_at_their_medians_and_at_zero():
+    # FEMA P-58 irreparable (median 1.0%) and Ramirez & Miranda demolition (median 1.5%): one
+    # half at the median; no drift, no chance (the logarithm is not taken of 0)
+    assert {r.key: r.probability for r in repairability(0.01, STD)}["irreparable"] == 0.5
+    assert {r.key: r.probability for r in repairability(0.015, STD)}["demolition"] == 0.5
+    assert all(r.probability == 0.0 for r in repairability(0.0, STD))
+    assert all(r.probability is None for r in repairability(None, STD))

@@ -48,6 +48,7 @@ def test_a_level_is_read_back_and_sets_its_tier(word, level, tier):
 # cp: drift at CP; R severe; a beam's class V floor listed after them.
 # spot, crack, panels: what to measure next: a spot, a JBDPA class bound, a FEMA 306 bound.
 # plumb: a spot without baseline within the plumbness band sets the tier.
+# masonry: both directions masonry: both named, in order.
 # falls: a collapse hazard with no storey governs; a second hazard without height.
 SURVEYS = {
         "frame": parse_survey(two_storey_frame()),
@@ -82,6 +83,8 @@ SURVEYS = {
             {"kind": "infill", "count": 10, "crack_mm": 6.2, "crack_sd_mm": 0.2,
              "mode": "corner_crushing"}])], sx="urm_infill", sy="urm_infill"),
         "plumb": make([storey("1", [reading("x", 5.0, where="stair"), reading("y", 1.0)])]),
+        "masonry": make([storey("1", TWO, [{"kind": "wall", "count": 8}])], sx="urm_wall",
+                        sy="urm_infill"),
         "falls": make([storey("1", TWO)], hazards=[
             {"kind": "collapse", "where": "east wing"},
             {"kind": "falling_hazard", "storey": "1"}]),
@@ -363,6 +366,27 @@ WANT = {
         measure_next=(
             'storey 1, x (stair): 0.25% is 1.0 sd over the IO value 0.20%; across it the tier '
             'would change'
+        ),
+    ),
+    'masonry': Said(
+        verdict=('occupy', 'IO', 'drift', '1', 'y', False, False),
+        reasons=(
+            'no permanent drift distinguishable from construction tolerance: storey 1, y: '
+            "residual drift 0.01% is within 0.10% (our value for 'negligible', IO) for "
+            'unreinforced masonry infill walls (FEMA 356 Table C1-3, from memory); for '
+            'unreinforced masonry infill walls and unreinforced masonry (noninfill) walls drift '
+            'alone cannot establish IO: the cracking and out-of-plane state of the masonry '
+            'decide',
+        ),
+        notes=(
+            'tier probabilities: each spot taken as a separate place (independent readings), so '
+            'more spots can lower P(occupy)',
+        ),
+        defaulted=(),
+        settled_by=None,
+        measure_next=(
+            'storey 1, y: 0.01% is 1.8 sd under the IO value 0.10%; across it the tier would '
+            'change'
         ),
     ),
     'falls': Said(

@@ -424,3 +424,14 @@ def _said(name: str) -> Said:
 @pytest.mark.parametrize("part", Said._fields)
 def test_what_the_assessment_says_word_for_word(name, part):
     assert getattr(_said(name), part) == getattr(WANT[name], part)
+
+
+def test_nothing_to_measure_and_nothing_logged_rests_on_nothing_logged():
+    # A storey below grade and one not entered: no reading can be asked for (measure next skips
+    # both), so what settles hold is that nothing is logged yet.
+    a = assess(make([storey("B1", [], [], below_grade=True), storey("1", [], [], access="none")]))
+    assert (a.tier, a.governing.basis, a.measure_next) == ("hold", "no-data", None)
+    assert a.settled_by == ("no spot or crack width within 3 sd of a threshold could change the "
+                            "tier; it rests on: nothing logged yet")
+    assert a.notes == ("storey 1: not entered; the survey is provisional",
+                       "repairability: no residual drift measured, so no probability is given")

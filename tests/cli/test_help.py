@@ -100,3 +100,22 @@ def test_the_command_page_names_every_command_and_option():
         for opt in action.option_strings:
             if opt not in ("-h", "--help"):
                 assert re.search(rf"[`\s(]{re.escape(opt)}\b", page), (path, opt)
+
+
+FORMATS = [(path, a) for path, a in OPTIONS if "--format" in a.option_strings]
+
+
+@pytest.mark.parametrize("path,action", FORMATS, ids=[" ".join(p) for p, _ in FORMATS])
+def test_every_format_option_is_worded_the_same_way(path, action):
+    # text first and the default, then the JSON object by its format name and where it goes
+    assert action.choices[:2] == ("text", "json")
+    assert re.match(r"text: [^;]+ \(the default\); json: one triage-[a-z]+/\d object on "
+                    r"standard output \(docs/formats\.md\)", action.help), action.help
+    for other in action.choices[2:]:
+        assert f"; {other}: " in action.help
+
+
+def test_every_command_with_json_output_has_its_format_option():
+    assert {" ".join(p) for p, _ in FORMATS} == {
+        "assess", "import", "list", "backup", "key list", "verify", "compare", "merge",
+        "summary"}

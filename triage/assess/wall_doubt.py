@@ -32,9 +32,10 @@ from triage.standards.capacity_tables import ModeRow
 from . import damage as dmg
 from . import walls
 from .capacity import DIRS, StoreyCapacity
+from .damage import EPS
 from .levels import Level
 from .stats import norm_cdf
-from .uncertainty import ENUMERATE_LIMIT, EPS, SAMPLES, MemberModel
+from .uncertainty import ENUMERATE_LIMIT, SAMPLES, MemberModel
 
 
 @dataclass(frozen=True)
@@ -196,7 +197,8 @@ def wall_doubt_cdf(model: MemberModel, doubt: WallDoubt,
         for j, (g, cls, _) in enumerate(choices):
             k[:, g] = cls[idx[:, j]]
             pick[g] = idx[:, j]
-        return np.maximum(others.level(k), doubt.fema_level(pick, len(idx)))
+        out: np.ndarray = np.maximum(others.level(k), doubt.fema_level(pick, len(idx)))
+        return out
 
     sizes = [len(p) for _, _, p in choices]
     ends = levels(np.array([[0] * len(sizes), [s - 1 for s in sizes]]))

@@ -5,10 +5,10 @@ from __future__ import annotations
 import argparse
 import sys
 
-from .common import add_command, read_survey_file
+from .common import add_command, add_format, read_survey_file
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg,unused-ignore]
+def add_parser(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
     """Register `assess` and `schema`."""
     p = add_command(sub, "assess", "assess a survey file", description=(
         "Assess one survey file and print the assessment: the indicative tier and level, "
@@ -17,9 +17,7 @@ def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-ar
         "exit status 1."))
     p.add_argument("file", metavar="FILE", help="a triage-survey/1 or /2 JSON file; - reads "
                    "it from standard input")
-    p.add_argument("--format", choices=("text", "json"), default="text",
-                   help="text for people (the default, with the caution first) or json: the "
-                   "triage-assessment/1 object (docs/formats.md)")
+    add_format(p, "triage-assessment/1", "the assessment for people, the caution first")
     p.set_defaults(func=run)
     s = add_command(sub, "schema", "print the JSON Schema of triage-survey/2", description=(
         "Print the JSON Schema (draft 2020-12) of the survey format, generated from the "

@@ -16,7 +16,7 @@ from .errors import UserError
 from .streams import status
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:
+def add_parser(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
     """Register `centre` (init, reassess) and `sync`."""
     p = add_command(sub, "centre", "the coordination centre on PostgreSQL: schema, roles, "
                     "reassessment", description=(

@@ -20,8 +20,8 @@ if TYPE_CHECKING:
     from triage.store.reader import SurveyReader
 
 
-def add_command(sub: argparse._SubParsersAction, name: str, summary: str,  # type: ignore[type-arg,unused-ignore]
-                description: str | None = None, epilog: str | None = None,
+def add_command(sub: argparse._SubParsersAction[argparse.ArgumentParser], name: str,
+                summary: str, description: str | None = None, epilog: str | None = None,
                 ) -> argparse.ArgumentParser:
     """A command's parser.
 
@@ -34,7 +34,19 @@ def add_command(sub: argparse._SubParsersAction, name: str, summary: str,  # typ
     return parser
 
 
-FORMAT_HELP = "text for people (the default) or json: one object with the same facts"
+def add_format(parser: argparse.ArgumentParser, name: str, text: str, *, also: str = "",
+               more: tuple[tuple[str, str], ...] = (), default: str | None = "text") -> None:
+    """A command's `--format`: text for people (the default) or json, one `name` object.
+
+    Every command words it the same way: "text: TEXT (the default); json: one NAME object on
+    standard output (docs/formats.md)ALSO", then "; KEY: WORDS" for each other format in `more`.
+    `default` None lets the command tell an unset option from text (`compare` with `-o`).
+    """
+    said = [f"text: {text} (the default)",
+            f"json: one {name} object on standard output (docs/formats.md){also}",
+            *(f"{key}: {words}" for key, words in more)]
+    parser.add_argument("--format", choices=("text", "json", *(k for k, _ in more)),
+                        default=default, help="; ".join(said))
 
 
 def survey_refused(name: str, err: Exception, part: str = "") -> UserError:

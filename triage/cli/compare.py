@@ -13,7 +13,7 @@ import sys
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from .common import add_command, open_reader, read_survey, resolve_id
+from .common import add_command, add_format, open_reader, read_survey, resolve_id
 from .errors import UserError
 from .streams import binary_stdout, is_std, shown, status, write_bytes
 
@@ -24,7 +24,7 @@ if TYPE_CHECKING:
     from triage.store.reader import SurveyReader
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:
+def add_parser(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
     """Register `compare`."""
     p = add_command(sub, "compare", "what changed between two surveys of one building",
                     description=(
@@ -35,9 +35,8 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
                    "an id in the database, or - for standard input")
     p.add_argument("new", metavar="NEW", help="the later survey: a file (JSON or report PDF), "
                    "an id in the database, or - for standard input (only one of the two)")
-    p.add_argument("--format", choices=("text", "json"), default=None,
-                   help="text for people (the default) or json: the triage-comparison/2 "
-                   "object (docs/formats.md); not with -o")
+    add_format(p, "triage-comparison/2", "what changed, in sentences", also="; not with -o",
+               default=None)
     p.add_argument("-o", "--output", metavar="FILE.pdf|-",
                    help="write the comparison as a PDF (an unsigned working document); - "
                    "writes it to standard output (not to a terminal)")

@@ -10,7 +10,7 @@ from .errors import UserError
 from .streams import is_std, output_path, shown, status
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:
+def add_parser(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
     """Register the commands of this module."""
     p = add_command(
         sub, "form", "a blank paper form for when the laptop is down",

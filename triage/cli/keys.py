@@ -14,14 +14,14 @@ from typing import Any
 
 from triage.errors import TriageError
 
-from .common import add_command
+from .common import add_command, add_format
 from .errors import UserError
 from .streams import input_path, refuse_std, status, write_json
 
 PASSPHRASE_ENV = "TRIAGE_KEY_PASSPHRASE"
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg,unused-ignore]
+def add_parser(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
     """Register `key` and its subcommands `new`, `trust` and `list`."""
     p = add_command(sub, "key", "inspectors' signing keys and the keys this laptop trusts",
                     description=("Make a signing key, trust another inspector's public key, "
@@ -53,9 +53,7 @@ def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-ar
     t.set_defaults(func=run_key_trust)
     ls = add_command(ks, "list", "the public keys this laptop trusts", description=(
         "The keys this laptop trusts, one a line: fingerprint, name and id."))
-    ls.add_argument("--format", choices=("text", "json"), default="text",
-                    help="text: one key a line (the default); json: one triage-keys/1 object "
-                    "(docs/formats.md)")
+    add_format(ls, "triage-keys/1", "one key a line")
     ls.set_defaults(func=run_key_list)
 
 
@@ -109,7 +107,8 @@ def run_key_trust(args: argparse.Namespace) -> int:
 
 def run_key_list(args: argparse.Namespace) -> int:
     """Print the trusted keys, one a line."""
-    from triage.report.keys import home, trusted_keys
+    from triage.paths import data_home as home
+    from triage.report.keys import trusted_keys
     from triage.safetext import visible_line
 
     try:

@@ -7,12 +7,12 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from .common import add_command
+from .common import add_command, add_format
 from .errors import UserError
 from .streams import refuse_std, status, write_json
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg,unused-ignore]
+def add_parser(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
     """Register `merge`."""
     p = add_command(sub, "merge", "gather several inspectors' databases into one", description=(
         "Gather each source database into the target, one transaction a source: surveys "
@@ -24,10 +24,8 @@ def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-ar
                    "changed); a database is a file, so - (standard input) is refused")
     p.add_argument("--into", required=True, metavar="DB", help="the database to gather into "
                    "(made if it does not exist)")
-    p.add_argument("--format", choices=("text", "json"), default="text",
-                   help="text: a status line on standard error as each source commits (the "
-                   "default); json: one triage-merge/1 object on standard output at the end "
-                   "(docs/formats.md)")
+    add_format(p, "triage-merge/1", "a status line on standard error as each source commits",
+               also=", at the end")
     p.set_defaults(func=run)
 
 

@@ -33,7 +33,7 @@ if TYPE_CHECKING:
     from triage.store.reader import SurveyReader
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg,unused-ignore]
+def add_parser(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
     """Register `report`."""
     r = add_command(sub, "report", "the report PDF, signed when a key is given", description=(
         "Write the report PDF of a survey file or of a survey in the database: the indicative "

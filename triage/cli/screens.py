@@ -12,7 +12,7 @@ from .common import add_command
 from .errors import UserError
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:
+def add_parser(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
     """Register the commands of this module."""
     p = add_command(sub, "demo", "open the screens on a scratch database loaded with the "
                     "demo surveys (an invented town and event)", description=(

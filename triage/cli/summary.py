@@ -9,14 +9,14 @@ import json
 import sys
 from typing import TYPE_CHECKING, Any
 
-from .common import add_command, open_reader
+from .common import add_command, add_format, open_reader
 
 if TYPE_CHECKING:
     from triage.store.area import AreaLines, AreaTally, BuildingRow
     from triage.store.reader import SurveyReader
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:
+def add_parser(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
     """Register `summary`."""
     p = add_command(sub, "summary", "one row per building: latest tier, level, where",
                     description=(
@@ -24,11 +24,9 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
                         "time of inspection): the indicative tier and level, the governing "
                         "storey, whether provisional or in conflict; counts per tier at the "
                         "end."))
-    p.add_argument("--format", choices=("text", "json", "csv", "geojson"), default="text",
-                   help="text: a table for people (the default); json: one triage-summary/1 "
-                   "object (docs/formats.md); csv: one row per building, safe to open in a "
-                   "spreadsheet; geojson: an RFC 7946 FeatureCollection of the located "
-                   "buildings")
+    add_format(p, "triage-summary/1", "a table for people", more=(
+        ("csv", "one row per building, safe to open in a spreadsheet"),
+        ("geojson", "an RFC 7946 FeatureCollection of the located buildings")))
     p.set_defaults(func=run)
 
 

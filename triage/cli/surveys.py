@@ -13,6 +13,7 @@ from triage.errors import TriageError
 from .common import (
     CODE_LEN,
     add_command,
+    add_format,
     open_reader,
     open_store,
     read_survey,
@@ -28,7 +29,7 @@ if TYPE_CHECKING:
     from triage.store.rows import SurveyRow
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg,unused-ignore]
+def add_parser(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
     """Register `import`, `export`, `list` and `backup`."""
     p = add_command(sub, "import", "survey files (JSON, or a report PDF carrying its survey) "
                     "into the database", description=(
@@ -41,9 +42,7 @@ def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-ar
     p.add_argument("files", nargs="+", metavar="FILE", help="triage-survey JSON or report PDF; "
                    "- reads one from standard input (photo paths are refused there: standard "
                    "input has no folder)")
-    p.add_argument("--format", choices=("text", "json"), default="text",
-                   help="text: one status line per file on standard error (the default); "
-                   "json: one triage-import/1 object on standard output (docs/formats.md)")
+    add_format(p, "triage-import/1", "one status line per file on standard error")
     p.set_defaults(func=run_import)
     p = add_command(sub, "export", "a survey out of the database as triage-survey JSON",
                     description=("Write one stored survey as JSON that imports back to the "
@@ -58,9 +57,7 @@ def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-ar
         "One row per survey: its code (the start of its id that export, report and compare "
         "take), building, time of inspection, indicative tier, whether it is provisional, "
         "edited since its last report, or in conflict with another copy."))
-    p.add_argument("--format", choices=("text", "json"), default="text",
-                   help="text: a table for people (the default); json: one triage-list/1 "
-                   "object with a row per survey (docs/formats.md)")
+    add_format(p, "triage-list/1", "a table for people", also=", a row per survey")
     p.add_argument("--hidden", action="store_true", help="include hidden surveys")
     p.set_defaults(func=run_list)
     p = add_command(sub, "backup", "a consistent copy of the database, safe while it is in use",
@@ -71,10 +68,7 @@ def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-ar
     p.add_argument("-o", "--output", required=True, metavar="FILE|-",
                    help="the new file to write (must not exist); - writes the copy to "
                    "standard output (not to a terminal)")
-    p.add_argument("--format", choices=("text", "json"), default="text",
-                   help="text: a status line on standard error (the default); json: one "
-                   "triage-backup/1 object on standard output (docs/formats.md; not with "
-                   "-o -)")
+    add_format(p, "triage-backup/1", "a status line on standard error", also="; not with -o -")
     p.set_defaults(func=run_backup)
 
 

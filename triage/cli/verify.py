@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 import sys
 
-from .common import add_command
+from .common import add_command, add_format
 from .errors import UserError
 from .streams import input_path, is_std, write_json
 
@@ -39,7 +39,7 @@ def _epilog() -> str:
     return "\n".join(lines)
 
 
-def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg,unused-ignore]
+def add_parser(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
     """Register `verify`."""
     v = add_command(sub, "verify", "check a report's signature, signer and content",
                     description=(
@@ -56,10 +56,8 @@ def add_parser(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-ar
     v.add_argument("--expect", metavar="FINGERPRINT",
                    help="accept only this signer's key, 32 hex digits as 'triage key list' "
                    "shows them (else any key trusted on this laptop)")
-    v.add_argument("--format", choices=("text", "json"), default="text",
-                   help="text: the verdict line (the default); json: one triage-verify/1 "
-                   "object on standard output whatever the verdict (docs/formats.md); the "
-                   "exit status is the same")
+    add_format(v, "triage-verify/1", "the verdict line",
+               also=", whatever the verdict; the exit status is the same")
     v.set_defaults(func=run)
 
 

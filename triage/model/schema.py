@@ -29,7 +29,7 @@ def _json_schema_bounds(node: Any) -> Any:
 
 def json_schema() -> dict[str, Any]:
     """The JSON Schema of `triage-survey/2` (which `/1` files also meet), from these models."""
-    schema = _json_schema_bounds(Survey.model_json_schema())
+    schema: dict[str, Any] = _json_schema_bounds(Survey.model_json_schema())
     schema["$schema"] = "https://json-schema.org/draft/2020-12/schema"
     schema["$id"] = f"urn:triage:{FORMAT}"
     schema["title"] = FORMAT

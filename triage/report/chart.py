@@ -32,7 +32,7 @@ def _nice_top(v: float) -> tuple[float, int]:
     return 10 * mag, 5
 
 
-class DriftChart(Flowable):
+class DriftChart(Flowable):  # type: ignore[misc]  # reportlab ships no types
     """Storey against residual drift, with the level figures of the systems."""
 
     def __init__(self, points: list[ChartPoint], figures: list[ChartFigure], width: float,

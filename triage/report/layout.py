@@ -259,7 +259,7 @@ def page_canvas(caution: str, state: str, footer: str,
     """
     regular, bold = register()
 
-    class PageCanvas(Canvas):
+    class PageCanvas(Canvas):  # type: ignore[misc]  # reportlab ships no types
         """Holds pages back until the end, to print 'page n of N' and the band on each."""
 
         def __init__(self, *args: Any, **kw: Any) -> None:

@@ -84,8 +84,8 @@ def sign(data: bytes, key: SigningKey, at: datetime) -> bytes:
     private = akeys.PrivateKeyInfo.load(key.private.private_bytes(
         serialization.Encoding.DER, serialization.PrivateFormat.PKCS8,
         serialization.NoEncryption()))
-    signer = signers.SimpleSigner(signing_cert=cert, signing_key=private,
-                                  cert_registry=SimpleCertificateStore())
+    store = SimpleCertificateStore()  # type: ignore[no-untyped-call]  # unannotated __init__
+    signer = signers.SimpleSigner(signing_cert=cert, signing_key=private, cert_registry=store)
     meta = signers.PdfSignatureMetadata(
         field_name=FIELD_NAME, subfilter=fields.SigSeedSubFilter.PADES, md_algorithm="sha256",
         name=key.name, reason=REASON)

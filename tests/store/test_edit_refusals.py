@@ -83,3 +83,30 @@ def test_an_absent_optional_block_is_made_on_write():
     assert photos.path == "storeys[1].photos[0]"
     assert photos.doc["storeys"][1]["photos"] == [{"path": "img/a.jpg", "caption": ""}]
     assert "photos" not in doc["storeys"][1]   # the input was not changed
+
+
+@pytest.mark.parametrize("direct", [True, False])
+def test_an_item_set_whole_is_refused_by_its_first_rule_and_keeps_every_line(direct):
+    # a reading replaced by one with no direction and an unknown key: two rules broken by one
+    # edit; the refusal is the first as one clean line, the rest kept in `all_messages`
+    doc = json.loads(json.dumps(sample_dict()))
+    before = copy.deepcopy(doc)
+    with pytest.raises(EditRefused) as err:
+        edits.apply(doc, "set", "storeys[0].readings[0]", {"tilt_deg": 0.1, "colour": "red"},
+                    direct=direct)
+    line = str(err.value)
+    assert line.startswith("storeys[0].readings[0].dir: required field is missing (")
+    assert "\n" not in line and "more)" not in line
+    assert err.value.all_messages[0] == line
+    assert len(err.value.all_messages) == 2
+    assert err.value.all_messages[1].startswith(
+        "storeys[0].readings[0].colour: unknown key 'colour'")
+    assert doc == before
+
+
+def test_a_single_rule_broken_is_its_only_line():
+    doc = json.loads(json.dumps(sample_dict()))
+    with pytest.raises(EditRefused) as err:
+        edits.apply(doc, "set", "storeys[0].readings[0].gauge_mm", -5)
+    assert err.value.all_messages == [str(err.value)]
+    assert str(err.value).startswith("storeys[0].readings[0].gauge_mm: must be greater than 0")

@@ -5,7 +5,7 @@ and every survey is written as `/2` (see docs/formats.md).
 
 Data is validated once, here, at the edge (a form field, an imported file); the assessment
 trusts it. Every rule a user can break has a message naming the field path and the rule
-(`SurveyError`, built by `parse_survey` / `format_error`).
+(`SurveyError`, built by `parse_survey` from `error_lines`).
 
 The package: `fields` (format names, field types), `survey` (the models), `errors` (refusals in
 words), `parse` (file text and data to a `Survey`), `schema` (the JSON Schema). Import from
@@ -14,7 +14,7 @@ words), `parse` (file text and data to a `Survey`), `schema` (the JSON Schema). 
 
 from __future__ import annotations
 
-from .errors import SurveyError, error_lines, format_error, rule_error
+from .errors import SurveyError, error_lines, rule_error
 from .fields import (
     FORMAT,
     FORMATS,
@@ -60,6 +60,6 @@ __all__ = ["FORMAT", "FORMATS", "ID_NAMESPACE", "MEMBER_KINDS", "Access", "Build
            "DamageClass", "Dir", "Hazard", "HazardKey", "Inspection", "Inspector", "Int",
            "Location", "MemberGroup", "MemberKind", "Notes", "Num", "Photo", "Photos", "Reading",
            "SignKey", "Storey", "Survey", "SurveyError", "SystemKey", "Systems", "Text",
-           "canonical_json", "error_lines", "format_error", "gauge_notes", "json_schema",
+           "canonical_json", "error_lines", "gauge_notes", "json_schema",
            "load_json_text", "parse_survey", "parse_survey_text", "rule_error",
            "survey_warnings"]

@@ -78,14 +78,6 @@ def error_lines(err: ValidationError, doc: Any = None,
     return lines
 
 
-def format_error(err: ValidationError, doc: Any = None,
-                 prefix: tuple[int | str, ...] = ()) -> str:
-    """The first error as one line, with a count of the rest."""
-    lines = error_lines(err, doc, prefix)
-    more = f" (and {len(lines) - 1} more)" if len(lines) > 1 else ""
-    return lines[0] + more
-
-
 def rule_error(err: RuleBroken, doc: Any = None, prefix: tuple[int | str, ...] = ()) -> str:
     """A rule broken outside pydantic (the store's edit API calls the rules) as one line."""
     return rules.line(prefix + err.path, err.rule, doc)

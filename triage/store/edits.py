@@ -31,7 +31,7 @@ from triage.model import (
     MemberGroup,
     Reading,
     Storey,
-    format_error,
+    error_lines,
     rule_error,
 )
 
@@ -44,7 +44,15 @@ _INDEX = re.compile(r"\[(\d+)\]")
 
 
 class EditRefused(StoreError, ValueError):
-    """An edit broke a rule; `str()` is one line naming the field path and the rule."""
+    """An edit broke a rule; `str()` is one line naming the field path and the rule.
+
+    An item set whole can break several: `str()` names the first, `all_messages` holds one
+    line per rule broken (the first among them).
+    """
+
+    def __init__(self, message: str, all_messages: list[str] | None = None) -> None:
+        super().__init__(message)
+        self.all_messages = all_messages or [message]
 
 
 @functools.lru_cache(maxsize=4096)
@@ -174,8 +182,10 @@ def apply_remove(doc: dict[str, Any], path: str) -> Applied:
     return Applied(new_doc, "remove", path, old, None)
 
 
-def _lines(err: ValidationError, where: str, doc: Any = None) -> str:
-    return format_error(err, doc, tuple(_parse(where)) if where else ())
+def _refused(err: ValidationError, where: str, doc: Any = None) -> EditRefused:
+    """The refusal of an item that broke rules: its first rule, and every line kept."""
+    lines = error_lines(err, doc, tuple(_parse(where)) if where else ())
+    return EditRefused(lines[0], lines)
 
 
 def _validate(model: type[BaseModel], data: Any, where: str | Callable[[], str],
@@ -193,7 +203,7 @@ def _validate(model: type[BaseModel], data: Any, where: str | Callable[[], str],
     try:
         obj = model.__pydantic_validator__.validate_python(data)
     except ValidationError as err:
-        raise EditRefused(_lines(err, place(), doc)) from None
+        raise _refused(err, place(), doc) from None
     out: dict[str, Any] = model.__pydantic_serializer__.to_python(obj, mode="json",
                                                                  exclude_none=True)
     return out

@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import math
 import re
-from collections.abc import Iterable
+from collections.abc import Callable, Iterable
 from datetime import UTC, datetime
 from typing import Any
 
@@ -254,8 +254,16 @@ def capacity_rules(m: Any, modes: tuple[str, ...]) -> None:
                              f"on a {kind}")
     mode = _get(m, "mode")
     if mode is not None and mode not in modes:
-        raise RuleBroken(("mode",), f"{mode!r} is not a FEMA 306 mode of a {kind} (modes: "
-                         f"{', '.join(modes)})")
+        what = vocabulary.words("member_kinds", kind)
+        raise RuleBroken(("mode",), f"{_said('wall_modes', mode, repr)} is not a FEMA 306 mode of "
+                         f"{'an' if what[:1] in 'aeiou' else 'a'} {what}; mode must be one of: "
+                         f"{', '.join(_said('wall_modes', k) for k in modes)}")
+
+
+def _said(section: str, key: str, show: Callable[[str], str] = str) -> str:
+    """A key as a file holds it, with its words where they differ: 'toe_crushing (toe crushing)'."""
+    said = vocabulary.words(section, key)
+    return show(key) if said == key else f"{show(key)} ({said})"
 
 
 # --- the whole survey -----------------------------------------------------------------------

@@ -242,7 +242,10 @@ def _refused(member: dict[str, Any], said: str, sx: str = "steel_moment_frame") 
     ({"kind": "column", "count": 2, "severity": "heavy"},
      r"members\[0\]\.severity: a FEMA 306 severity belongs on a wall or infill group"),
     ({"kind": "infill", "count": 2, "mode": "rocking"},
-     r"mode: 'rocking' is not a FEMA 306 mode of a infill"),
+     r"mode: 'rocking' is not a FEMA 306 mode of an infill panel; mode must be one of: "
+     r"diagonal_tension \(diagonal tension\), bed_joint_sliding \(bed-joint sliding\), "
+     r"corner_crushing \(corner crushing\), unknown \(not known\) \(storey 1, member "
+     r"group 1, behaviour mode\)$"),
     ({"kind": "wall", "count": 2, "severity": "grave"}, r"members\[0\]\.severity"),
     ({"kind": "wall", "count": 2, "inspected": 3}, r"inspected: 3 inspected of a group of 2"),
     ({"kind": "wall", "count": 2, "inspected": -1}, r"inspected: must be greater than or equal"),

@@ -45,3 +45,18 @@ def test_a_form_first_then_the_rest():
     assert kinds[0] == "column" and sorted(kinds) == sorted(MEMBER_KINDS)
     texts = class_texts(("rc_frame", "urm_wall"))
     assert sorted(texts) == ["I", "II", "III", "IV", "V"]
+
+
+def test_a_wall_is_offered_only_the_signs_of_its_material():
+    # An unreinforced masonry wall has no cover or bars: its form's signs and no concrete ones
+    urm = [k for k, _ in sign_choices(("urm_wall",), "wall")]
+    assert sorted(urm) == ["core_crushed", "out_of_plane", "vertical_shortening"]
+    assert urm[0] == "out_of_plane"          # the form's own order first
+    signs = load().signs
+    for system in ("urm_wall", "urm_infill", "rc_wall", "wood_stud_wall"):
+        offered = {k for k, _ in sign_choices((system,), "wall")}
+        assert offered == {k for k, s in signs.items() if "wall" in s.kinds
+                           and system in s.systems}, system
+    # a concrete wall still gets the concrete signs; a building of both materials, both
+    assert "cover_spalling" in dict(sign_choices(("rc_wall",), "wall"))
+    assert "cover_spalling" in dict(sign_choices(("urm_wall", "rc_frame"), "wall"))

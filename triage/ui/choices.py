@@ -64,8 +64,10 @@ def member_kinds(systems: tuple[str, ...]) -> list[str]:
 def sign_choices(systems: tuple[str, ...], kind: str) -> list[tuple[str, str]]:
     """(sign key, where to look) for a member kind, from the forms of the storey's systems.
 
-    Signs of the sign table for that kind that no form lists come after, with their
-    description as the hint.
+    Signs the sign table gives that kind in one of these systems that no form lists come
+    after, with their description as the hint: an unreinforced masonry wall is never offered
+    a concrete wall's spalled cover or bars. Only when none of the systems is in the table
+    (none known) are all the kind's signs offered.
     """
     from triage import standards
 
@@ -76,8 +78,11 @@ def sign_choices(systems: tuple[str, ...], kind: str) -> list[tuple[str, str]]:
                 out.setdefault(key, hint)
         except KeyError:
             continue
-    for key, sign in standards.load().signs.items():
-        if kind in sign.kinds and key not in out:
+    table = standards.load().signs
+    known = {s for sign in table.values() for s in sign.systems}
+    here = set(systems) & known
+    for key, sign in table.items():
+        if kind in sign.kinds and key not in out and (not here or here & set(sign.systems)):
             out[key] = sign.description
     return list(out.items())
 

@@ -10,7 +10,7 @@ from drive import settle, type_in, verdict_text
 from triage.store import Store
 from triage.ui.screens.history import HistoryScreen, describe_change, storey_labels
 from triage.ui.screens.survey import SurveyScreen
-from triage.ui.screens.survey_list import SurveyListScreen
+from triage.ui.screens.survey_list import SurveyListScreen, _when
 
 BAKERY = "11111111-1111-4111-8111-111111111111"
 
@@ -35,6 +35,18 @@ async def test_filter_by_typing_and_open(db: Path, make_app) -> None:
         assert verdict_text(pilot).startswith("◐ hold")
         assert "provisional" in verdict_text(pilot)
         assert "indicative" in verdict_text(pilot)
+
+
+async def test_times_are_shown_whole_with_their_offset(db: Path, make_app) -> None:
+    # as recorded, to the minute, with the zone offset (never cut to 16 characters)
+    app = make_app(db)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        table = app.screen.query_one("#surveys")
+        times = sorted(str(table.get_row_at(i)[2]) for i in range(table.row_count))
+        assert times == ["2026-11-29 08:15 +13:00", "2026-11-29 09:00 +13:00"]
+    assert _when("2026-03-01T23:30:15-05:00") == "2026-03-01 23:30:15 -05:00"
+    assert _when("2026-06-01T10:00:00Z") == "2026-06-01 10:00 +00:00"
 
 
 async def test_the_short_code_of_a_paper_form_finds_the_earlier_survey(db: Path,

@@ -10,16 +10,17 @@ from textual.binding import Binding, BindingType
 from textual.widgets import DataTable, Footer, Input, Static
 
 from triage.ui.messages import CAUTION_SHORT
-from triage.ui.shown import block, line
+from triage.ui.shown import block
 from triage.ui.typed import TriageScreen
-from triage.ui.widgets.field import no_blink, set_text
+from triage.ui.widgets.field import no_blink, set_text, when_text
+from triage.ui.widgets.pane import cell
 
 if TYPE_CHECKING:  # the store is loaded behind the first screen
     from triage.store.rows import SurveyRow
 
 def _when(at: str) -> str:
-    """'2026-11-29 14:05' from an ISO time."""
-    return at[:16].replace("T", " ") if at else ""
+    """'2026-11-29 14:05 +13:00' from an ISO time, its offset kept (as the fields show it)."""
+    return when_text(at)
 
 
 class SurveyListScreen(TriageScreen[None]):
@@ -57,9 +58,9 @@ class SurveyListScreen(TriageScreen[None]):
     def on_mount(self) -> None:
         """Fill the table."""
         table = self.query_one("#surveys", DataTable)
-        table.add_column("building", width=22, key="building")
-        table.add_column("address", width=19, key="address")
-        table.add_column("inspected", width=16, key="at")
+        table.add_column("building", width=19, key="building")
+        table.add_column("address", width=15, key="address")
+        table.add_column("inspected", width=23, key="at")
         table.add_column("tier", width=10, key="tier")
         table.add_column("", width=3, key="flags")
         no_blink(self.query_one("#filter", Input))
@@ -107,7 +108,7 @@ class SurveyListScreen(TriageScreen[None]):
             flags = ("p" if r.provisional else "") + ("e" if r.edited_since_report else "") + (
                 "h" if r.hidden else "")
             tier = tier_words(r.tier) if r.tier else "not yet"
-            table.add_row(line(r.building), line(r.address), _when(r.at), tier, flags,
+            table.add_row(cell(r.building), cell(r.address), _when(r.at), tier, flags,
                           key=str(r.id))
             shown += 1
         if current is not None:

@@ -6,7 +6,11 @@ rules of docs/method.md with the tables' numbers typed in again (FEMA 356 Table 
 2001 eta and bounds, both from memory; our damage-floor table and plumbness rules):
 repeats at a spot averaged with inverse-variance weights, the baseline drawn once per spot and
 shared by its repeats, tilts through the tangent (not linearised), crack classes, R and its
-grade, the damage floors, the all-class-V rule, hazards, the tier.
+grade, the damage floors, the all-class-V rule, hazards, the tier. Masonry walls and infill
+panels are classed by FEMA 306 too (1998, from memory: each mode's crack bounds and lambda Q
+typed in again below): the same draw of a crack sets the group's JBDPA class and its FEMA 306
+severity, and each direction's lambda Q ratio (members seen times weight), our grade bounds
+and the grade's level join the storey's level.
 
 Agreement: within 3 standard errors, |engine - brute| <= 3 sqrt(se_brute^2 + se_engine^2), with
 se_brute = sqrt(p (1 - p) / N) (at most 0.00112 for N = 200,000) and se_engine the engine's own
@@ -27,7 +31,8 @@ N = 200_000
 TIERS = ("occupy", "hold", "evacuate")
 # IO, LS, CP residual drift ratios per system (FEMA 356 C1-3; IO negligible -> our 0.2%).
 FIG = {"rc_frame": (0.002, 0.010, 0.04), "rc_wall": (0.002, 0.005, 0.02),
-       "steel_braced_frame": (0.002, 0.005, 0.02), "steel_moment_frame": (0.002, 0.010, 0.05)}
+       "steel_braced_frame": (0.002, 0.005, 0.02), "steel_moment_frame": (0.002, 0.010, 0.05),
+       "urm_infill": (0.002, 0.003, 0.006)}
 # eta per class 0 (sound) .. 5 (V), JBDPA 2001 (from memory).
 ETA = {"ductile": [1, 0.95, 0.75, 0.5, 0.1, 0.0], "brittle": [1, 0.95, 0.6, 0.3, 0.0, 0.0],
        "wall": [1, 0.95, 0.6, 0.3, 0.0, 0.0]}
@@ -39,9 +44,17 @@ RC = {"rc_frame", "rc_wall"}
 FLOOR = {"vertical": [0, 0, 0, 0, 1, 2], "brittle_vertical": [0, 0, 0, 1, 2, 2],
          "lateral": [0, 0, 0, 0, 1, 2], "other": [0, 0, 0, 0, 1, 1]}
 MATERIAL = {"rc_frame": "concrete", "rc_wall": "concrete", "steel_braced_frame": "steel",
-            "steel_moment_frame": "steel"}
+            "steel_moment_frame": "steel", "urm_infill": "masonry"}
 HAZARD_TIER = {"falling_hazard": 1, "blocked_egress": 1, "visible_lean": 2}
 SD_DEFAULT = {"mm": 1.0, "deg": 0.05, "crack": 0.05}
+# FEMA 306 (1998, from memory): the component type of a kind in a system, and per type and
+# mode the crack bounds (mm) up to which it is insignificant, slight, moderate (wider: heavy)
+# and lambda Q at insignificant, slight, moderate, heavy. A mode not recorded takes the worst
+# of its type's modes, bound by bound and factor by factor (docs/method.md, section 4a).
+FEMA306 = {("wall", "urm_infill"): "urm_pier", ("infill", "urm_infill"): "infill_panel"}
+MODES = {("infill_panel", "diagonal_tension"): ((0.7, 1.5, 3.1), (1.0, 0.9, 0.7, 0.5)),
+         ("infill_panel", None): ((0.7, 1.5, 3.1), (1.0, 0.9, 0.7, 0.5)),
+         ("urm_pier", None): ((0.7, 1.5, 3.1), (1.0, 0.9, 0.7, 0.4))}
 
 
 def floor_row(m: dict, system: str) -> str:
@@ -52,7 +65,8 @@ def floor_row(m: dict, system: str) -> str:
     if kind in ("column", "wall"):
         return "vertical"
     if (kind == "brace" and system == "steel_braced_frame") or (
-            kind == "connection" and MATERIAL[system] == "steel"):
+            kind == "connection" and MATERIAL[system] == "steel") or (
+            kind == "infill" and system == "urm_infill"):
         return "lateral"
     return "other"
 
@@ -96,9 +110,10 @@ def brute_force(d: dict, seed: int = 12345) -> dict[str, float]:
             io, ls, cp = FIG[systems[dr]]
             level = np.maximum(level, np.where(drift <= io, 0, np.where(
                 drift <= ls, 1, np.where(drift <= cp, 2, 3))))
-        classes = []
+        classes, cracks = [], []
         for m in st["members"]:
             sign = max([SIGN_CLASS[s] for s in m.get("signs", [])], default=0)
+            c = None
             if m.get("damage_class"):
                 classes.append(np.full(N, CLASS[m["damage_class"]]))
             elif m.get("crack_mm"):
@@ -108,6 +123,21 @@ def brute_force(d: dict, seed: int = 12345) -> dict[str, float]:
                 classes.append(np.maximum(cc, sign))
             else:
                 classes.append(np.full(N, sign))
+            cracks.append(c)
+        for dr in ("x", "y"):   # FEMA 306: the same crack draw gives the severity
+            num, den = np.zeros(N), 0.0
+            for m, c in zip(st["members"], cracks, strict=True):
+                comp = FEMA306.get((m["kind"], systems[dr]))
+                if comp is None or m.get("dir", dr) != dr:
+                    continue
+                assert not m.get("signs") and not m.get("severity")  # not typed in here
+                bounds, q = MODES[(comp, m.get("mode"))]
+                w = m.get("inspected", m["count"]) * m.get("weight", 1.0)
+                num += w if c is None else np.array(q)[np.searchsorted(bounds, c)] * w
+                den += w
+            if den:
+                r = np.round(num / den, 9)   # grades: light from 0.8 (IO), moderate 0.6 (LS)
+                level = np.maximum(level, np.where(r >= 0.8, 0, np.where(r >= 0.6, 1, 2)))
         for dr in ("x", "y"):
             if systems[dr] not in RC:
                 continue
@@ -229,8 +259,33 @@ def many_columns_off_grid() -> dict:
     return many_columns_in_doubt(weight=4 / 3)
 
 
+def walls_in_doubt() -> dict:
+    # Masonry infill frame. Storey 1 x: three infill panels cracked 1.75 mm (sd 0.3) in
+    # diagonal tension: over 1.5 mm FEMA 306 moderate (lambda Q 0.7: ratio (3 * 0.7 + 1) / 4 =
+    # 0.775, moderate grade, LS), over 2.0 mm JBDPA class IV (lateral floor, LS) — one crack
+    # sets both, so P(LS) there is P(crack > 1.5) = 0.80, not 0.84 as two independent draws
+    # would make it. Storey 1 y: two walls, no mode (the worst), 0.98 mm: class III over 1.0 mm
+    # (brittle vertical floor, LS), slight either side of it. Storey 2: four panels in both
+    # directions at 1.45 mm (sd 0.1) beside panels seen 1 of 3, weight 1.5: moderate gives
+    # (4 * 0.7 + 1.5) / 5.5 = 0.78 (LS), slight 0.93 (IO).
+    return survey_dict([
+        storey("1", [reading("x", 0.5, sd_mm=0.3), reading("y", 0.5, sd_mm=0.3)],
+               [{"kind": "column", "count": 10},
+                {"kind": "infill", "count": 3, "dir": "x", "mode": "diagonal_tension",
+                 "crack_mm": 1.75, "crack_sd_mm": 0.3},
+                {"kind": "infill", "count": 1, "dir": "x"},
+                {"kind": "wall", "count": 2, "dir": "y", "crack_mm": 0.98}]),
+        storey("2", [reading("x", 0.5, sd_mm=0.3), reading("y", 0.5, sd_mm=0.3)],
+               [{"kind": "column", "count": 10},
+                {"kind": "infill", "count": 4, "mode": "diagonal_tension", "crack_mm": 1.45,
+                 "crack_sd_mm": 0.1},
+                {"kind": "infill", "count": 3, "inspected": 1, "weight": 1.5}]),
+    ], sx="urm_infill", sy="urm_infill")
+
+
 CASES = [frame_near_thresholds, braced_near_ls, tilts_with_baselines_and_repeats,
-         overrides_and_hazard, override_floor, many_columns_in_doubt, many_columns_off_grid]
+         overrides_and_hazard, override_floor, many_columns_in_doubt, many_columns_off_grid,
+         walls_in_doubt]
 
 
 @pytest.mark.parametrize("build", CASES)
@@ -255,3 +310,23 @@ def test_paths_taken():
     sampled = assess(make(many_columns_off_grid()["storeys"]))
     assert any("sampled" in n for n in sampled.notes)
     assert sampled.tier_probability_se["hold"] > 0
+
+
+def test_the_walls_case_tells_one_crack_from_two_independent_draws():
+    # In walls_in_doubt the tier is occupy only when storey 1's panels stay at or under 1.5 mm
+    # (then under 2.0 mm too), its walls at or under 1.0 mm and storey 2's panels at or under
+    # 1.5 mm: the engine gives that product exactly (its standard error 0). Drawing the class
+    # and the severity of storey 1's panels independently would give 0.018 less, nine times
+    # the brute force's tolerance above (3 standard errors, 0.002).
+    d = walls_in_doubt()
+    a = assess(make(d["storeys"], sx="urm_infill", sy="urm_infill"))
+
+    def phi(z: float) -> float:
+        return 0.5 * (1 + math.erf(z / math.sqrt(2)))
+
+    panels, walls, upper = phi((1.5 - 1.75) / 0.3), phi((1.0 - 0.98) / 0.05), phi(0.5)
+    joint = panels * walls * upper
+    assert a.tier_probability["occupy"] == pytest.approx(joint, abs=1e-6)
+    assert a.tier_probability_se["occupy"] == 0.0
+    independent = panels * phi((2.0 - 1.75) / 0.3) * walls * upper
+    assert joint - independent > 0.015

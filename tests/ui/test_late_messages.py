@@ -50,18 +50,20 @@ async def test_a_pick_then_a_storey_key_picks_from_the_list_it_was_made_in(
 
 async def test_a_kind_picked_with_enter_offers_its_signs_to_the_keys_typed_after(
         db: Path, make_app) -> None:
-    app = make_app(db, open_survey=SID)
+    urm = "22222222-2222-4222-8222-222222222222"   # masonry walls: a wall's signs differ
+    app = make_app(db, open_survey=urm)
     async with app.run_test(size=(80, 24)) as pilot:
         await settle(pilot)
         await burst(pilot, "<f7>")
         pane = app.screen.query_one("#members-pane")
         kind = pane.form["kind"].select
+        assert kind.value == "column"
         await _open_pick(pilot, kind, [v for _, v in kind._options].index("wall"))
-        # "out of plane" is a wall's sign, not a column's: the letter o finds it only in the
-        # wall's list, so that list must be there when the o is taken
+        # "out of plane" is a masonry wall's sign, not a column's: the letter o finds it only
+        # in the wall's list, so that list must be there when the o is taken
         await burst(pilot, "<enter>", "<tab>", "2", "<tab>", "o", "<space>", "<enter>")
     with Store.open(db, refresh=False) as st:
-        m = st.load_survey(SID).storeys[0].members[-1]
+        m = st.load_survey(urm).storeys[0].members[-1]
     assert (m.kind, m.count, list(m.signs)) == ("wall", 2, ["out_of_plane"])
 
 

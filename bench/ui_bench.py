@@ -184,8 +184,8 @@ STOREY_SCRIPT: tuple[tuple[str, str], ...] = (
     ("key", "tab"), ("type", "12"), ("key", "enter"),  # 12 columns (the kind offered)
     ("type", "b"), ("key", "tab"), ("type", "8"), ("key", "enter"),    # 8 beams
     ("type", "w"), ("key", "tab"), ("type", "4"), ("key", "tab"),      # 4 walls, and signs:
-    ("type", "b"), ("key", "space"), ("type", "o"), ("key", "space"),  # bars exposed, out of
-    ("key", "enter"),                                                  # plane; added
+    ("type", "b"), ("key", "space"), ("type", "m"), ("key", "space"),  # bars exposed, member
+    ("key", "enter"),                                                  # shortened; added
     ("key", "f8"),                                     # hazards: the cursor on the kind
     ("type", "fa"), ("key", "tab"), ("type", "6"), ("key", "enter"),   # falling hazard, 6 m
 )
@@ -211,7 +211,7 @@ def _check_storey(survey: Any) -> None:
     assert got == want, f"readings: {got}"
     groups = [(m.kind, m.count, tuple(m.signs)) for m in g.members]
     assert groups == [("column", 12, ()), ("beam", 8, ()),
-                      ("wall", 4, ("bar_exposed", "out_of_plane"))], f"groups: {groups}"
+                      ("wall", 4, ("bar_exposed", "vertical_shortening"))], f"groups: {groups}"
     hz = [(h.kind, h.height_above_ground_m) for h in survey.hazards]
     assert hz == [("falling_hazard", 6.0)], f"hazards: {hz}"
 

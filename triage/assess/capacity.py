@@ -111,15 +111,22 @@ def storey_capacity(survey: Survey, si: int, std: Standards, a: Assumptions) -> 
 
 
 def member_capacity(sc: StoreyCapacity, gi: int, m: MemberGroup) -> dict[str, Any]:
-    """A member group's keys of the assessment for these methods (null where none applies)."""
+    """A member group's keys of the assessment for these methods (null where none applies).
+
+    In the order of `MemberResult`'s fields, floats as floats (the member stage builds the
+    result from them without validation).
+    """
     c = sc.steel.get(gi)
     w = sc.walls.get(gi)
+    if c is None and w is None:
+        return {"inspected": m.inspected, "connection_type": None, "connection_index": None,
+                "mode": None, "severity": None, "lambda_q": None}
     return {"inspected": m.inspected,
             "connection_type": c.type if c is not None else None,
-            "connection_index": c.index if c is not None else None,
+            "connection_index": float(c.index) if c is not None else None,
             "mode": w.mode if w is not None else None,
             "severity": w.severity if w is not None else None,
-            "lambda_q": w.lambdas.q if w is not None else None}
+            "lambda_q": float(w.lambdas.q) if w is not None else None}
 
 
 def partial_notes(survey: Survey) -> list[str]:

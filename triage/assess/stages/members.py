@@ -9,7 +9,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from pydantic import TypeAdapter
 
 from triage.standards import CLASSES, LEVELS, Grade
 
@@ -18,14 +17,11 @@ from ..capacity import StoreyCapacity, member_capacity, storey_capacity
 from ..context import DIRS, JBDPA_SOURCE, Context
 from ..floors import VERTICAL_KINDS, GroupFloor
 from ..levels import Level
-from ..result import MemberResult
+from ..result import MemberResult, trusted
 from ..stats import sig6
 from ..uncertainty import MemberModel
 from ..wall_doubt import WallDoubt, wall_doubt
 from ..wording import class_from_words, field_name, kind_words, level_words
-
-_MEMBERS = TypeAdapter(tuple[MemberResult, ...])
-
 
 @dataclass(frozen=True)
 class Capacity:
@@ -127,13 +123,15 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
     point_l = table.point.tolist()
     floor_l = floor_table[np.arange(len(floors)), table.point].tolist() if floors else []
     shown = _shown_etas(etas)
-    results = _MEMBERS.validate_python([
-        {"index": gi, "ref": m.ref, "kind": m.kind, "count": m.count,
-         "damage_class": CLASSES[point_l[gi] - 1] if point_l[gi] else None,
-         "floor": LEVELS[floor_l[gi]] if point_l[gi] else None,
-         "eta": eta_t[point_l[gi]] if gi in counted and eta_t is not None else None,
-         "class_from": c.class_from, **member_capacity(beyond, gi, m)}
-        for gi, (m, c, eta_t) in enumerate(zip(st.members, table.items, shown, strict=True))])
+    # The values are the engine's own, of the fields' types: built without validating them.
+    results = tuple(
+        trusted(MemberResult, {
+            "index": gi, "ref": m.ref, "kind": m.kind, "count": m.count,
+            "damage_class": CLASSES[point_l[gi] - 1] if point_l[gi] else None,
+            "floor": LEVELS[floor_l[gi]] if point_l[gi] else None,
+            "eta": eta_t[point_l[gi]] if gi in counted and eta_t is not None else None,
+            "class_from": c.class_from, **member_capacity(beyond, gi, m)})
+        for gi, (m, c, eta_t) in enumerate(zip(st.members, table.items, shown, strict=True)))
     return StoreyMembers(si, table, floors, r_by_dir, capacity, floor, model, level, results,
                          defaulted, beyond, wall_doubt(ctx.survey, si, beyond, std, a))
 

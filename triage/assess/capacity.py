@@ -50,6 +50,8 @@ class StoreyCapacity:
     notes: tuple[str, ...]
     steel: dict[int, steel.ConnectionIndex] = field(default_factory=dict)  # by group
     walls: dict[int, walls.WallState] = field(default_factory=dict)  # by group, the worst
+    # `walls.walls_in` of each direction, as computed here (for `wall_doubt`); absent: not yet
+    walls_by_dir: dict[str, walls.WallStorey | None] | None = None
 
     @property
     def level(self) -> Level | None:
@@ -76,13 +78,14 @@ def storey_capacity(survey: Survey, si: int, std: Standards, a: Assumptions) -> 
     notes: list[str] = []
     by_steel: dict[int, steel.ConnectionIndex] = {}
     by_wall: dict[int, walls.WallState] = {}
+    by_dir: dict[str, walls.WallStorey | None] = {}
     for d in DIRS:
         f = steel.steel_floor(st, d, systems, std, a)
         if f is not None:
             by_steel.update({g.group: g for g in f.groups})
             out.append(DirCapacity(d, "fema352", f.ratio, f.level, None, f.index, f.inspected,
                                    f.count, f.sampled, steel.steel_reason(st.label, f, std)))
-        w = walls.walls_in(st, d, systems, std, a)
+        w = by_dir[d] = walls.walls_in(st, d, systems, std, a)
         if w is not None:
             for ws in w.states:
                 old = by_wall.get(ws.group)
@@ -107,7 +110,7 @@ def storey_capacity(survey: Survey, si: int, std: Standards, a: Assumptions) -> 
             notes.append(f"storey {st.label}, {group_words(m.kind, gi, m.ref)}: FEMA 352 "
                          f"damage type {connection_type_words(m.connection_type)} is read for "
                          "steel moment frames only; here it sets the group's damage class alone")
-    return StoreyCapacity(si, tuple(out), tuple(notes), by_steel, by_wall)
+    return StoreyCapacity(si, tuple(out), tuple(notes), by_steel, by_wall, by_dir)
 
 
 def member_capacity(sc: StoreyCapacity, gi: int, m: MemberGroup) -> dict[str, Any]:

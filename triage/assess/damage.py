@@ -109,11 +109,23 @@ class MemberClass(NamedTuple):
 
 @dataclass(frozen=True)
 class ClassTable:
-    """The classes of a storey's member groups, one row per group."""
+    """The classes of a storey's member groups, one row per group.
 
-    items: list[MemberClass]
+    Kept as columns (lists and arrays); `items` gives a `MemberClass` per group on demand.
+    """
+
     point: np.ndarray  # (n,) point class index
     probs: np.ndarray  # (n, 6) class distribution
+    point_list: list[int]  # `point` as a list
+    class_from: list[str | None]  # how each group's point class was set
+    crack_sd: list[float | None]  # the crack's standard uncertainty (None: no crack read)
+    sd_defaulted: list[bool]  # the instrument default was taken for it
+
+    @cached_property
+    def items(self) -> list[MemberClass]:
+        """Each group's class as a `MemberClass`."""
+        return [MemberClass(*row) for row in zip(self.point_list, self.class_from, self.probs,
+                                                 self.crack_sd, self.sd_defaulted, strict=True)]
 
 
 def member_classes(members: Sequence[MemberGroup], std: Standards,
@@ -127,50 +139,58 @@ def member_classes(members: Sequence[MemberGroup], std: Standards,
     b2, b3, b4 = crack_bounds(std)
     probs = np.zeros((n, len(CLASSES) + 1))
     point = [UNDAMAGED] * n
-    recorded = [recorded_class(m, std, a) for m in members]
-    # Cracked groups (not overridden): their rows, widths, standard deviations, sign classes.
+    how: list[str | None] = [None] * n
+    crack_sd: list[float | None] = [None] * n
+    defaulted = [False] * n
+    # Cracked groups (not overridden): their rows, widths, standard deviations, sign classes
+    # and what set those (the sign class, type or severity: `recorded_class`).
     ci: list[int] = []
     widths: list[float] = []
     sds: list[float] = []
     signs: list[int] = []
+    sign_by: list[str | None] = []
     for i, m in enumerate(members):
         if m.damage_class is not None:  # the inspector's class, certain
-            point[i] = class_index(m.damage_class)
-            probs[i, point[i]] = 1.0
+            point[i] = k = class_index(m.damage_class)
+            probs[i, k] = 1.0
+            how[i] = "override"
             continue
+        if m.signs or m.connection_type is not None or m.severity is not None:
+            rec, by = recorded_class(m, std, a)
+        else:
+            rec, by = UNDAMAGED, None  # the common case, without the call
         crack = m.crack_mm or 0.0
         if crack > 0:
             ci.append(i)
             widths.append(crack)
-            sds.append(m.crack_sd_mm or a.sd_crack_mm)
-            signs.append(recorded[i][0])
+            if m.crack_sd_mm:
+                sd = m.crack_sd_mm
+            else:
+                sd = a.sd_crack_mm
+                defaulted[i] = m.crack_sd_mm is None
+            sds.append(sd)
+            crack_sd[i] = sd
+            signs.append(rec)
+            sign_by.append(by)
         else:  # no crack: the sign class (or undamaged), certain
-            point[i] = recorded[i][0]
-            probs[i, point[i]] = 1.0
-    crack_class = [UNDAMAGED] * n
+            point[i] = rec
+            probs[i, rec] = 1.0
+            how[i] = by
     if ci:
         # Cracked: I..IV by the bounds, each raised to the sign class.
-        c, sd, s = np.array(widths), np.array(sds), np.array(signs, dtype=int)
-        f = norm_cdf((np.array([b2, b3, b4])[None, :] - c[:, None]) / sd[:, None])
+        c, sd_a, s = np.array(widths), np.array(sds), np.array(signs, dtype=int)
+        f = norm_cdf((np.array([b2, b3, b4])[None, :] - c[:, None]) / sd_a[:, None])
         crack_p = np.column_stack([f[:, 0], f[:, 1] - f[:, 0], f[:, 2] - f[:, 1], 1.0 - f[:, 2]])
         rows = np.array(ci)
         for k in range(4):  # rows are distinct: classes raised to one sign class add in order
             probs[rows, np.maximum(k + 1, s)] += crack_p[:, k]
         cc = np.where(c < b2, 1, np.where(c <= b3, 2, np.where(c <= b4, 3, 4))).tolist()
-        for i, cls, sign in zip(ci, cc, signs, strict=True):
-            crack_class[i] = cls
-            point[i] = max(cls, sign)
-    sd_of = dict(zip(ci, sds, strict=True))
-    items = []
-    for i, m in enumerate(members):
-        if m.damage_class is not None:
-            items.append(MemberClass(point[i], "override", probs[i], None, False))
-        elif i in sd_of:
-            how = "crack" if crack_class[i] >= recorded[i][0] else recorded[i][1]
-            items.append(MemberClass(point[i], how, probs[i], sd_of[i], m.crack_sd_mm is None))
-        else:
-            items.append(MemberClass(point[i], recorded[i][1], probs[i], None, False))
-    return ClassTable(items, np.array(point, dtype=int), probs)
+        for i, cls, sign, by in zip(ci, cc, signs, sign_by, strict=True):
+            if cls >= sign:
+                point[i], how[i] = cls, "crack"
+            else:
+                point[i], how[i] = sign, by
+    return ClassTable(np.array(point, dtype=int), probs, point, how, crack_sd, defaulted)
 
 
 def eta_table(m: MemberGroup, std: Standards) -> np.ndarray | None:
@@ -243,19 +263,35 @@ def capacity_terms_all(storey: Storey, etas: Sequence[np.ndarray | None],
 
     `etas[g]` is group g's eta table (None: a kind R does not count).
     """
-    out = {}
-    members = storey.members
-    seen = [m.seen for m in members]
+    out: dict[str, CapacityTerms] = {}
+    # Groups with a table are columns and walls: a column counts in both directions, a wall in
+    # its `dir` (both when it has none), as `counts_in` says. Each such group's index, members
+    # seen, seen * weight, count, table (as a row of `table`) and direction (None: both).
+    rows: list[tuple[int, int, float, int, int, str | None]] = []
+    ids: dict[int, int] = {}
+    uniq: list[np.ndarray] = []
+    for g, (m, t) in enumerate(zip(storey.members, etas, strict=True)):
+        if t is None:
+            continue
+        k = ids.get(id(t))
+        if k is None:
+            k = ids[id(t)] = len(uniq)
+            uniq.append(t)
+        seen = m.count if m.inspected is None else m.inspected
+        rows.append((g, seen, seen * m.weight, m.count, k,
+                     None if m.kind == "column" else m.dir))
+    if not rows:
+        return out
+    group, seen_a, weight, count, row, acts = (np.array(c) for c in zip(*rows, strict=True))
+    table = np.array(uniq)
+    inspected = seen_a > 0  # members not inspected are left out of R, never counted undamaged
+    both = acts == None  # noqa: E711 (elementwise)
     for d in dirs:
-        of_kind = [g for g, m in enumerate(members) if etas[g] is not None and counts_in(m, d)]
-        # members not inspected are left out of R, never counted as undamaged
-        idx = [g for g in of_kind if seen[g] > 0]
-        if idx:
-            out[d] = CapacityTerms(tuple(idx),
-                                   np.array([seen[g] * members[g].weight for g in idx]),
-                                   np.array([etas[g] for g in idx]),
-                                   sum(seen[g] for g in idx),
-                                   sum(members[g].count for g in of_kind))
+        of_kind = both | (acts == d)
+        idx = np.flatnonzero(of_kind & inspected)
+        if len(idx):
+            out[d] = CapacityTerms(tuple(group[idx].tolist()), weight[idx], table[row[idx]],
+                                   int(seen_a[idx].sum()), int(count[of_kind].sum()))
     return out
 
 

@@ -115,8 +115,10 @@ def wall_doubt(survey: Survey, si: int, beyond: StoreyCapacity, std: Standards,
                and m.damage_class is None for m in st.members):
         return None
     systems = survey.building.system
+    known = beyond.walls_by_dir or {}
     found = {d: w for d in DIRS
-             if (w := walls.walls_in(st, d, systems, std, a)) is not None and w.ratio is not None}
+             if (w := known[d] if d in known else walls.walls_in(st, d, systems, std, a))
+             is not None and w.ratio is not None}
     rows: dict[int, dict[str, ModeRow]] = {}
     for d, w in found.items():
         for s in w.states:

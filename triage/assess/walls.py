@@ -147,6 +147,9 @@ def walls_in(st: Storey, d: str, systems: Systems, std: Standards,
              a: Assumptions) -> WallStorey | None:
     """The storey's walls acting in `d` classed by FEMA 306; None where it does not apply."""
     system = getattr(systems, d)
+    if system in OPT_IN and not any(m.mode is not None or m.severity is not None
+                                    for m in st.members if m.kind in WALL_KINDS):
+        return None  # the test below, before the component types are looked up
     found = []
     for gi, m in enumerate(st.members):
         if m.kind not in WALL_KINDS or not (m.dir is None or m.dir == d):

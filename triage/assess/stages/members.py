@@ -23,6 +23,7 @@ from ..uncertainty import MemberModel
 from ..wall_doubt import WallDoubt, wall_doubt
 from ..wording import class_from_words, field_name, kind_words, level_words
 
+
 @dataclass(frozen=True)
 class Capacity:
     """A storey's residual seismic capacity: the worse direction's R, grade and level."""
@@ -73,7 +74,7 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
         f"storey {st.label}, {kind_words(m.kind)} group {gi + 1}{' ' + m.ref if m.ref else ''}: "
         f"{field_name('member_group', 'crack_sd_mm')} {a.sd_crack_mm:g} mm (instrument default, "
         "common practice)"
-        for gi, (m, c) in enumerate(zip(st.members, table.items, strict=True)) if c.sd_defaulted)
+        for gi, m in enumerate(st.members) if table.sd_defaulted[gi])
     etas = [dmg.eta_table(m, std) for m in st.members]
     terms = dmg.capacity_terms_all(st, etas, ctx.rc)
     r_by_dir: dict[str, float | None] = {}
@@ -120,7 +121,7 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
         level = (Level.BEYOND_CP if collapse else
                  max(floor.level, capacity.level if capacity is not None else Level.IO, fixed))
     counted = set().union(*(t.groups for t in terms.values())) if terms else set()
-    point_l = table.point.tolist()
+    point_l = table.point_list
     floor_l = floor_table[np.arange(len(floors)), table.point].tolist() if floors else []
     shown = _shown_etas(etas)
     # The values are the engine's own, of the fields' types: built without validating them.
@@ -130,8 +131,9 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
             "damage_class": CLASSES[point_l[gi] - 1] if point_l[gi] else None,
             "floor": LEVELS[floor_l[gi]] if point_l[gi] else None,
             "eta": eta_t[point_l[gi]] if gi in counted and eta_t is not None else None,
-            "class_from": c.class_from, **member_capacity(beyond, gi, m)})
-        for gi, (m, c, eta_t) in enumerate(zip(st.members, table.items, shown, strict=True)))
+            "class_from": how, **member_capacity(beyond, gi, m)})
+        for gi, (m, how, eta_t) in enumerate(zip(st.members, table.class_from, shown,
+                                                  strict=True)))
     return StoreyMembers(si, table, floors, r_by_dir, capacity, floor, model, level, results,
                          defaulted, beyond, wall_doubt(ctx.survey, si, beyond, std, a))
 

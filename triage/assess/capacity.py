@@ -20,6 +20,7 @@ from triage.standards.vocabulary import words
 
 from . import steel, walls
 from .levels import Level
+from .walls import WallStorey
 from .wording import connection_type_words, group_words, mode_words
 
 DIRS = ("x", "y")
@@ -51,7 +52,7 @@ class StoreyCapacity:
     steel: dict[int, steel.ConnectionIndex] = field(default_factory=dict)  # by group
     walls: dict[int, walls.WallState] = field(default_factory=dict)  # by group, the worst
     # `walls.walls_in` of each direction, as computed here (for `wall_doubt`); absent: not yet
-    walls_by_dir: dict[str, walls.WallStorey | None] | None = None
+    walls_by_dir: dict[str, WallStorey | None] | None = None
 
     @property
     def level(self) -> Level | None:
@@ -78,7 +79,7 @@ def storey_capacity(survey: Survey, si: int, std: Standards, a: Assumptions) -> 
     notes: list[str] = []
     by_steel: dict[int, steel.ConnectionIndex] = {}
     by_wall: dict[int, walls.WallState] = {}
-    by_dir: dict[str, walls.WallStorey | None] = {}
+    by_dir: dict[str, WallStorey | None] = {}
     for d in DIRS:
         f = steel.steel_floor(st, d, systems, std, a)
         if f is not None:

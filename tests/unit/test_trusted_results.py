@@ -7,6 +7,7 @@ import json
 from pathlib import Path
 
 import pytest
+from pydantic import BaseModel
 
 from bench.generate import big_survey_dict
 from tests.helpers import make, reading, storey
@@ -15,6 +16,7 @@ from triage.assess.result import MemberResult, trusted
 from triage.model import parse_survey
 
 SAMPLES = sorted((Path(__file__).parents[2] / "sample_surveys").glob("*.json"))
+TRUSTED = {"StoreyResult", "SpotResult", "PerDir", "LevelPerDir", "MemberResult"}
 QUIET = [reading("x", 0.5), reading("y", 0.5)]
 
 
@@ -30,6 +32,37 @@ def _surveys():
     yield make([storey("1", QUIET, [
         {"kind": "wall", "count": 2, "mode": "rocking", "severity": "heavy", "dir": "x"},
         {"kind": "wall", "count": 1, "crack_mm": 1.2}])], sx="urm_wall", sy="urm_wall")
+
+
+def _models(m: BaseModel):
+    """Every model inside `m` (itself first)."""
+    yield m
+    for v in m.__dict__.values():
+        for x in (v if isinstance(v, tuple) else v.values() if isinstance(v, dict) else (v,)):
+            if isinstance(x, BaseModel):
+                yield from _models(x)
+
+
+def _same_as_validated(m: BaseModel) -> None:
+    v = type(m).model_validate(dict(m.__dict__))
+    assert v == m
+    assert list(v.__dict__) == list(m.__dict__)
+    assert {k: type(x) for k, x in v.__dict__.items()} == {
+        k: type(x) for k, x in m.__dict__.items()}
+    for k, x in v.__dict__.items():
+        if isinstance(x, tuple):
+            assert [type(i) for i in x] == [type(i) for i in m.__dict__[k]]
+    if type(m).__name__ in TRUSTED:  # built with every field given, as before
+        assert v.model_fields_set == m.model_fields_set == set(m.__dict__)
+
+
+def test_every_result_model_matches_validation():
+    kinds = set()
+    for survey in _surveys():
+        for m in _models(assess(survey)):
+            _same_as_validated(m)
+            kinds.add(type(m).__name__)
+    assert kinds >= TRUSTED
 
 
 def test_member_results_match_validation():

@@ -41,6 +41,7 @@ from .result import (
     SpotRef,
     SpotResult,
     StoreyResult,
+    trusted,
 )
 from .stages.advice import AdviceStage, advice_stage, measure_next, plumbness_spots, settled_by
 from .stages.drift import DirDrift, DriftStage, drift_reason, drift_stage
@@ -153,6 +154,8 @@ def _assessment(ctx: Context, drift: DriftStage, members: list[StoreyMembers],
 
 def _storey_result(ctx: Context, si: int, drift: DriftStage, sm: StoreyMembers,
                    hazards: HazardStage) -> StoreyResult:
+    # The result models are built from the engine's own values, each of its field's type,
+    # without validating them (`result.trusted`; a test checks them against validation).
     st = ctx.survey.storeys[si]
     dirs = {d: drift.dirs.get((si, d)) for d in DIRS}
     levels = [dd.level for dd in dirs.values() if dd is not None]
@@ -165,25 +168,35 @@ def _storey_result(ctx: Context, si: int, drift: DriftStage, sm: StoreyMembers,
         grade, level = "collapse", Level.BEYOND_CP
     by_dir = {d: worse_ratio(sm.r_by_dir.get(d), sm.beyond.ratio(d)) for d in DIRS}
     r = [v for v in by_dir.values() if v is not None]
-    return StoreyResult(
-        label=st.label, height_m=st.height_m, below_grade=st.below_grade, access=st.access,
-        drift_ratio=PerDir(**{d: sig6_opt(abs(dd.top.value)) if dd else None
-                              for d, dd in dirs.items()}),
-        drift_mean=PerDir(**{d: sig6_opt(dd.mean) if dd else None for d, dd in dirs.items()}),
-        drift_sd=PerDir(**{d: sig6_opt(dd.top.u) if dd else None for d, dd in dirs.items()}),
-        readings={d: sum(r.dir == d for r in st.readings) for d in DIRS},
-        spots=tuple(SpotResult(dir=s.dir, where=s.where, value=sig6(s.value), u=sig6(s.u),
-                               readings=s.readings, baseline=s.has_baseline,
-                               disagree=s.disagree, level=drift.spot_level(s, ctx).word)
-                    for dd in dirs.values() if dd is not None for s in dd.spots),
-        performance_level=LevelPerDir(**{d: dd.level.word if dd else None
-                                         for d, dd in dirs.items()}),
-        residual_capacity=sig6_opt(min(r) if r else None),
-        residual_capacity_by_dir=PerDir(**{d: sig6_opt(by_dir[d]) for d in DIRS}),
-        damage_grade=grade,
-        damage_floor=sm.floor.level.word if sm.floor is not None else None,
-        level=level.word if level is not None else None,
-        members=sm.results)
+    dx, dy = dirs["x"], dirs["y"]
+    return trusted(StoreyResult, {
+        "label": st.label, "height_m": float(st.height_m), "below_grade": st.below_grade,
+        "access": st.access,
+        "drift_ratio": _per_dir(None if dx is None else sig6(abs(dx.top.value)),
+                                None if dy is None else sig6(abs(dy.top.value))),
+        "drift_mean": _per_dir(None if dx is None else sig6(dx.mean),
+                               None if dy is None else sig6(dy.mean)),
+        "drift_sd": _per_dir(None if dx is None else sig6(dx.top.u),
+                             None if dy is None else sig6(dy.top.u)),
+        "readings": {d: sum(r.dir == d for r in st.readings) for d in DIRS},
+        "spots": tuple(trusted(SpotResult, {
+            "dir": s.dir, "where": s.where, "value": sig6(s.value), "u": sig6(s.u),
+            "readings": s.readings, "baseline": bool(s.has_baseline),
+            "disagree": bool(s.disagree), "level": drift.spot_level(s, ctx).word})
+            for dd in dirs.values() if dd is not None for s in dd.spots),
+        "performance_level": trusted(LevelPerDir, {
+            "x": None if dx is None else dx.level.word,
+            "y": None if dy is None else dy.level.word}),
+        "residual_capacity": sig6_opt(min(r) if r else None),
+        "residual_capacity_by_dir": _per_dir(sig6_opt(by_dir["x"]), sig6_opt(by_dir["y"])),
+        "damage_grade": grade,
+        "damage_floor": sm.floor.level.word if sm.floor is not None else None,
+        "level": level.word if level is not None else None,
+        "members": sm.results})
+
+
+def _per_dir(x: float | None, y: float | None) -> PerDir:
+    return trusted(PerDir, {"x": x, "y": y})
 
 
 __all__ = ["AdviceStage", "Candidate", "Capacity", "Context", "DirDrift", "DriftStage", "Floor",

@@ -106,6 +106,8 @@ FFT_LIMIT = 1 << 16
 # The widest total loss (in grid units) summed exactly; wider storeys are sampled. Plain
 # convolution beyond FFT_LIMIT costs about width * groups, so this bounds the exact path's time.
 EXACT_SUM_LIMIT = 1 << 20
+# The least of a row's live losses is taken with the dead ones set to this.
+_INT64_MAX = int(np.iinfo(np.int64).max)
 # A class this unlikely is left out of the exact sums (its mass is far below the 0.01 asked).
 TINY = 1e-12
 
@@ -122,7 +124,7 @@ def _loss_pmf(loss: np.ndarray, probs: np.ndarray, cap: int) -> np.ndarray:
         out[0] = 1.0
         return out
     live = probs > TINY
-    lo = np.where(live, loss, np.iinfo(np.int64).max).min(axis=1)
+    lo = np.where(live, loss, _INT64_MAX).min(axis=1)
     const = int(lo.sum())
     if const > cap:
         return out
@@ -160,10 +162,11 @@ HOEFFDING = 1e-10
 def _hoeffding(loss: np.ndarray, probs: np.ndarray, cap: int) -> int | None:
     """1 if P(total loss <= cap) > 1 - HOEFFDING, 0 if it is < HOEFFDING, else None."""
     live = probs > TINY
-    hi = np.where(live, loss, 0).max(axis=1)
-    lo = np.where(live, loss, np.iinfo(np.int64).max).min(axis=1)
+    live_loss = np.where(live, loss, 0)
+    hi = live_loss.max(axis=1)
+    lo = np.where(live, loss, _INT64_MAX).min(axis=1)
     spread = float(((hi - lo).astype(float) ** 2).sum())
-    mean = float((np.where(live, loss, 0) * np.where(live, probs, 0.0)).sum())
+    mean = float((live_loss * np.where(live, probs, 0.0)).sum())
     if spread == 0.0:
         return 1 if mean <= cap + 1e-9 else 0
     gap = cap + 0.5 - mean  # the half unit: losses are integers

@@ -23,6 +23,10 @@ from ..uncertainty import MemberModel
 from ..wall_doubt import WallDoubt, wall_doubt
 from ..wording import class_from_words, field_name, kind_words, level_words
 
+# `capacity.member_capacity` of a group no FEMA 352 or FEMA 306 result names, after "inspected"
+_NO_CAPACITY: dict[str, None] = {"connection_type": None, "connection_index": None, "mode": None,
+                                 "severity": None, "lambda_q": None}
+
 
 @dataclass(frozen=True)
 class Capacity:
@@ -75,7 +79,28 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
         f"{field_name('member_group', 'crack_sd_mm')} {a.sd_crack_mm:g} mm (instrument default, "
         "common practice)"
         for gi, m in enumerate(st.members) if table.sd_defaulted[gi])
-    etas = [dmg.eta_table(m, std) for m in st.members]
+    # Each group's eta table, floors (a few distinct ones: rows of `floor_table`) and whether
+    # it is vertical (a column or wall), in one pass.
+    etas: list[np.ndarray | None] = []
+    floor_list: list[GroupFloor] = []
+    floor_row: list[int] = []
+    distinct: dict[int, int] = {}
+    by_class: list[np.ndarray] = []
+    vertical_list: list[bool] = []
+    n_vertical = 0
+    for m in st.members:
+        etas.append(dmg.eta_table(m, std))
+        f = ctx.group_floor(m)
+        floor_list.append(f)
+        k = distinct.get(id(f))
+        if k is None:
+            k = distinct[id(f)] = len(by_class)
+            by_class.append(f.by_class)
+        floor_row.append(k)
+        v = m.kind in VERTICAL_KINDS
+        vertical_list.append(v)
+        if v:
+            n_vertical += m.count
     terms = dmg.capacity_terms_all(st, etas, ctx.rc)
     r_by_dir: dict[str, float | None] = {}
     for d in ctx.rc:
@@ -93,11 +118,10 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
         assert r is not None
         grade = dmg.grade_of(r, std)
         capacity = Capacity(worst, r, grade, Level.of(a.grade_to_level[grade]))
-    floors = tuple(ctx.group_floor(m) for m in st.members)
-    floor_table = (np.array([f.by_class for f in floors], dtype=int) if floors
+    floors = tuple(floor_list)
+    floor_table = (np.array(by_class, dtype=int)[floor_row] if floors
                    else np.zeros((0, len(CLASSES) + 1), dtype=int))
-    vertical = np.array([m.kind in VERTICAL_KINDS for m in st.members], dtype=bool)
-    n_vertical = sum(m.count for m in st.members if m.kind in VERTICAL_KINDS)
+    vertical = np.array(vertical_list, dtype=bool)
     collapse_rule = bool(vertical.any()) and n_vertical >= a.collapse_min_vertical_members
     gb = std.capacity.grades
     beyond = storey_capacity(ctx.survey, si, std, a)
@@ -125,16 +149,18 @@ def member_stage(ctx: Context, si: int) -> StoreyMembers:
     floor_l = floor_table[np.arange(len(floors)), table.point].tolist() if floors else []
     shown = _shown_etas(etas)
     # The values are the engine's own, of the fields' types: built without validating them.
-    results = tuple(
-        trusted(MemberResult, {
-            "index": gi, "ref": m.ref, "kind": m.kind, "count": m.count,
-            "damage_class": CLASSES[point_l[gi] - 1] if point_l[gi] else None,
-            "floor": LEVELS[floor_l[gi]] if point_l[gi] else None,
-            "eta": eta_t[point_l[gi]] if gi in counted and eta_t is not None else None,
-            "class_from": how, **member_capacity(beyond, gi, m)})
-        for gi, (m, how, eta_t) in enumerate(zip(st.members, table.class_from, shown,
-                                                  strict=True)))
-    return StoreyMembers(si, table, floors, r_by_dir, capacity, floor, model, level, results,
+    results = []
+    beyond_groups = beyond.steel.keys() | beyond.walls.keys()
+    for gi, (m, how, eta_t, p) in enumerate(zip(st.members, table.class_from, shown, point_l,
+                                                 strict=True)):
+        values = {"index": gi, "ref": m.ref, "kind": m.kind, "count": m.count,
+                  "damage_class": CLASSES[p - 1] if p else None,
+                  "floor": LEVELS[floor_l[gi]] if p else None,
+                  "eta": eta_t[p] if gi in counted and eta_t is not None else None,
+                  "class_from": how, "inspected": m.inspected}
+        values.update(member_capacity(beyond, gi, m) if gi in beyond_groups else _NO_CAPACITY)
+        results.append(trusted(MemberResult, values))
+    return StoreyMembers(si, table, floors, r_by_dir, capacity, floor, model, level, tuple(results),
                          defaulted, beyond, wall_doubt(ctx.survey, si, beyond, std, a))
 
 

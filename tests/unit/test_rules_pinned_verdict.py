@@ -21,6 +21,10 @@ from triage.model import parse_survey
 
 OV = {"override_reason": "seen"}
 TWO = [reading("x", 0.2), reading("y", 0.2)]   # 0.01% each way: IO, far from any figure
+# The note every survey of independent spots carries, and how "settled by" begins.
+INDEPENDENT = ('tier probabilities: each spot taken as a separate place (independent readings), '
+               'so more spots can lower P(occupy)')
+SETTLED = 'no spot or crack width within 3 sd of a threshold could change the tier; it rests '
 
 
 @pytest.mark.parametrize(("word", "tier"), [("occupy", Tier.OCCUPY), ("hold", Tier.HOLD),
@@ -110,16 +114,15 @@ WANT = {
             'and within 1.0% (LS) for concrete frames (FEMA 356 Table C1-3, from memory)',
         ),
         notes=(
-            'tier probabilities: each spot taken as a separate place (independent readings), so '
-            'more spots can lower P(occupy)',
+            INDEPENDENT,
         ),
         defaulted=(
             'storey 2, column group 2 C3: crack uncertainty 0.05 mm (instrument default, common '
             'practice)',
         ),
         settled_by=(
-            'no spot or crack width within 3 sd of a threshold could change the tier; it rests '
-            "on: storey 2, y: residual drift 0.60% is over 0.20% (our value for 'negligible', "
+            SETTLED
+            + "on: storey 2, y: residual drift 0.60% is over 0.20% (our value for 'negligible', "
             'IO) and within 1.0% (LS) for concrete frames (FEMA 356 Table C1-3, from memory)'
         ),
         measure_next=None,
@@ -134,13 +137,12 @@ WANT = {
             'masonry decide',
         ),
         notes=(
-            'tier probabilities: each spot taken as a separate place (independent readings), so '
-            'more spots can lower P(occupy)',
+            INDEPENDENT,
         ),
         defaulted=(),
         settled_by=(
-            'no spot or crack width within 3 sd of a threshold could change the tier; it rests '
-            "on: storey 1, y: residual drift 0.01% is within 0.20% (our value for 'negligible', "
+            SETTLED
+            + "on: storey 1, y: residual drift 0.01% is within 0.20% (our value for 'negligible', "
             'IO) for concrete frames (FEMA 356 Table C1-3, from memory)'
         ),
         measure_next=None,
@@ -152,13 +154,12 @@ WANT = {
             'glass or sign that could fall; at least hold; keep 6 m clear around it',
         ),
         notes=(
-            'tier probabilities: each spot taken as a separate place (independent readings), so '
-            'more spots can lower P(occupy)',
+            INDEPENDENT,
         ),
         defaulted=(),
         settled_by=(
-            'no spot or crack width within 3 sd of a threshold could change the tier; it rests '
-            'on: hazard: falling hazard at parapet (storey 1): a parapet, chimney, cladding '
+            SETTLED
+            + 'on: hazard: falling hazard at parapet (storey 1): a parapet, chimney, cladding '
             'panel, glass or sign that could fall; at least hold; keep 6 m clear around it'
         ),
         measure_next=None,
@@ -175,13 +176,12 @@ WANT = {
             'several)',
         ),
         notes=(
-            'tier probabilities: each spot taken as a separate place (independent readings), so '
-            'more spots can lower P(occupy)',
+            INDEPENDENT,
         ),
         defaulted=(),
         settled_by=(
-            'no spot or crack width within 3 sd of a threshold could change the tier; it rests '
-            'on: storey 1: every vertical member group is class V, all 6 of the 6 vertical '
+            SETTLED
+            + 'on: storey 1: every vertical member group is class V, all 6 of the 6 vertical '
             'members logged: grade collapse, beyond Collapse Prevention (a rule of ours, not a '
             'JBDPA grade)'
         ),
@@ -207,8 +207,7 @@ WANT = {
             'crack widths are classed by the JBDPA bounds for reinforced concrete (0.2, 1 and 2 '
             'mm); on members of steel moment frame and unreinforced masonry walls that is an '
             'indication of ours, not a published rule',
-            'tier probabilities: each spot taken as a separate place (independent readings), so '
-            'more spots can lower P(occupy)',
+            INDEPENDENT,
             'tier probabilities: measured parts only (unmeasured parts count as IO)',
         ),
         defaulted=(
@@ -235,8 +234,7 @@ WANT = {
             'crack widths are classed by the JBDPA bounds for reinforced concrete (0.2, 1 and 2 '
             'mm); on members of braced steel frame and timber stud walls that is an indication '
             'of ours, not a published rule',
-            'tier probabilities: each spot taken as a separate place (independent readings), so '
-            'more spots can lower P(occupy)',
+            INDEPENDENT,
             'tier probabilities: measured parts only (unmeasured parts count as IO)',
         ),
         defaulted=(
@@ -276,13 +274,12 @@ WANT = {
             'lateral system, a rule of ours)',
         ),
         notes=(
-            'tier probabilities: each spot taken as a separate place (independent readings), so '
-            'more spots can lower P(occupy)',
+            INDEPENDENT,
         ),
         defaulted=(),
         settled_by=(
-            'no spot or crack width within 3 sd of a threshold could change the tier; it rests '
-            'on: storey 1, x: residual drift 1.5% is over 1.0% (LS) and within 4.0% (CP) for '
+            SETTLED
+            + 'on: storey 1, x: residual drift 1.5% is over 1.0% (LS) and within 4.0% (CP) for '
             'concrete frames (FEMA 356 Table C1-3, from memory)'
         ),
         measure_next=None,
@@ -295,8 +292,7 @@ WANT = {
             'for steel moment frames (FEMA 356 Table C1-3, from memory)',
         ),
         notes=(
-            'tier probabilities: each spot taken as a separate place (independent readings), so '
-            'more spots can lower P(occupy)',
+            INDEPENDENT,
             'tier probabilities: measured parts only (unmeasured parts count as IO)',
         ),
         defaulted=(),
@@ -314,8 +310,7 @@ WANT = {
             'frames (FEMA 356 Table C1-3, from memory)',
         ),
         notes=(
-            'tier probabilities: each spot taken as a separate place (independent readings), so '
-            'more spots can lower P(occupy)',
+            INDEPENDENT,
         ),
         defaulted=(
             'storey 1, column group 3: crack uncertainty 0.05 mm (instrument default, common '
@@ -338,8 +333,7 @@ WANT = {
             'crack widths are classed by the JBDPA bounds for reinforced concrete (0.2, 1 and 2 '
             'mm); on members of frame with unreinforced masonry infill that is an indication of '
             'ours, not a published rule',
-            'tier probabilities: each spot taken as a separate place (independent readings), so '
-            'more spots can lower P(occupy)',
+            INDEPENDENT,
         ),
         defaulted=(),
         settled_by=None,
@@ -358,8 +352,7 @@ WANT = {
             'from construction lean',
         ),
         notes=(
-            'tier probabilities: each spot taken as a separate place (independent readings), so '
-            'more spots can lower P(occupy)',
+            INDEPENDENT,
         ),
         defaulted=(),
         settled_by=None,
@@ -379,8 +372,7 @@ WANT = {
             'decide',
         ),
         notes=(
-            'tier probabilities: each spot taken as a separate place (independent readings), so '
-            'more spots can lower P(occupy)',
+            INDEPENDENT,
         ),
         defaulted=(),
         settled_by=None,
@@ -398,13 +390,12 @@ WANT = {
             'sign that could fall; at least hold',
         ),
         notes=(
-            'tier probabilities: each spot taken as a separate place (independent readings), so '
-            'more spots can lower P(occupy)',
+            INDEPENDENT,
         ),
         defaulted=(),
         settled_by=(
-            'no spot or crack width within 3 sd of a threshold could change the tier; it rests '
-            'on: hazard: collapse at east wing: the building or a storey has come down; the '
+            SETTLED
+            + 'on: hazard: collapse at east wing: the building or a storey has come down; the '
             'structure is beyond CP'
         ),
         measure_next=None,

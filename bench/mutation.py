@@ -4,6 +4,7 @@
     python -m bench.mutation --json           # the same; the last line is one JSON object
     python -m bench.mutation merge edits      # only some groups
     python -m bench.mutation --list           # the groups, their modules and test files
+    python -m bench.mutation merge --rescore /tmp/triage-mutation-XXXX   # a --keep run, again
 
 A benchmark, not a test: CI never runs it. The tool is mutmut (the `mutation` extra). For each
 group it copies the checkout (triage/, tests/, the data folders, pyproject.toml) into a scratch
@@ -16,7 +17,10 @@ Each mutant ends killed (a test failed, or it ran over mutmut's time limit), sur
 test passed), or reached by no test (counted as survived: nothing would notice it). A mutant
 that cannot change behaviour (an equivalent mutant) is listed by hand in
 `bench/mutation_equivalent.toml`, matched by module, function and the changed line, each with
-the reason it is equivalent, and is left out of the score:
+the reason it is equivalent; or it is covered by one of the rules named and reasoned in that
+file (`[[rule]]`) and applied by `bench/mutation_rules.py` (an SQL statement changed only in
+the letter case SQLite does not read). Either way it is left out of the score and still listed
+in the report as equivalent, with its reason:
 
     mutation_score = killed / (all - equivalent)
 
@@ -37,6 +41,8 @@ import time
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
+
+from bench.mutation_rules import RuleBook, check_rules
 
 ROOT = Path(__file__).resolve().parents[1]
 EQUIVALENT = Path(__file__).with_name("mutation_equivalent.toml")
@@ -178,6 +184,14 @@ def _function(name: str) -> str:
     return short.removeprefix("x_")
 
 
+def load_rules(path: Path = EQUIVALENT) -> list[dict[str, str]]:
+    """The equivalence rules named in the file (`[[rule]]`: name, why), each known in code."""
+    if not path.exists():
+        return []
+    rows = tomllib.loads(path.read_text(encoding="utf-8")).get("rule", [])
+    return check_rules(rows, str(path))
+
+
 def load_equivalent(path: Path = EQUIVALENT) -> list[dict[str, str]]:
     """The mutants judged equivalent by hand: module, function, before, after, why."""
     if not path.exists():
@@ -200,22 +214,35 @@ def _is_equivalent(m: dict[str, str], known: list[dict[str, str]]) -> str | None
     return None
 
 
-def run_group(g: Group, base: Path, children: int, known: list[dict[str, str]]) -> Outcome:
-    """Mutate one group's modules and run its tests against each mutant."""
-    work = _scratch(g, base)
+def _env() -> dict[str, str]:
     env = dict(os.environ)
     env.pop("PYTHONPATH", None)
     env.setdefault("HYPOTHESIS_PROFILE", "dev")
+    return env
+
+
+def run_group(g: Group, base: Path, children: int, known: list[dict[str, str]],
+              rules: list[dict[str, str]] | None = None) -> Outcome:
+    """Mutate one group's modules and run its tests against each mutant."""
+    work = _scratch(g, base)
     started = time.perf_counter()
     run = subprocess.run([sys.executable, "-m", "mutmut", "run", "--max-children", str(children)],
-                         cwd=work, env=env, capture_output=True, text=True)
+                         cwd=work, env=_env(), capture_output=True, text=True)
     seconds = time.perf_counter() - started
-    got = subprocess.run([sys.executable, "-c", _RESULTS], cwd=work, env=env,
+    return collect(g.name, work, known, rules, seconds, run.stdout + run.stderr)
+
+
+def collect(name: str, work: Path, known: list[dict[str, str]],
+            rules: list[dict[str, str]] | None = None, seconds: float = 0.0,
+            log: str = "") -> Outcome:
+    """Sort the mutants of a group's scratch folder (after `mutmut run`) by what became of them."""
+    got = subprocess.run([sys.executable, "-c", _RESULTS], cwd=work, env=_env(),
                          capture_output=True, text=True)
     if got.returncode != 0 or not got.stdout.strip():
-        tail = (run.stdout + run.stderr)[-3000:] + got.stderr[-2000:]
-        raise SystemExit(f"mutation: group {g.name}: mutmut gave no results:\n{tail}")
-    out = Outcome(g.name, seconds=round(seconds, 1))
+        tail = log[-3000:] + got.stderr[-2000:]
+        raise SystemExit(f"mutation: group {name}: mutmut gave no results:\n{tail}")
+    out = Outcome(name, seconds=round(seconds, 1))
+    book = RuleBook(rules or [])
     for m in json.loads(got.stdout.splitlines()[-1]):
         status = m["status"]
         if status in ("killed", "timeout"):
@@ -224,6 +251,8 @@ def run_group(g: Group, base: Path, children: int, known: list[dict[str, str]]) 
         if status in ("survived", "no tests"):
             row = {"name": m["name"], "status": status, "diff": m["diff"]}
             why = _is_equivalent(m, known)
+            if why is None:
+                why = book.why(work / "mutants" / m["path"], m["name"])
             if why is not None:
                 out.equivalent.append({**row, "why": why})
             else:
@@ -240,6 +269,11 @@ def _print_group(o: Outcome) -> None:
           + (f"  other {o.other}" if o.other else ""), flush=True)
 
 
+def _short(why: str) -> str:
+    """A rule's reason as its name (the report prints each rule's reason once)."""
+    return why.partition(":")[0] if why.startswith("rule ") else why
+
+
 def main(argv: list[str] | None = None) -> int:
     """Run the chosen groups and print their scores and survivors."""
     ap = argparse.ArgumentParser(prog="python -m bench.mutation", description=__doc__.split(
@@ -249,6 +283,9 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--list", action="store_true", help="list the groups and stop")
     ap.add_argument("--children", type=int, default=2, help="mutants run at once (2)")
     ap.add_argument("--keep", action="store_true", help="keep the scratch folders")
+    ap.add_argument("--rescore", metavar="DIR", type=Path,
+                    help="run nothing: sort again the mutants of a folder kept by --keep "
+                         "(after listing equivalents)")
     args = ap.parse_args(argv)
     by_name = {g.name: g for g in GROUPS}
     if args.list:
@@ -260,23 +297,38 @@ def main(argv: list[str] | None = None) -> int:
         ap.error(f"unknown group {', '.join(unknown)}; groups: {', '.join(by_name)}")
     chosen = [by_name[n] for n in args.groups] if args.groups else GROUPS
     known = load_equivalent()
-    base = Path(tempfile.mkdtemp(prefix="triage-mutation-"))
+    rules = load_rules()
     outcomes = []
-    try:
+    if args.rescore is not None:
         for g in chosen:
-            o = run_group(g, base, args.children, known)
-            _print_group(o)
-            outcomes.append(o)
-    finally:
-        if args.keep:
-            print(f"scratch folders kept in {base}")
-        else:
-            shutil.rmtree(base, ignore_errors=True)
+            if (args.rescore / g.name / "mutants").is_dir():
+                outcomes.append(collect(g.name, args.rescore / g.name, known, rules))
+                _print_group(outcomes[-1])
+        if not outcomes:
+            ap.error(f"{args.rescore}: no kept group folder with mutmut's results")
+    else:
+        base = Path(tempfile.mkdtemp(prefix="triage-mutation-"))
+        try:
+            for g in chosen:
+                o = run_group(g, base, args.children, known, rules)
+                _print_group(o)
+                outcomes.append(o)
+        finally:
+            if args.keep:
+                print(f"scratch folders kept in {base}")
+            else:
+                shutil.rmtree(base, ignore_errors=True)
     killed = sum(o.killed for o in outcomes)
     counted = sum(o.counted for o in outcomes)
     score = killed / counted if counted else 0.0
     print(f"\nmutation_score {score:.3f}  (killed {killed} of {counted}; "
           f"{sum(len(o.equivalent) for o in outcomes)} equivalent left out; aim >= 0.85)")
+    for r in rules:
+        print(f"\nrule {r['name']}: {r['why']}")
+    for o in outcomes:
+        for e in o.equivalent:
+            print(f"# {o.group}: {e['name']} equivalent ({_short(e['why'])}): "
+                  f"{_changed(e['diff'])[1]}")
     for o in outcomes:
         for s in o.survived:
             print(f"\n# {o.group}: {s['name']} ({s['status']})\n{s['diff'].rstrip()}")
@@ -287,8 +339,11 @@ def main(argv: list[str] | None = None) -> int:
                                  "equivalent": len(o.equivalent), "other": o.other,
                                  "score": round(o.killed / o.counted, 4) if o.counted else None,
                                  "seconds": o.seconds,
-                                 "survivors": [s["name"] for s in o.survived]}
-                       for o in outcomes}}))
+                                 "survivors": [s["name"] for s in o.survived],
+                                 "equivalents": {e["name"]: _short(e["why"])
+                                                 for e in o.equivalent}}
+                       for o in outcomes},
+            "rules": {r["name"]: r["why"] for r in rules}}))
     return 0
 
 

@@ -80,7 +80,7 @@ GROUPS = [
     Group("merge", ("triage/store/merge.py",),
           ("tests/store/test_merge.py", "tests/store/test_merge_cases.py",
            "tests/store/test_merge_retractions.py", "tests/store/test_merge_failures.py",
-           "tests/store/test_merge_copies.py")),
+           "tests/store/test_merge_copies.py", "tests/store/test_merge_sources.py")),
     Group("edits", ("triage/store/edits.py",),
           ("tests/store/test_edits.py", "tests/store/test_write_path.py",
            "tests/unit/test_limits.py", "tests/unit/test_model_rules.py")),

@@ -158,3 +158,21 @@ def test_the_conflict_id_is_uuid5_of_the_survey_and_the_texts_digest():
     assert one == conflict_id(sid, '{"a": 1}') and one != other
     assert uuid.UUID(one).version == 5
     assert conflict_id(sid, "Kōwhai") != conflict_id(sid, "Kowhai")
+
+
+def test_a_copy_coming_back_from_a_laptop_is_counted_unchanged(tmp_path: Path):
+    lap, area = tmp_path / "lap.db", tmp_path / "area.db"
+    (sid,) = laptop(lap, "Clinic")
+    with Store.open(area) as st:
+        merge_into(st, [lap])
+        st.set_value(sid, OFFSET, 5.0)              # the area's edit
+    with Store.open(lap, who="lap") as st:
+        st.set_value(sid, OFFSET, 9.0)              # the laptop's edit
+        (r,) = merge_into(st, [area])                # the laptop keeps the area's 5 mm copy
+        assert _counts(r) == (0, 0, 0, 1)
+    with Store.open(area) as st:
+        (r,) = merge_into(st, [lap])                 # that copy is the area's own text
+        assert _counts(r) == (0, 0, 1, 1)            # it counts as unchanged, not added
+        (r,) = merge_into(st, [lap])
+        assert _counts(r) == (0, 0, 2, 0)            # the original and the copy, both known
+        assert len(st.list_surveys()) == 2

@@ -6,7 +6,7 @@ from __future__ import annotations
 import uuid
 from pathlib import Path
 
-from tests.store.conftest import laptop
+from tests.store.conftest import fetch, laptop
 from triage.store import Store
 from triage.store.merge import MergeResult, conflict_id, merge_into
 
@@ -39,6 +39,9 @@ def _with_a_copy(tmp_path: Path) -> tuple[Path, Path, str, str]:
 
 def test_merging_the_conflicts_source_again_reports_it_unchanged(tmp_path: Path):
     lap, centre, sid, cid = _with_a_copy(tmp_path)
+    # the id the centre gives the same version too (docs/centre.md, Conflicts)
+    (lap_doc,) = fetch(lap, "SELECT doc FROM surveys WHERE id = ?", sid)
+    assert cid == conflict_id(sid, str(lap_doc[0]))
     with Store.open(centre) as st:
         before = st.survey_row(cid)
         (r,) = merge_into(st, [lap])
@@ -176,3 +179,23 @@ def test_a_copy_coming_back_from_a_laptop_is_counted_unchanged(tmp_path: Path):
         (r,) = merge_into(st, [lap])
         assert _counts(r) == (0, 0, 2, 0)            # the original and the copy, both known
         assert len(st.list_surveys()) == 2
+
+
+def test_the_same_text_from_a_second_laptop_joins_the_copy_kept_of_it(tmp_path: Path):
+    a, b, centre = tmp_path / "ana.db", tmp_path / "ben.db", tmp_path / "centre.db"
+    (sid,) = laptop(a, "Clinic")
+    laptop(b, "Clinic")
+    with Store.open(centre) as st:
+        merge_into(st, [a])
+        st.set_value(sid, "storeys[0].notes", "centre note")
+    for lap in (a, b):
+        with Store.open(lap, who=lap.stem) as st:
+            st.set_value(sid, OFFSET, 30.0)          # both laptops type the same 30 mm
+    with Store.open(centre) as st:
+        ra, rb = merge_into(st, [a, b])
+        assert (_counts(ra), _counts(rb)) == ((0, 0, 0, 1), (0, 0, 1, 0))
+        (cid,) = [x.id for x in st.list_surveys() if x.id != sid]
+        assert sorted(c.who for c in st.change_log(cid) if c.op == "set") == ["ana", "ben"]
+        n = len(st.change_log(cid))
+        assert [_counts(r) for r in merge_into(st, [a, b])] == [(0, 0, 1, 0)] * 2
+        assert len(st.change_log(cid)) == n

@@ -1,11 +1,14 @@
 """Merge reads its sources without changing them: an older schema through an upgraded copy,
-a source with a -wal beside it through a copy of both, and names where each survey came from.
+a source with a -wal or -journal beside it through a copy of both, and names where each survey
+came from.
 """
 
 from __future__ import annotations
 
 import hashlib
 import sqlite3
+import subprocess
+import sys
 from pathlib import Path
 
 import pytest
@@ -119,3 +122,32 @@ def test_a_source_without_a_database_id_merges_with_none_recorded(tmp_path: Path
         assert (r.skipped, r.added) == (None, 1)
         assert st.conn.execute("SELECT source, source_db FROM surveys WHERE id = ?",
                                (sid,)).fetchone() == (str(src.resolve()), None)
+
+
+_CRASH = """
+import os, sqlite3, sys
+c = sqlite3.connect(sys.argv[1], isolation_level=None)
+c.execute("PRAGMA cache_size = 1")       # pages spill to the file before the commit
+c.execute("BEGIN")
+c.execute("UPDATE surveys SET building = 'HALF WRITTEN'")
+os._exit(0)                              # a power cut: the -journal stays hot
+"""
+
+
+def test_a_source_with_a_hot_journal_never_brings_its_half_written_pages(tmp_path: Path):
+    src, centre = tmp_path / "lap.db", tmp_path / "centre.db"
+    laptop(src, *(f"Building {i}" for i in range(12)))
+    c = sqlite3.connect(src)
+    c.execute("PRAGMA journal_mode = DELETE")   # a file left in rollback-journal mode
+    c.close()
+    subprocess.run([sys.executable, "-c", _CRASH, str(src)], check=True)
+    assert (tmp_path / "lap.db-journal").stat().st_size > 0
+    before = _files(tmp_path)
+    with Store.open(centre) as st:
+        r = merge_source(st, src)
+        # Read in place (immutable), the file says 'HALF WRITTEN' in every row. Its copy with
+        # the journal cannot be rolled back through a read-only connection: skipped, for now.
+        assert (r.added, st.list_surveys()) == (0, [])
+        assert r.skipped is not None and "HALF" not in r.skipped
+    after = {k: v for k, v in _files(tmp_path).items() if not k.startswith("centre.db")}
+    assert after == before                       # the journal is not replayed into the source

@@ -5,7 +5,6 @@
     python -m bench.mutation merge edits      # only some groups
     python -m bench.mutation --list           # the groups, their modules and test files
     python -m bench.mutation merge --rescore /tmp/triage-mutation-XXXX   # a --keep run, again
-    python -m bench.mutation merge --again /tmp/triage-mutation-XXXX     # its survivors, again
 
 A benchmark, not a test: CI never runs it. The tool is mutmut (the `mutation` extra). For each
 group it copies the checkout (triage/, tests/, the data folders, pyproject.toml) into a scratch
@@ -234,33 +233,6 @@ def run_group(g: Group, base: Path, children: int, known: list[dict[str, str]],
     return collect(g.name, work, known, rules, seconds, run.stdout + run.stderr)
 
 
-def run_again(g: Group, work: Path, children: int, known: list[dict[str, str]],
-               rules: list[dict[str, str]] | None = None) -> Outcome:
-    """Run a kept group's survivors again against today's tests (the killed stay killed).
-
-    Tests are only added or made stricter, so a mutant killed before is killed still; the
-    mutated modules must be as they were (else the kept mutants are not today's code's).
-    """
-    for m in g.modules:
-        if (work / m).read_bytes() != (ROOT / m).read_bytes():
-            raise SystemExit(f"mutation: group {g.name}: {m} changed since the kept run; "
-                             "run the group afresh")
-    names = [s["name"] for s in collect(g.name, work, known, rules).survived]
-    shutil.rmtree(work / "tests")
-    shutil.copytree(ROOT / "tests", work / "tests",
-                    ignore=shutil.ignore_patterns("__pycache__", "*.pyc", "__snapshots__",
-                                                  ".hypothesis"))
-    (work / "setup.cfg").write_text(_mutmut_config(g), encoding="utf-8")
-    started = time.perf_counter()
-    log = ""
-    if names:
-        run = subprocess.run([sys.executable, "-m", "mutmut", "run", "--max-children",
-                              str(children), *names],
-                             cwd=work, env=_env(), capture_output=True, text=True)
-        log = run.stdout + run.stderr
-    return collect(g.name, work, known, rules, time.perf_counter() - started, log)
-
-
 def collect(name: str, work: Path, known: list[dict[str, str]],
             rules: list[dict[str, str]] | None = None, seconds: float = 0.0,
             log: str = "") -> Outcome:
@@ -312,9 +284,6 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--list", action="store_true", help="list the groups and stop")
     ap.add_argument("--children", type=int, default=2, help="mutants run at once (2)")
     ap.add_argument("--keep", action="store_true", help="keep the scratch folders")
-    ap.add_argument("--again", metavar="DIR", type=Path,
-                    help="in a folder kept by --keep, run only the survivors again, against "
-                         "today's tests (the mutated modules unchanged)")
     ap.add_argument("--rescore", metavar="DIR", type=Path,
                     help="run nothing: sort again the mutants of a folder kept by --keep "
                          "(after listing equivalents)")
@@ -331,12 +300,11 @@ def main(argv: list[str] | None = None) -> int:
     known = load_equivalent()
     rules = load_rules()
     outcomes = []
-    kept = args.again or args.rescore
+    kept = args.rescore
     if kept is not None:
         for g in chosen:
             if (kept / g.name / "mutants").is_dir():
-                outcomes.append(run_again(g, kept / g.name, args.children, known, rules)
-                                if args.again else collect(g.name, kept / g.name, known, rules))
+                outcomes.append(collect(g.name, kept / g.name, known, rules))
                 _print_group(outcomes[-1])
         if not outcomes:
             ap.error(f"{kept}: no kept group folder with mutmut's results")

@@ -381,9 +381,10 @@ def apply(doc: dict[str, Any], op: str, path: str, value: Any, *,
     else:
         raise EditRefused(f"{op}: not an edit (set, add, remove)")
     out = validate_applied(applied)
-    new_value = applied.new
-    if applied.op in ("set", "add") and new_value is not None:
-        # Log the value as validated (normalised), not as typed.
+    new_value = None   # a removal leaves no new value
+    if applied.op in ("set", "add"):
+        # Log the value as validated (normalised), not as typed: a field set to null that has
+        # a default holds its default now, as the short way (`apply_field`) logs it too.
         t = parse_path(applied.path)
         try:
             new_value = _get(out, t)

@@ -5,7 +5,7 @@ from __future__ import annotations
 import random
 import sys
 from collections.abc import Callable
-from datetime import datetime, timedelta, timezone
+from datetime import UTC, datetime, timedelta, timezone
 from pathlib import Path
 from typing import Any
 
@@ -19,6 +19,8 @@ from triage.model import parse_survey
 from triage.store import Store
 from triage.ui.app import TriageApp, build_app
 
+SID = "11111111-1111-4111-8111-111111111111"  # Harbour Bakery: a concrete frame, measured
+URM = "22222222-2222-4222-8222-222222222222"  # Old Post Office: masonry walls, no members
 KOWHAI = timezone(timedelta(hours=13))
 NOW = datetime(2026, 11, 29, 10, 30, tzinfo=KOWHAI)
 
@@ -38,11 +40,11 @@ def two_surveys() -> list[dict[str, Any]]:
     """Two invented Kōwhai Bay buildings, one measured, one not."""
     a = survey_dict([storey("G", [reading("x", 2.0), reading("y", 3.0)]),
                      storey("1", [reading("x", 1.0)])], name="Harbour Bakery")
-    a["id"] = "11111111-1111-4111-8111-111111111111"
+    a["id"] = SID
     a["building"]["address"] = "5 Quay Road, Kōwhai Bay"
     b = survey_dict([storey("G", [], members=[]), storey("1", [], members=[])],
                     sx="urm_wall", sy="urm_wall", name="Old Post Office")
-    b["id"] = "22222222-2222-4222-8222-222222222222"
+    b["id"] = URM
     b["building"]["address"] = "1 Main Street, Kōwhai Bay"
     b["inspection"]["at"] = "2026-11-29T08:15:00+13:00"
     return [a, b]
@@ -52,7 +54,7 @@ def two_surveys() -> list[dict[str, Any]]:
 def db(tmp_path: Path) -> Path:
     """A database holding the two surveys."""
     path = tmp_path / "field.db"
-    with Store.open(path, clock=lambda: NOW.astimezone(timezone.utc)) as st:
+    with Store.open(path, clock=lambda: NOW.astimezone(UTC)) as st:
         for d in two_surveys():
             st.add_survey(parse_survey(d), "Tess Tester", "test")
         st.settings_set("last_inspector_name", "Tess Tester")

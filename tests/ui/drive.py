@@ -2,9 +2,13 @@
 
 from __future__ import annotations
 
+from collections.abc import AsyncIterator
+from contextlib import asynccontextmanager
 from typing import Any
 
+from textual.app import App
 from textual.pilot import Pilot
+from textual.widget import Widget
 
 from triage.ui.widgets.field import Choice, Field
 
@@ -17,6 +21,29 @@ async def settle(pilot: Pilot[Any]) -> None:
     if pilot.app.workers:  # a worker started by what the last one finished (the database)
         await pilot.app.workers.wait_for_complete()
         await pilot.pause()
+
+
+@asynccontextmanager
+async def started(app: App[Any], size: tuple[int, int] = (80, 24)) -> AsyncIterator[Pilot[Any]]:
+    """The app run headless at `size` (80×24 unless said), settled once it has started."""
+    async with app.run_test(size=size) as pilot:
+        await settle(pilot)
+        yield pilot
+
+
+async def press(pilot: Pilot[Any], *keys: str) -> None:
+    """Press keys, then let the app settle."""
+    await pilot.press(*keys)
+    await settle(pilot)
+
+
+async def open_tab(pilot: Pilot[Any], key: str, wid: str) -> Any:
+    """Press a tab's key (f5 storey ... f10 building) and settle: the widget `#wid` in view.
+
+    `wid` is usually the tab's pane ("readings-pane", "members-pane", "photos-pane").
+    """
+    await press(pilot, key)
+    return pilot.app.screen.query_one(f"#{wid}", Widget)
 
 
 def field(pilot: Pilot[Any], fid: str) -> Field:

@@ -11,17 +11,15 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-from drive import settle, type_in
+from drive import press, started, type_in
 
 from triage.ui.app import build_app
 
 
 async def main(db: str, sid: str) -> None:
     app = build_app(Path(db), open_survey=sid, blink=False)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f5")
-        await settle(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "f5")
         f = await type_in(pilot, "s-height", "3.9")
         if f.status_text.startswith("✓ saved"):
             print("SHOWN SAVED", flush=True)

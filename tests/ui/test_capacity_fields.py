@@ -8,14 +8,13 @@ import re
 from pathlib import Path
 from typing import Any
 
-from drive import pick, settle, type_in
+from conftest import SID, URM  # a concrete frame; masonry walls, no members yet
+from drive import open_tab, pick, settle, started, type_in
 
 from triage.model import parse_survey
 from triage.store import Store
 from triage.ui.app import TriageApp
 
-RC = "11111111-1111-4111-8111-111111111111"   # concrete frame (conftest)
-URM = "22222222-2222-4222-8222-222222222222"  # unreinforced masonry walls, no members yet
 STEEL = "33333333-3333-4333-8333-333333333333"
 KEY = re.compile(r"\b[a-z]+_[a-z_]+\b|\w+\[\d+\]")
 CAPACITY = ("inspected", "connection_type", "mode", "severity")
@@ -31,13 +30,6 @@ def _add_steel(db: Path, sid: str = STEEL, sx: str = "steel_moment_frame",
     d["building"]["address"] = "9 Wharf Road, Kōwhai Bay"
     with Store.open(db) as st:
         st.add_survey(parse_survey(d), "Tess Tester", "test")
-
-
-async def _members(pilot: Any) -> Any:
-    await settle(pilot)
-    await pilot.press("f7")
-    await settle(pilot)
-    return pilot.app.screen.query_one("#members-pane")
 
 
 def _shown(pane: Any) -> set[str]:
@@ -56,8 +48,8 @@ def _stored(db: Path, sid: str) -> Any:
 
 async def test_walls_of_masonry_take_mode_and_severity_in_words(db: Path, make_app) -> None:
     app: TriageApp = make_app(db, open_survey=URM)
-    async with app.run_test(size=(80, 24)) as pilot:
-        pane = await _members(pilot)
+    async with started(app) as pilot:
+        pane = await open_tab(pilot, "f7", "members-pane")
         await pick(pilot, "m-kind", "wall")
         assert _shown(pane) == {"inspected", "mode", "severity"}
         modes = _texts(pane.form["mode"])
@@ -100,12 +92,13 @@ async def test_walls_of_masonry_take_mode_and_severity_in_words(db: Path, make_a
 async def test_connections_of_a_steel_moment_frame_take_a_type(db: Path, make_app) -> None:
     _add_steel(db)
     app: TriageApp = make_app(db, open_survey=STEEL)
-    async with app.run_test(size=(80, 24)) as pilot:
-        pane = await _members(pilot)
+    async with started(app) as pilot:
+        pane = await open_tab(pilot, "f7", "members-pane")
         await pick(pilot, "m-kind", "connection")
         assert _shown(pane) == {"inspected", "connection_type"}
         types = _texts(pane.form["connection_type"])
-        assert types[0] == "G1 (girder)" and "W1a (weld)" in types and len(types) == 35  # G1-8, C1-7, P1-9, S1-5, W1a, W1b, W2-5
+        # G1-8, C1-7, P1-9, S1-5, W1a, W1b, W2-5
+        assert types[0] == "G1 (girder)" and "W1a (weld)" in types and len(types) == 35
         assert not any(KEY.search(t) for t in types)
         hint = str(pane.capacity_line.render())
         assert "FEMA 352 damage type blank" in hint and "G4 (girder)" in hint
@@ -122,9 +115,9 @@ async def test_connections_of_a_steel_moment_frame_take_a_type(db: Path, make_ap
 
 
 async def test_a_concrete_frame_asks_for_none_of_them(db: Path, make_app) -> None:
-    app: TriageApp = make_app(db, open_survey=RC)
-    async with app.run_test(size=(80, 24)) as pilot:
-        pane = await _members(pilot)
+    app: TriageApp = make_app(db, open_survey=SID)
+    async with started(app) as pilot:
+        pane = await open_tab(pilot, "f7", "members-pane")
         for kind in ("column", "wall", "connection", "infill"):
             await pick(pilot, "m-kind", kind)
             assert _shown(pane) == set(), kind
@@ -137,8 +130,8 @@ INFILL = "44444444-4444-4444-8444-444444444444"
 async def test_each_kind_offers_its_own_modes(db: Path, make_app) -> None:
     _add_steel(db, INFILL, "urm_infill", "urm_infill")
     app: TriageApp = make_app(db, open_survey=INFILL)
-    async with app.run_test(size=(80, 24)) as pilot:
-        pane = await _members(pilot)
+    async with started(app) as pilot:
+        pane = await open_tab(pilot, "f7", "members-pane")
         await pick(pilot, "m-kind", "wall")   # a masonry pier of the frame
         assert "rocking" in _texts(pane.form["mode"])
         await pick(pilot, "m-mode", "diagonal_tension")

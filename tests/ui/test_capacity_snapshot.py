@@ -9,16 +9,14 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from drive import pick, settle, type_in
-
-URM = "22222222-2222-4222-8222-222222222222"
+from conftest import URM
+from drive import pick, press, settle, type_in
 
 
 def test_wall_group_with_mode_and_severity(db: Path, make_app, snap_compare) -> None:
     async def before(pilot) -> None:
         await settle(pilot)
-        await pilot.press("f7")
-        await settle(pilot)
+        await press(pilot, "f7")
         await pick(pilot, "m-kind", "wall")
         await type_in(pilot, "m-count", "4", enter=False)
         await pick(pilot, "m-mode", "diagonal_tension")

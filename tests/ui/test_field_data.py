@@ -9,12 +9,11 @@ import shutil
 from pathlib import Path
 
 import pytest
+from conftest import SID
 
 from triage.resources import samples_dir
 from triage.store import Store
 from triage.ui.data import FieldData, Refused, now_local, rule_of, said
-
-SID = "11111111-1111-4111-8111-111111111111"
 
 
 @pytest.fixture

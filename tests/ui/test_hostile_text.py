@@ -11,7 +11,7 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-from drive import settle, type_in
+from drive import open_tab, press, started, type_in
 from helpers import reading, storey, survey_dict
 
 from triage.model import parse_survey
@@ -52,53 +52,39 @@ async def test_hostile_names_are_shown_as_escapes_on_every_screen(tmp_path: Path
                                                                   make_app) -> None:
     db = _hostile(tmp_path / "hostile.db")
     app = make_app(db)
-    async with app.run_test(size=(160, 50)) as pilot:
-        await settle(pilot)
+    async with started(app, (160, 50)) as pilot:
         svg = _clean(app, "list")
         assert "Bakery \\u001b[2J" in svg   # the column cuts the rest
-        await pilot.press("enter")
-        await settle(pilot)
+        await press(pilot, "enter")
         svg = _clean(app, "survey")
         # the override and the markup shown, not applied
         assert "\\u0007\\u202eyppucco [bold]x[/]" in svg
         for key in ("f5", "f6", "f7", "f8", "f9", "f10"):
-            await pilot.press(key)
-            await settle(pilot)
+            await press(pilot, key)
             svg = _clean(app, key)
-        await pilot.press("f2")
-        await settle(pilot)
+        await press(pilot, "f2")
         _clean(app, "verdict")
-        await pilot.press("escape")
-        await settle(pilot)
-        await pilot.press("pageup")  # storey 1<ESC>...: its label in headings and lists
-        await settle(pilot)
+        await press(pilot, "escape")
+        await press(pilot, "pageup")  # storey 1<ESC>...: its label in headings and lists
         svg = _clean(app, "storey 1")
         assert "1\\u001b[2J" in svg
-        await pilot.press("f3")
-        await settle(pilot)
+        await press(pilot, "f3")
         _clean(app, "history")
-        await pilot.press("escape")
-        await settle(pilot)
-        await pilot.press("f4")
-        await settle(pilot)
+        await press(pilot, "escape")
+        await press(pilot, "f4")
         _clean(app, "report")
-        await pilot.press("f1")
-        await settle(pilot)
+        await press(pilot, "f1")
         _clean(app, "help")
 
 
 async def test_an_unchanged_hostile_field_is_not_saved_over(tmp_path: Path, make_app) -> None:
     db = _hostile(tmp_path / "hostile.db")
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f10")
-        await settle(pilot)
-        name = app.screen.query_one("#v-name")
+    async with started(app) as pilot:
+        name = await open_tab(pilot, "f10", "v-name")
         assert name.text.startswith("Bakery \\u001b[2J")
         name.focus_input()
-        await pilot.press("tab")  # leave the field unchanged: nothing is saved
-        await settle(pilot)
+        await press(pilot, "tab")  # leave the field unchanged: nothing is saved
         await type_in(pilot, "v-use", "bakery")  # another field saved
     with Store.open(db) as st:
         s = st.load_survey(SID)

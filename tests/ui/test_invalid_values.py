@@ -5,11 +5,10 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from drive import settle, type_in
+from conftest import SID
+from drive import open_tab, press, started, type_in
 
 from triage.store import Store
-
-SID = "11111111-1111-4111-8111-111111111111"
 
 
 def snapshot_db(db: Path) -> tuple[int, str, int]:
@@ -20,10 +19,8 @@ def snapshot_db(db: Path) -> tuple[int, str, int]:
 async def test_negative_height_is_refused(db: Path, make_app) -> None:
     before = snapshot_db(db)
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f5")
-        await settle(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "f5")
         f = await type_in(pilot, "s-height", "-3")
         assert f.status_text.startswith("✗ not saved")
         assert "greater than 0" in f.status_text
@@ -33,14 +30,10 @@ async def test_negative_height_is_refused(db: Path, make_app) -> None:
 
 async def test_crack_of_500_mm_is_refused(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f7")
-        await settle(pilot)
-        pane = app.screen.query_one("#members-pane")
+    async with started(app) as pilot:
+        pane = await open_tab(pilot, "f7", "members-pane")
         pane.table.focus()
-        await pilot.press("enter")  # edit the storey's group of 12 columns
-        await settle(pilot)
+        await press(pilot, "enter")  # edit the storey's group of 12 columns
         assert pane.editing == 0
         before = snapshot_db(db)
         f = await type_in(pilot, "m-crack", "500")
@@ -57,8 +50,7 @@ async def test_crack_of_500_mm_is_refused(db: Path, make_app) -> None:
 async def test_letters_in_a_number_field(db: Path, make_app) -> None:
     before = snapshot_db(db)
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         f = await type_in(pilot, "r-offset", "abc", enter=False)
         await type_in(pilot, "r-gauge", "2000")
         pane = app.screen.query_one("#readings-pane")
@@ -66,8 +58,7 @@ async def test_letters_in_a_number_field(db: Path, make_app) -> None:
         assert len(pane.items()) == 2  # no reading added
         # in an existing reading, too
         pane.table.focus()
-        await pilot.press("enter")
-        await settle(pilot)
+        await press(pilot, "enter")
         f = await type_in(pilot, "r-offset", "2,5x")
         assert "✗ not saved: must be a number in mm" in f.status_text
     assert snapshot_db(db) == before
@@ -76,16 +67,13 @@ async def test_letters_in_a_number_field(db: Path, make_app) -> None:
 async def test_new_survey_with_no_storeys_is_not_created(db: Path, make_app) -> None:
     before = snapshot_db(db)
     app = make_app(db)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("ctrl+n")
-        await settle(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "ctrl+n")
         await type_in(pilot, "f-name", "Tide Gauge Hut")
         await type_in(pilot, "f-address", "Breakwater, Kowhai Bay")
         f = await type_in(pilot, "f-above", "0")
         await type_in(pilot, "f-height", "-2")
-        await pilot.press("ctrl+s")
-        await settle(pilot)
+        await press(pilot, "ctrl+s")
         assert "at least one storey above ground" in f.status_text
         assert "not created" in str(app.screen.query_one("#new-status").render())
     with Store.open(db, refresh=False) as st:

@@ -8,19 +8,16 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from drive import burst, field, settle
+from conftest import SID
+from drive import burst, field, press, settle, started
 
 from triage.store import Store
-
-SID = "11111111-1111-4111-8111-111111111111"
 
 
 async def test_name_tab_id_typed_without_pause(db: Path, make_app) -> None:
     app = make_app(db)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("ctrl+n")
-        await settle(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "ctrl+n")
         field(pilot, "f-inspector").input.value = ""
         field(pilot, "f-inspector-id").input.value = ""
         field(pilot, "f-inspector").focus_input()
@@ -32,8 +29,7 @@ async def test_name_tab_id_typed_without_pause(db: Path, make_app) -> None:
 
 async def test_readings_typed_ahead_each_land_in_their_field(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         scr = app.screen
         before = len(scr.survey.storeys[0].readings)
         field(pilot, "r-offset").focus_input()
@@ -50,8 +46,7 @@ async def test_readings_typed_ahead_each_land_in_their_field(db: Path, make_app)
 
 async def test_down_after_ticking_a_sign_moves_on(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         await burst(pilot, "<f7>")
         pane = app.screen.query_one("#members-pane")
         # edit the group in the table (Enter on its row), then go to the sign list
@@ -72,8 +67,7 @@ async def test_down_after_ticking_a_sign_moves_on(db: Path, make_app) -> None:
 
 async def test_enter_on_a_row_then_typing_goes_to_its_form(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         pane = app.screen.query_one("#readings-pane")
         pane.table.focus()
         pane.table.move_cursor(row=0)
@@ -88,8 +82,7 @@ async def test_enter_on_a_row_then_typing_goes_to_its_form(db: Path, make_app) -
 
 async def test_f_key_then_typing_goes_to_the_new_tab(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         # the cursor on the kind: a letter picks it, Tab goes on to the count
         await burst(pilot, "<f7>", "w", "<tab>", "3", "<enter>")
         pane = app.screen.query_one("#members-pane")
@@ -102,8 +95,7 @@ async def test_f_key_then_typing_goes_to_the_new_tab(db: Path, make_app) -> None
 
 async def test_open_from_the_list_then_typing(db: Path, make_app) -> None:
     app = make_app(db)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         # the list starts on the newest survey; Down to the other, open, type a reading
         await burst(pilot, "Bakery", "<enter>", "5", "<tab>", "<tab>", "2000", "<enter>")
         assert app.screen.survey_id == SID
@@ -116,8 +108,7 @@ async def test_paste_lands_in_order(db: Path, make_app) -> None:
     from textual import events
 
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         before = len(app.screen.survey.storeys[0].readings)
         field(pilot, "r-offset").focus_input()
         await settle(pilot)

@@ -8,11 +8,11 @@ import subprocess
 import sys
 from pathlib import Path
 
-from drive import settle
+from conftest import SID
+from drive import started
 
 from triage.store import Store
 
-SID = "11111111-1111-4111-8111-111111111111"
 DRIVER = Path(__file__).with_name("kill_driver.py")
 
 
@@ -44,7 +44,6 @@ async def test_sigkill_after_shown_saved(db: Path, make_app) -> None:
         edits = [(c.op, c.path, c.new) for c in st.change_log(SID) if c.op != "import"]
         assert edits == [("set", "storeys[0].height_m", 3.9)], edits
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app):
         assert app.screen.query_one("#s-height").text == "3.9"
         assert app.screen.query_one("#s-notes").text == ""

@@ -9,11 +9,10 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from drive import burst, settle
+from conftest import SID, URM
+from drive import burst, settle, started
 
 from triage.store import Store
-
-SID = "11111111-1111-4111-8111-111111111111"
 
 
 async def _open_pick(pilot, select, index: int) -> None:
@@ -32,8 +31,7 @@ async def test_a_pick_then_a_storey_key_picks_from_the_list_it_was_made_in(
     with Store.open(db, refresh=False) as st:  # storey G: three owners; storey 1: two
         st.add_item(SID, "storeys[0].members", {"kind": "beam", "count": 4}, "Tess Tester")
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         await burst(pilot, "<f9>")
         pane = app.screen.query_one("#photos-pane")
         of = pane.of.select
@@ -50,10 +48,8 @@ async def test_a_pick_then_a_storey_key_picks_from_the_list_it_was_made_in(
 
 async def test_a_kind_picked_with_enter_offers_its_signs_to_the_keys_typed_after(
         db: Path, make_app) -> None:
-    urm = "22222222-2222-4222-8222-222222222222"   # masonry walls: a wall's signs differ
-    app = make_app(db, open_survey=urm)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    app = make_app(db, open_survey=URM)   # masonry walls: a wall's signs differ
+    async with started(app) as pilot:
         await burst(pilot, "<f7>")
         pane = app.screen.query_one("#members-pane")
         kind = pane.form["kind"].select
@@ -63,15 +59,14 @@ async def test_a_kind_picked_with_enter_offers_its_signs_to_the_keys_typed_after
         # in the wall's list, so that list must be there when the o is taken
         await burst(pilot, "<enter>", "<tab>", "2", "<tab>", "o", "<space>", "<enter>")
     with Store.open(db, refresh=False) as st:
-        m = st.load_survey(urm).storeys[0].members[-1]
+        m = st.load_survey(URM).storeys[0].members[-1]
     assert (m.kind, m.count, list(m.signs)) == ("wall", 2, ["out_of_plane"])
 
 
 async def test_a_change_undone_right_after_down_shows_the_highlighted_change(
         db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         for offset in ("4.5", "5.5"):
             app.screen.query_one("#r-offset").focus_input()
             await settle(pilot)

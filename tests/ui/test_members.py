@@ -5,19 +5,16 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from drive import pick, settle, type_in
+from conftest import SID
+from drive import pick, press, settle, started, type_in
 
 from triage.store import Store
-
-SID = "11111111-1111-4111-8111-111111111111"
 
 
 async def test_group_class_eta_signs_override(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f7")
-        await settle(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "f7")
         scr = app.screen
         pane = scr.query_one("#members-pane")
         # the check list offers the concrete column signs of the rc_frame form
@@ -34,8 +31,7 @@ async def test_group_class_eta_signs_override(db: Path, make_app) -> None:
         # edit it: tick a sign, which is saved at once
         pane.table.move_cursor(row=1)
         pane.table.focus()
-        await pilot.press("enter")
-        await settle(pilot)
+        await press(pilot, "enter")
         assert pane.editing == 1
         pane.signs.checks.select("bar_exposed")
         await settle(pilot)

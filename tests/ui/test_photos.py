@@ -6,12 +6,11 @@ from __future__ import annotations
 import io
 from pathlib import Path
 
-from drive import pick, settle, type_in
+from conftest import SID
+from drive import open_tab, pick, press, started, type_in
 from PIL import Image
 
 from triage.store import Store
-
-SID = "11111111-1111-4111-8111-111111111111"
 
 
 def _image(path: Path, fmt: str = "PNG", size: tuple[int, int] = (40, 30)) -> Path:
@@ -31,10 +30,8 @@ async def test_attached_photos_are_listed_with_their_owner_after_a_restart(
     first = _image(tmp_path / "stair.png")
     second = _image(tmp_path / "c1.jpg", "JPEG")
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f9")
-        await settle(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "f9")
         await type_in(pilot, "p-caption", "stair core", enter=False)
         await type_in(pilot, "p-path", str(first))
         await pick(pilot, "p-of", "members[0]")
@@ -50,17 +47,14 @@ async def test_attached_photos_are_listed_with_their_owner_after_a_restart(
         shas = [g.photos[0].sha256, g.members[0].photos[0].sha256]
         assert all(sha and st.photo_bytes(sha) for sha in shas)
     again = make_app(db, open_survey=SID)
-    async with again.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f9")
-        await settle(pilot)
+    async with started(again) as pilot:
+        await press(pilot, "f9")
         assert [r[1] for r in _rows(again)] == ["storey G", "member group 1: column"]
         # a listed photo's caption is edited in place, saved as accepted
         pane = again.screen.query_one("#photos-pane")
         pane.table.move_cursor(row=1)
         pane.table.focus()
-        await pilot.press("enter")
-        await settle(pilot)
+        await press(pilot, "enter")
         await type_in(pilot, "p-caption", "column C1 spalled")
         assert pane.form["path"].input.disabled
     with Store.open(db, refresh=False) as st:
@@ -76,10 +70,8 @@ async def test_a_refused_file_is_one_line_and_nothing_is_saved(db: Path, make_ap
     with Store.open(db, refresh=False) as st:
         before = st.revision(SID)
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f9")
-        await settle(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "f9")
         f = await type_in(pilot, "p-path", str(gif))
         assert f.status_text.startswith("✗ not saved: ")
         assert "not a JPEG or PNG" in f.status_text and "\n" not in f.status_text
@@ -107,11 +99,8 @@ async def test_the_photos_tab_reads_whole_at_80_columns(db: Path, make_app,
                                                         tmp_path: Path) -> None:
     _attach_many(db, tmp_path, 9)  # more rows than the table shows: the pane scrolls
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f9")
-        await settle(pilot)
-        pane = app.screen.query_one("#photos-pane")
+    async with started(app) as pilot:
+        pane = await open_tab(pilot, "f9", "photos-pane")
         assert pane.table.display and not pane.empty.display
         assert pane.table.row_count == 9
         # every column, "kept" the last, is inside the table: nothing to scroll sideways
@@ -127,19 +116,15 @@ async def test_the_photos_tab_reads_whole_at_80_columns(db: Path, make_app,
 async def test_an_empty_photos_table_says_how_to_attach_one(db: Path, make_app,
                                                            tmp_path: Path) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f9")
-        await settle(pilot)
-        pane = app.screen.query_one("#photos-pane")
+    async with started(app) as pilot:
+        pane = await open_tab(pilot, "f9", "photos-pane")
         assert not pane.table.display  # no table, so no highlighted blank row
         said = str(pane.empty.render())
         assert pane.empty.display and said.startswith("No photos of storey G")
         assert "JPEG or PNG" in said and "Enter" in said
         await type_in(pilot, "p-path", str(_image(tmp_path / "stair.png")))
         assert pane.table.display and not pane.empty.display and pane.table.row_count == 1
-        await pilot.press("pageup")  # storey 1 has no photos: the sentence names it
-        await settle(pilot)
+        await press(pilot, "pageup")  # storey 1 has no photos: the sentence names it
         assert app.screen.storey.label == "1"
         assert not pane.table.display and str(pane.empty.render()).startswith(
             "No photos of storey 1")

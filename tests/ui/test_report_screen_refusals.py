@@ -7,23 +7,16 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from drive import settle, type_in
+from conftest import SID
+from drive import press, started, type_in
 
 from triage.store import Store
-
-SID = "11111111-1111-4111-8111-111111111111"
-
-
-async def _report_screen(pilot) -> None:
-    await settle(pilot)
-    await pilot.press("f4")
-    await settle(pilot)
 
 
 async def test_inspector_confirmed_here_is_saved_to_the_survey(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await _report_screen(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "f4")
         name = await type_in(pilot, "r-inspector", "Aroha Ngāti")
         assert name.status_text.startswith("✓ saved")
         ident = await type_in(pilot, "r-inspector-id", "R-77")
@@ -42,18 +35,16 @@ async def test_no_key_file_and_no_pdf_name_are_refused_beside_the_field(tmp_path
                                                                        db: Path,
                                                                        make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await _report_screen(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "f4")
         scr = app.screen
         key = await type_in(pilot, "r-key", str(tmp_path / "no-such.key"), enter=False)
         await type_in(pilot, "r-out", str(tmp_path / "r.pdf"), enter=False)
-        await pilot.press("ctrl+s")
-        await settle(pilot)
+        await press(pilot, "ctrl+s")
         assert "no key file there" in key.status_text
         await type_in(pilot, "r-key", "", enter=False)
         out = await type_in(pilot, "r-out", str(tmp_path / "report.txt"), enter=False)
-        await pilot.press("ctrl+s")
-        await settle(pilot)
+        await press(pilot, "ctrl+s")
         assert "a file name ending .pdf" in out.status_text
         assert str(scr.query_one("#report-result").render()) == ""
     assert list(tmp_path.glob("*.pdf")) == [] and not (tmp_path / "report.txt").exists()
@@ -68,8 +59,8 @@ async def test_a_survey_edited_since_its_report_says_so(tmp_path: Path, db: Path
         st.set_value(SID, "storeys[0].notes", "cracks re-measured")
         rev = st.revision(SID)
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await _report_screen(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "f4")
         note = str(app.screen.query_one("#edited-note").render())
         assert note == (f"This survey was edited since its last report (revision {rev - 1}); "
                         f"a new report covers revision {rev}.")

@@ -6,12 +6,11 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from drive import settle, type_in
+from conftest import SID
+from drive import open_tab, press, started, type_in
 
 from triage.store import Store
 from triage.ui.screens.new_survey import NewSurveyScreen
-
-SID = "11111111-1111-4111-8111-111111111111"
 
 
 def _saved(db: Path):
@@ -25,15 +24,12 @@ def _note(pane) -> str:
 
 async def test_storeys_added_below_are_basements_under_the_lowest(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         scr = app.screen
-        await pilot.press("ctrl+b")
-        await settle(pilot)
+        await press(pilot, "ctrl+b")
         assert [s.label for s in scr.survey.storeys] == ["B1", "G", "1"]
         assert scr.storey_index == 0 and scr.storey.label == "B1"
-        await pilot.press("ctrl+b")
-        await settle(pilot)
+        await press(pilot, "ctrl+b")
         assert scr.storey.label == "B2"
         # the storey list, top first, ends with the new lowest storey highlighted
         ol = scr.query_one("#storeys")
@@ -45,29 +41,22 @@ async def test_storeys_added_below_are_basements_under_the_lowest(db: Path, make
 
 async def test_a_reading_removed_is_kept_in_the_log_and_undone(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f6")
-        await settle(pilot)
-        pane = app.screen.query_one("#readings-pane")
-        await pilot.press("ctrl+r")   # nothing picked yet: says how, removes nothing
-        await settle(pilot)
+    async with started(app) as pilot:
+        pane = await open_tab(pilot, "f6", "readings-pane")
+        await press(pilot, "ctrl+r")  # nothing picked yet: says how, removes nothing
         assert _note(pane) == "pick a reading in the table first (Enter or a click)"
         pane.table.move_cursor(row=1)
         pane.table.focus()
-        await pilot.press("enter")
-        await settle(pilot)
+        await press(pilot, "enter")
         assert pane.editing == 1
-        await pilot.press("ctrl+r")
-        await settle(pilot)
+        await press(pilot, "ctrl+r")
         assert _note(pane) == "✓ saved: reading 2 removed (ctrl+z undoes it)"
         assert pane.editing is None and pane.table.row_count == 1
         s, hidden = _saved(db)
         assert [(r.dir, r.offset_mm) for r in s.storeys[0].readings] == [("x", 2.0)]
         assert [(c.path, c.old["dir"], c.old["offset_mm"]) for c in hidden] == [
             ("storeys[0].readings[1]", "y", 3.0)]
-        await pilot.press("ctrl+z")
-        await settle(pilot)
+        await press(pilot, "ctrl+z")
         assert pane.table.row_count == 2
     s, hidden = _saved(db)
     assert [(r.dir, r.offset_mm) for r in s.storeys[0].readings] == [("x", 2.0), ("y", 3.0)]
@@ -76,20 +65,15 @@ async def test_a_reading_removed_is_kept_in_the_log_and_undone(db: Path, make_ap
 
 async def test_a_member_group_removed_is_kept_in_the_log(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f7")
-        await settle(pilot)
-        pane = app.screen.query_one("#members-pane")
+    async with started(app) as pilot:
+        pane = await open_tab(pilot, "f7", "members-pane")
         await type_in(pilot, "m-crack", "1.4", enter=False)
         await type_in(pilot, "m-count", "2")
         assert pane.table.row_count == 2
         pane.table.move_cursor(row=0)
         pane.table.focus()
-        await pilot.press("enter")
-        await settle(pilot)
-        await pilot.press("ctrl+r")
-        await settle(pilot)
+        await press(pilot, "enter")
+        await press(pilot, "ctrl+r")
         assert _note(pane) == "✓ saved: member group 1 removed (ctrl+z undoes it)"
         assert pane.table.row_count == 1
     s, hidden = _saved(db)
@@ -104,10 +88,8 @@ def _count(db: Path) -> int:
 
 async def test_the_new_survey_form_refuses_and_stores_nothing(db: Path, make_app) -> None:
     app = make_app(db)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("ctrl+n")
-        await settle(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "ctrl+n")
         scr = app.screen
         assert isinstance(scr, NewSurveyScreen)
         status = scr.query_one("#new-status")
@@ -116,8 +98,7 @@ async def test_the_new_survey_form_refuses_and_stores_nothing(db: Path, make_app
             return scr.query_one(f"#{fid}").status_text
 
         # a required field left empty
-        await pilot.press("ctrl+s")
-        await settle(pilot)
+        await press(pilot, "ctrl+s")
         assert str(status.render()) == "not created: a field breaks its rule (shown beside it)"
         assert "✗" in f("f-name")
         await type_in(pilot, "f-name", "Reef Street Library")
@@ -125,8 +106,7 @@ async def test_the_new_survey_form_refuses_and_stores_nothing(db: Path, make_app
         # no storey above ground; a negative count below
         await type_in(pilot, "f-above", "0")
         await type_in(pilot, "f-below", "-1")
-        await pilot.press("ctrl+s")
-        await settle(pilot)
+        await press(pilot, "ctrl+s")
         assert "at least one storey above ground" in f("f-above")
         assert "must not be negative" in f("f-below")
         assert isinstance(app.screen, NewSurveyScreen)
@@ -136,14 +116,12 @@ async def test_the_new_survey_form_refuses_and_stores_nothing(db: Path, make_app
         await type_in(pilot, "f-below", "0")
         await type_in(pilot, "f-lat", "95")
         await type_in(pilot, "f-lon", "174.1")
-        await pilot.press("ctrl+s")
-        await settle(pilot)
+        await press(pilot, "ctrl+s")
         assert str(status.render()).startswith("not created: ")
         assert "90" in f("f-lat") and "✗" in f("f-lat")
         assert isinstance(app.screen, NewSurveyScreen)
         assert _count(db) == 2
         # Escape gives up: back to the list, still nothing stored
-        await pilot.press("escape")
-        await settle(pilot)
+        await press(pilot, "escape")
         assert not isinstance(app.screen, NewSurveyScreen)
     assert _count(db) == 2

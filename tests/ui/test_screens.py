@@ -5,20 +5,18 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from drive import settle
+from conftest import SID
+from drive import press, settle, started
 from helpers import make, reading, storey
 
 from triage.assess import CAUTION, assess
 from triage.ui.screens.help import HelpScreen
 from triage.ui.widgets.profile import drift_profile
 
-SID = "11111111-1111-4111-8111-111111111111"
-
 
 async def test_wide_terminal_shows_full_verdict_beside(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(160, 40)) as pilot:
-        await settle(pilot)
+    async with started(app, (160, 40)) as pilot:
         side = app.screen.query_one("#side")
         assert side.display
         text = str(app.screen.query_one("#side-verdict").render())
@@ -27,38 +25,31 @@ async def test_wide_terminal_shows_full_verdict_beside(db: Path, make_app) -> No
         assert "Residual capacity R per storey" in text
         assert CAUTION.split(":")[0] in text
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         assert not app.screen.query_one("#side").display
-        await pilot.press("f2")
-        await settle(pilot)
+        await press(pilot, "f2")
         assert "Drift profile" in str(app.screen.query_one("#verdict-text").render())
 
 
 async def test_help_lists_the_keys_of_the_screen(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f1")
-        await settle(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "f1")
         assert isinstance(app.screen, HelpScreen)
         text = str(app.screen.query_one("#help-text").render())
         for key in ("ctrl+z", "f2", "f4", "PgUp", "f6", "ctrl+q"):
             assert key in text
-        await pilot.press("escape")
-        await settle(pilot)
+        await press(pilot, "escape")
         assert not isinstance(app.screen, HelpScreen)
 
 
 async def test_plain_letters_do_not_act_in_a_text_field(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         scr = app.screen
         f = scr.query_one("#r-where")
         f.input.focus()
-        await pilot.press(*"qnrz")
-        await settle(pilot)
+        await press(pilot, *"qnrz")
         assert app.screen is scr and f.text == "qnrz"
 
 
@@ -93,8 +84,7 @@ def test_drift_profile_marks_and_bars() -> None:
 
 async def test_the_mouse_works(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         scr = app.screen
         await pilot.click("#--content-tab-members")
         await settle(pilot)

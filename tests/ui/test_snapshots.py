@@ -9,12 +9,11 @@ from __future__ import annotations
 import io
 from pathlib import Path
 
-from drive import settle, type_in
+from conftest import SID
+from drive import press, settle, type_in
 from PIL import Image
 
 from triage.store import Store
-
-SID = "11111111-1111-4111-8111-111111111111"
 
 
 def test_survey_list(db: Path, make_app, snap_compare) -> None:
@@ -49,8 +48,7 @@ def test_photos_listed(db: Path, make_app, snap_compare, tmp_path: Path) -> None
 
     async def before(pilot) -> None:
         await settle(pilot)
-        await pilot.press("f9")
-        await settle(pilot)
+        await press(pilot, "f9")
 
     assert snap_compare(make_app(db, open_survey=SID), terminal_size=(80, 24),
                         run_before=before)
@@ -59,8 +57,7 @@ def test_photos_listed(db: Path, make_app, snap_compare, tmp_path: Path) -> None
 def test_verdict(db: Path, make_app, snap_compare) -> None:
     async def before(pilot) -> None:
         await settle(pilot)
-        await pilot.press("f2")
-        await settle(pilot)
+        await press(pilot, "f2")
 
     assert snap_compare(make_app(db, open_survey=SID), terminal_size=(80, 24),
                         run_before=before)

@@ -9,9 +9,9 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
-from bench.ui_bench import STOREY_SCRIPT, _check_storey, _log_storey, storey_survey
-from drive import burst, settle
+from drive import burst, press, started
 
+from bench.ui_bench import STOREY_SCRIPT, _check_storey, _log_storey, storey_survey
 from triage.model import parse_survey
 from triage.store import Store
 
@@ -35,10 +35,8 @@ async def test_the_storey_typed_ahead_in_one_burst(tmp_path: Path, make_app) -> 
     db = _db(tmp_path)
     app = make_app(db, open_survey=SID)
     parts = [f"<{text}>" if what == "key" else text for what, text in STOREY_SCRIPT]
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f5")
-        await settle(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "f5")
         await burst(pilot, *parts)
     with Store.open(db) as st:
         _check_storey(st.load_survey(SID))

@@ -5,11 +5,10 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from drive import settle
+from conftest import SID
+from drive import press, started
 
 from triage.store import Store
-
-SID = "11111111-1111-4111-8111-111111111111"
 
 
 def _said(app) -> list[str]:
@@ -36,26 +35,20 @@ def _labels(db: Path) -> list[str]:
 
 async def test_a_storey_on_top_then_removed_then_undone(db: Path, make_app) -> None:
     app = _listening(make_app(db, open_survey=SID))
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         scr = app.screen
-        await pilot.press("f5")
-        await settle(pilot)
-        await pilot.press("ctrl+n")
-        await settle(pilot)
+        await press(pilot, "f5")
+        await press(pilot, "ctrl+n")
         assert [s.label for s in scr.survey.storeys] == ["G", "1", "2"]
         assert scr.storey.label == "2" and scr.storey.height_m == 3.2
         assert _labels(db) == ["G", "1", "2"]
         # the storey in view (storey 1, one down) removed
-        await pilot.press("pagedown")
-        await settle(pilot)
+        await press(pilot, "pagedown")
         assert scr.storey.label == "1"
-        await pilot.press("ctrl+r")
-        await settle(pilot)
+        await press(pilot, "ctrl+r")
         assert _labels(db) == ["G", "2"]
         assert "storey removed (ctrl+z undoes it)" in _said(app)
-        await pilot.press("ctrl+z")
-        await settle(pilot)
+        await press(pilot, "ctrl+z")
         assert _labels(db) == ["G", "1", "2"]
         assert "undone: removed storey 2" in str(scr.query_one("#survey-title").render())
 
@@ -75,14 +68,10 @@ async def test_the_last_storey_stays_and_nothing_to_undo_is_said(tmp_path: Path,
     with Store.open(db) as st:
         st.add_survey(parse_survey(json.loads(json.dumps(d))))
     app = _listening(make_app(db, open_survey=SID))
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("ctrl+z")
-        await settle(pilot)
+    async with started(app) as pilot:
+        await press(pilot, "ctrl+z")
         assert "nothing to undo" in _said(app)
-        await pilot.press("f5")
-        await settle(pilot)
-        await pilot.press("ctrl+r")
-        await settle(pilot)
+        await press(pilot, "f5")
+        await press(pilot, "ctrl+r")
         assert "a survey keeps at least one storey" in _said(app)
     assert _labels(db) == ["G"]

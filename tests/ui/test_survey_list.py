@@ -5,30 +5,26 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
-from drive import settle, type_in, verdict_text
+from conftest import SID, URM
+from drive import press, started, type_in, verdict_text
 
 from triage.store import Store
 from triage.ui.screens.history import HistoryScreen, describe_change, storey_labels
 from triage.ui.screens.survey import SurveyScreen
 from triage.ui.screens.survey_list import SurveyListScreen, _when
 
-BAKERY = "11111111-1111-4111-8111-111111111111"
-
 
 async def test_filter_by_typing_and_open(db: Path, make_app) -> None:
     app = make_app(db)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         scr = app.screen
         assert isinstance(scr, SurveyListScreen)
         table = scr.query_one("#surveys")
         assert table.row_count == 2
-        await pilot.press(*"post")
-        await settle(pilot)
+        await press(pilot, *"post")
         assert table.row_count == 1
         assert "Old Post Office" in table.get_row_at(0)[0]
-        await pilot.press("enter")
-        await settle(pilot)
+        await press(pilot, "enter")
         assert isinstance(app.screen, SurveyScreen)
         assert app.screen.survey.building.name == "Old Post Office"
         # nothing logged: hold, provisional, and the caution
@@ -40,8 +36,7 @@ async def test_filter_by_typing_and_open(db: Path, make_app) -> None:
 async def test_times_are_shown_whole_with_their_offset(db: Path, make_app) -> None:
     # as recorded, to the minute, with the zone offset (never cut to 16 characters)
     app = make_app(db)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app):
         table = app.screen.query_one("#surveys")
         times = sorted(str(table.get_row_at(i)[2]) for i in range(table.row_count))
         assert times == ["2026-11-29 08:15 +13:00", "2026-11-29 09:00 +13:00"]
@@ -52,33 +47,28 @@ async def test_times_are_shown_whole_with_their_offset(db: Path, make_app) -> No
 async def test_the_short_code_of_a_paper_form_finds_the_earlier_survey(db: Path,
                                                                       make_app) -> None:
     app = make_app(db)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         table = app.screen.query_one("#surveys")
         assert table.row_count == 2
-        await pilot.press(*BAKERY[:8])
-        await settle(pilot)
+        await press(pilot, *SID[:8])
         assert table.row_count == 1
         assert "Bakery" in table.get_row_at(0)[0]
 
 
 async def test_reinspection_copies_storeys_clears_readings(db: Path, make_app) -> None:
     app = make_app(db)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press(*"bakery")
-        await settle(pilot)
-        await pilot.press("ctrl+r")
-        await settle(pilot)
+    async with started(app) as pilot:
+        await press(pilot, *"bakery")
+        await press(pilot, "ctrl+r")
         scr = app.screen
         assert isinstance(scr, SurveyScreen)
         new = scr.survey
-        assert str(new.inspection.previous) == BAKERY
+        assert str(new.inspection.previous) == SID
         assert [s.label for s in new.storeys] == ["G", "1"]
         assert all(not s.readings and not s.members for s in new.storeys)
-        assert str(new.survey_id) != BAKERY
+        assert str(new.survey_id) != SID
         with Store.open(db, refresh=False) as st:
-            old = st.load_survey(BAKERY)
+            old = st.load_survey(SID)
             assert new.building_id == old.building_id
             assert len(old.storeys[0].readings) == 2  # the earlier survey is untouched
             assert len(st.list_surveys()) == 3
@@ -86,31 +76,25 @@ async def test_reinspection_copies_storeys_clears_readings(db: Path, make_app) -
 
 async def test_hide_keeps_the_survey(db: Path, make_app) -> None:
     app = make_app(db)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         await pilot.press(*"bakery")
-        await pilot.press("ctrl+t")
-        await settle(pilot)
+        await press(pilot, "ctrl+t")
         table = app.screen.query_one("#surveys")
         assert table.row_count == 0
-        await pilot.press("ctrl+l")  # hidden ones too
-        await settle(pilot)
+        await press(pilot, "ctrl+l")  # hidden ones too
         assert table.row_count == 1
         assert "h" in table.get_row_at(0)[4]
     with Store.open(db, refresh=False) as st:
-        assert st.load_survey(BAKERY).building.name == "Harbour Bakery"
-        assert [r.id for r in st.list_surveys()] == ["22222222-2222-4222-8222-222222222222"]
+        assert st.load_survey(SID).building.name == "Harbour Bakery"
+        assert [r.id for r in st.list_surveys()] == [URM]
 
 
 async def test_history_lists_changes_and_undoes(db: Path, make_app) -> None:
-    app = make_app(db, open_survey=BAKERY)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("f5")
-        await settle(pilot)
+    app = make_app(db, open_survey=SID)
+    async with started(app) as pilot:
+        await press(pilot, "f5")
         await type_in(pilot, "s-height", "4.1")
-        await pilot.press("f3")
-        await settle(pilot)
+        await press(pilot, "f3")
         assert isinstance(app.screen, HistoryScreen)
         log = app.screen.query_one("#log")
         newest = log.get_row_at(0)
@@ -118,59 +102,49 @@ async def test_history_lists_changes_and_undoes(db: Path, make_app) -> None:
         assert str(newest[2]) == "3.2 m" and str(newest[3]) == "4.1 m"
         detail = str(app.screen.query_one("#history-detail").render())
         assert "revision 2" in detail and "height (m), storey G: 3.2 m → 4.1 m" in detail
-        await pilot.press("ctrl+z")
-        await settle(pilot)
+        await press(pilot, "ctrl+z")
         status = str(app.screen.query_one("#history-status").render())
         assert "undone height (m), storey G" in status
         assert str(log.get_row_at(0)[1]) == "undone: height (m), storey G"
-        await pilot.press("escape")
-        await settle(pilot)
+        await press(pilot, "escape")
         assert app.screen.query_one("#s-height").text == "3.2"
     with Store.open(db, refresh=False) as st:
-        assert st.load_survey(BAKERY).storeys[0].height_m == 3.2
+        assert st.load_survey(SID).storeys[0].height_m == 3.2
 
 
 async def test_storey_walk_and_add(db: Path, make_app) -> None:
-    app = make_app(db, open_survey=BAKERY)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    app = make_app(db, open_survey=SID)
+    async with started(app) as pilot:
         scr = app.screen
         assert scr.storey.label == "G"
-        await pilot.press("pageup")
-        await settle(pilot)
+        await press(pilot, "pageup")
         assert scr.storey.label == "1"
         assert len(scr.query_one("#readings-pane").items()) == 1
-        await pilot.press("f5", "ctrl+n")
-        await settle(pilot)
+        await press(pilot, "f5", "ctrl+n")
         assert [s.label for s in scr.survey.storeys] == ["G", "1", "2"]
         assert scr.storey.label == "2"
-        await pilot.press("ctrl+z")
-        await settle(pilot)
+        await press(pilot, "ctrl+z")
         assert [s.label for s in scr.survey.storeys] == ["G", "1"]
         title = str(scr.query_one("#survey-title").render())
         assert title.endswith("undone: added storey 2"), title
 
 
 async def test_moving_away_saves_what_was_typed(db: Path, make_app) -> None:
-    app = make_app(db, open_survey=BAKERY)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    app = make_app(db, open_survey=SID)
+    async with started(app) as pilot:
         scr = app.screen
         await type_in(pilot, "r-offset", "7", enter=False)  # a new reading, half typed
-        await pilot.press("f5")
-        await settle(pilot)
+        await press(pilot, "f5")
         await type_in(pilot, "s-height", "4.4", enter=False)  # typed, not yet accepted
-        await pilot.press("pageup")
-        await settle(pilot)
+        await press(pilot, "pageup")
         assert scr.storey.label == "1"
         with Store.open(db, refresh=False) as st:
-            assert st.load_survey(BAKERY).storeys[0].height_m == 4.4
+            assert st.load_survey(SID).storeys[0].height_m == 4.4
         assert scr.query_one("#s-height").text == "3.2"  # storey 1's own height
         assert scr.query_one("#r-offset").text == "7"  # the half-typed reading is kept
         # a value that breaks its rule holds the move until it is put right
         await type_in(pilot, "s-height", "-1", enter=False)
-        await pilot.press("pagedown")
-        await settle(pilot)
+        await press(pilot, "pagedown")
         assert scr.storey.label == "1"
         assert "greater than 0" in scr.query_one("#s-height").status_text
 

@@ -17,12 +17,10 @@ from collections.abc import Callable
 from pathlib import Path
 
 import pytest
-from conftest import two_surveys
+from conftest import SID, two_surveys
 
 from triage.model import parse_survey
 from triage.store import Store
-
-SID = "11111111-1111-4111-8111-111111111111"
 
 
 def _wait(what: str, check: Callable[[], bool], seconds: float = 30.0,

@@ -8,29 +8,24 @@ import os
 from pathlib import Path
 
 import pytest
-from drive import settle, type_in
+from conftest import SID
+from drive import press, settle, started, type_in
 
 from triage.ui.app import THEMES
-
-SID = "11111111-1111-4111-8111-111111111111"
 
 
 async def test_f12_switches_and_remembers_the_theme(db: Path, make_app) -> None:
     home = Path(os.environ["TRIAGE_HOME"])
     app = make_app(db)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         assert app.theme == "triage"
-        await pilot.press("f12")
-        await settle(pilot)
+        await press(pilot, "f12")
         assert app.theme == "triage-light"
     assert json.loads((home / "settings.json").read_text())["theme"] == "triage-light"
     again = make_app(db)
-    async with again.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(again) as pilot:
         assert again.theme == "triage-light"
-        await pilot.press("f12", "f12")
-        await settle(pilot)
+        await press(pilot, "f12", "f12")
         assert again.theme == "triage"  # round: light, high contrast, dark
 
 
@@ -46,8 +41,7 @@ async def _to_list(pilot) -> None:
 
 async def _to_new(pilot) -> None:
     await settle(pilot)
-    await pilot.press("ctrl+n")
-    await settle(pilot)
+    await press(pilot, "ctrl+n")
 
 
 async def _to_logging(pilot) -> None:
@@ -57,56 +51,47 @@ async def _to_logging(pilot) -> None:
 
 async def _to_members(pilot) -> None:
     await settle(pilot)
-    await pilot.press("f7")
-    await settle(pilot)
+    await press(pilot, "f7")
 
 
 async def _to_storey_tab(pilot) -> None:
     await settle(pilot)
-    await pilot.press("f5")
-    await settle(pilot)
+    await press(pilot, "f5")
 
 
 async def _to_hazards(pilot) -> None:
     await settle(pilot)
-    await pilot.press("f8")
-    await settle(pilot)
+    await press(pilot, "f8")
 
 
 async def _to_photos(pilot) -> None:
     await settle(pilot)
-    await pilot.press("f9")
-    await settle(pilot)
+    await press(pilot, "f9")
 
 
 async def _to_survey_tab(pilot) -> None:
     await settle(pilot)
-    await pilot.press("f10")
-    await settle(pilot)
+    await press(pilot, "f10")
 
 
 async def _to_verdict(pilot) -> None:
     await settle(pilot)
-    await pilot.press("f2")
-    await settle(pilot)
+    await press(pilot, "f2")
 
 
 async def _to_history(pilot) -> None:
     await settle(pilot)
-    await pilot.press("f3")
-    await settle(pilot)
+    await press(pilot, "f3")
 
 
 async def _to_report(pilot) -> None:
     await settle(pilot)
-    await pilot.press("f4")
-    await settle(pilot)
+    await press(pilot, "f4")
 
 
 async def _to_help(pilot) -> None:
     await settle(pilot)
-    await pilot.press("f1")
-    await settle(pilot)
+    await press(pilot, "f1")
 
 
 SCREENS = {"list": (_to_list, False), "new-survey": (_to_new, False),

@@ -6,12 +6,11 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
-from drive import settle
+from conftest import SID
+from drive import open_tab, press, started
 
 from triage.ui.focus import focus_now
 from triage.ui.widgets.ticks import TICKED
-
-SID = "11111111-1111-4111-8111-111111111111"
 
 
 def _box(tick) -> str:
@@ -31,29 +30,21 @@ async def test_unticked_is_empty_and_ticked_shows_a_tick(db: Path, make_app, no_
     if no_color:
         monkeypatch.setenv("NO_COLOR", "1")
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app) as pilot:
         assert app.no_color is no_color
-        await pilot.press("f5")
-        await settle(pilot)
-        below = app.screen.query_one("#s-below")
+        below = await open_tab(pilot, "f5", "s-below")
         assert _box(below) == "▐ ▌"  # unticked: nothing inside the box
         focus_now(below.box)
-        await pilot.press("space")
-        await settle(pilot)
+        await press(pilot, "space")
         assert below.value() is True and _box(below) == f"▐{TICKED}▌"
         assert below.status_text.startswith("✓ saved")  # the tick still asks to be saved
-        await pilot.press("space")
-        await settle(pilot)
+        await press(pilot, "space")
         assert below.value() is False and _box(below) == "▐ ▌"
 
-        await pilot.press("f7")
-        await settle(pilot)
-        pane = app.screen.query_one("#members-pane")
+        pane = await open_tab(pilot, "f7", "members-pane")
         assert set(_signs(pane)) == {" "}
         focus_now(pane.signs.checks)
-        await pilot.press("down", "down", "space")
-        await settle(pilot)
+        await press(pilot, "down", "down", "space")
         i = pane.signs.checks.highlighted
         assert pane.signs.value() == [str(pane.signs.checks.get_option_at_index(i).value)]
         shown = _signs(pane)

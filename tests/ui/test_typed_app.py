@@ -6,13 +6,12 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
-from drive import settle
+from conftest import SID
+from drive import started
 
 from triage.ui.app import TriageApp
 from triage.ui.data import FieldData
 from triage.ui.verdicts import VerdictThread
-
-SID = "11111111-1111-4111-8111-111111111111"
 
 
 def test_before_the_database_is_open(db: Path, make_app) -> None:
@@ -26,8 +25,7 @@ def test_before_the_database_is_open(db: Path, make_app) -> None:
 
 async def test_screens_and_panes_see_the_triage_app(db: Path, make_app) -> None:
     app = make_app(db, open_survey=SID)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    async with started(app):
         assert app.is_open
         assert isinstance(app.data, FieldData) and isinstance(app.verdicts, VerdictThread)
         scr = app.screen

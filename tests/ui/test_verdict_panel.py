@@ -96,11 +96,11 @@ def test_the_tier_word_stands_apart_and_the_caution_is_there() -> None:
 
 
 async def test_the_verdict_line_keeps_a_space_after_the_tier(db: Path, make_app) -> None:
-    from drive import settle, verdict_text
+    from conftest import SID
+    from drive import started, verdict_text
 
-    app = make_app(db, open_survey="11111111-1111-4111-8111-111111111111")
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
+    app = make_app(db, open_survey=SID)
+    async with started(app) as pilot:
         text = verdict_text(pilot)
         assert text.startswith(f"{tier_words('occupy')}  · level IO"), text
         assert CAUTION_SHORT in text

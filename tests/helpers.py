@@ -5,8 +5,10 @@ the fixtures several test folders share, which a folder's conftest takes in by i
 from __future__ import annotations
 
 import copy
+import io
 import json
 import os
+import re
 from collections.abc import Callable
 from pathlib import Path
 from typing import Any
@@ -45,6 +47,19 @@ def unmeasured_env() -> dict[str, str]:
     processes: coverage loads sqlite3 itself, so a child checking which modules an import loads
     runs without it (the walls stay exact under the README's test command)."""
     return {k: v for k, v in os.environ.items() if not k.startswith("COVERAGE_")}
+
+
+def flat(text: str) -> str:
+    """Text with each run of white space (a PDF's line breaks among them) as one space."""
+    return re.sub(r"\s+", " ", text)
+
+
+def pdf_pages(pdf: bytes | Path) -> list[str]:
+    """The text of each page of a PDF (its bytes or its file), white space `flat`."""
+    from pypdf import PdfReader
+
+    return [flat(p.extract_text()) for p in PdfReader(io.BytesIO(pdf) if isinstance(pdf, bytes)
+                                                      else pdf).pages]
 
 
 def write_json(path: Path, data: Any) -> Path:

@@ -1,16 +1,20 @@
-"""Fixtures of the report tests: a private TRIAGE_HOME, surveys, keys and signed PDFs."""
+"""Fixtures of the report tests: a private TRIAGE_HOME, the command, surveys and keys."""
 
 from __future__ import annotations
 
+from pathlib import Path
 from typing import Any
 
 import pytest
 
-from tests.helpers import reading, storey, survey_dict, triage_home
+from tests.helpers import cli, reading, storey, survey_dict, triage_home
 from triage.assess import assess
 from triage.model import Survey, parse_survey
+from triage.report.keys import SigningKey, new_key
 
-__all__ = ["clinic", "clinic_dict", "clinic_pair", "triage_home"]
+__all__ = ["KINDS", "cli", "clinic", "clinic_dict", "clinic_pair", "key", "triage_home"]
+
+KINDS = ["ecdsa-p256", "ed25519"]   # a new key's algorithm, and the first round's
 
 
 def clinic_dict() -> dict[str, Any]:
@@ -40,3 +44,10 @@ def clinic() -> Survey:
 def clinic_pair(clinic: Survey) -> tuple[Survey, Any]:
     """The clinic and its assessment."""
     return clinic, assess(clinic)
+
+
+@pytest.fixture(params=KINDS)
+def key(request: pytest.FixtureRequest, tmp_path: Path) -> SigningKey:
+    """Aroha Ngāti's signing key, no passphrase: the test runs once with each kind."""
+    k, _ = new_key("Aroha Ngāti", "R-77", tmp_path / "aroha.key", None, algorithm=request.param)
+    return k

@@ -5,6 +5,7 @@ the building line, the reversal warning; caution and "unsigned" on every page)."
 from __future__ import annotations
 
 import io
+import itertools
 import json
 import os
 import re
@@ -14,10 +15,9 @@ from typing import Any
 import pytest
 from pypdf import PdfReader
 
-from tests.helpers import reading, storey, survey_dict
+from tests.helpers import flat, pdf_pages, reading, storey, survey_dict
 from triage.assess import CAUTION, assess
 from triage.assess.compare import compare, sidak_bound
-from triage.cli import main
 from triage.model import parse_survey, parse_survey_text
 from triage.report import render_comparison
 from triage.report.compare_draw import render_comparison as draw
@@ -27,14 +27,6 @@ from triage.resources import samples_dir
 
 BUILDING = "5b0c8f0e-1d1e-4f2a-9a3b-7c6d5e4f3a21"
 FLATS = [samples_dir() / "flats_mariner_court_1.json", samples_dir() / "flats_mariner_court_2.json"]
-
-
-def flat(text: str) -> str:
-    return re.sub(r"\s+", " ", text)
-
-
-def pages(pdf: bytes) -> list[str]:
-    return [flat(p.extract_text()) for p in PdfReader(io.BytesIO(pdf)).pages]
 
 
 def two(old: list[dict[str, Any]], new: list[dict[str, Any]]):
@@ -62,7 +54,7 @@ def test_every_spot_with_its_change_and_verdict():
                              reading("y", 2.5, where="grid 1"),
                              reading("y", 1.0, where="grid 4")])])
     c, pdf = _pdf(o, n)
-    text = " ".join(pages(pdf))
+    text = " ".join(pdf_pages(pdf))
     assert "G x grid A +0.30% +0.70% +0.40% 0.14% +5.66 BEYOND the uncertainty" in text
     assert "G y grid 1 +0.10% +0.12% +0.03% 0.14% +0.35 within the uncertainty" in text
     assert "grid 4 — +0.05% — — — new spot: not measured before" in text
@@ -79,7 +71,7 @@ def test_a_reversal_in_every_spot_warns():
     o, n = two([storey("G", [reading("x", 6.0, where="A"), reading("x", 4.0, where="B")])],
                [storey("G", [reading("x", -6.0, where="A"), reading("x", -4.0, where="B")])])
     _c, pdf = _pdf(o, n)
-    text = " ".join(pages(pdf))
+    text = " ".join(pdf_pages(pdf))
     assert "WARNING: every spot compared in x reversed its lean" in text
     assert text.count("the lean reversed") == 2
 
@@ -87,7 +79,7 @@ def test_a_reversal_in_every_spot_warns():
 def test_no_movement_beyond_chance_is_said_too():
     o, n = two([storey("G", [reading("x", 6.0, where="A")])],
                [storey("G", [reading("x", 6.5, where="A")])])
-    text = " ".join(pages(_pdf(o, n)[1]))
+    text = " ".join(pdf_pages(_pdf(o, n)[1]))
     assert "No movement beyond chance: the largest |z|, 0.35, is within 1.96" in text
 
 
@@ -95,7 +87,7 @@ def test_no_movement_beyond_chance_is_said_too():
 def flats() -> tuple[Any, Any, Any, list[str]]:
     o, n = (parse_survey_text(p.read_text(encoding="utf-8")) for p in FLATS)
     c = compare(o, assess(o), n, assess(n))
-    return o, n, c, pages(render_comparison(c, o, n))
+    return o, n, c, pdf_pages(render_comparison(c, o, n))
 
 
 def test_caution_and_unsigned_working_document_on_every_page(flats):
@@ -140,7 +132,7 @@ def test_the_last_page_holds_a_third_of_a_page_and_headings_stay_with_their_text
     assert (MARGIN + FOOT_H + BODY_H - lowest) / BODY_H >= 1 / 3
     shown = [t for t in trace if t[1] not in {"LCActionFlowable", "CondPageBreak", "_FrameBreak",
                                               "PageBreak", "Spacer"}]
-    for here, after in zip(shown, shown[1:], strict=False):
+    for here, after in itertools.pairwise(shown):
         if here[1] == "Paragraph:h2":
             assert after[0] == here[0], here
 
@@ -159,36 +151,30 @@ def test_no_word_is_printed_over_another(tmp_path: Path):
                             and b[0] < a[1] - 0.5), f"page {k}: {a[4]!r} over {b[4]!r}"
 
 
-def run(capsys, *argv: str) -> tuple[int, str, str]:
-    code = main(list(argv))
-    out = capsys.readouterr()
-    return code, out.out, out.err
-
-
-def test_cli_writes_the_pdf(capsys, tmp_path: Path):
+def test_cli_writes_the_pdf(cli, tmp_path: Path):
     out = tmp_path / "cmp.pdf"
-    code, said, err = run(capsys, "compare", str(FLATS[0]), str(FLATS[1]), "-o", str(out))
+    code, said, err = cli("compare", str(FLATS[0]), str(FLATS[1]), "-o", str(out))
     assert code == 0, err
     assert said == ""   # the status line goes to standard error, as every command's does
     assert err.startswith(f"comparison written to {out} (") and "UNSIGNED working document" in err
     assert "13 spots compared, 3 beyond the uncertainty" in err and len(err.splitlines()) == 1
-    text = " ".join(pages(out.read_bytes()))
+    text = " ".join(pdf_pages(out.read_bytes()))
     assert "MOVEMENT BEYOND CHANCE" in text
     # the same input, the same bytes (a working document is reproducible)
     again = tmp_path / "again.pdf"
-    assert run(capsys, "compare", str(FLATS[0]), str(FLATS[1]), "-o", str(again))[0] == 0
+    assert cli("compare", str(FLATS[0]), str(FLATS[1]), "-o", str(again))[0] == 0
     assert again.read_bytes() == out.read_bytes()
 
 
-def test_cli_output_follows_the_write_rules(capsys, tmp_path: Path):
+def test_cli_output_follows_the_write_rules(cli, tmp_path: Path):
     # a symlink is followed (the link stays a link), a folder is refused in one line
     target = tmp_path / "real.pdf"
     target.write_bytes(b"old")
     link = tmp_path / "link.pdf"
     link.symlink_to(target)
-    assert run(capsys, "compare", str(FLATS[0]), str(FLATS[1]), "-o", str(link))[0] == 0
+    assert cli("compare", str(FLATS[0]), str(FLATS[1]), "-o", str(link))[0] == 0
     assert link.is_symlink() and target.read_bytes().startswith(b"%PDF")
-    code, _out, err = run(capsys, "compare", str(FLATS[0]), str(FLATS[1]), "-o", str(tmp_path))
+    code, _out, err = cli("compare", str(FLATS[0]), str(FLATS[1]), "-o", str(tmp_path))
     assert code == 1 and "is a folder" in err and len(err.strip().splitlines()) == 1
     # a FIFO is written in place, never replaced by a file
     fifo = tmp_path / "pipe"
@@ -203,21 +189,21 @@ def test_cli_output_follows_the_write_rules(capsys, tmp_path: Path):
 
     t = threading.Thread(target=drain)
     t.start()
-    assert run(capsys, "compare", str(FLATS[0]), str(FLATS[1]), "-o", str(fifo))[0] == 0
+    assert cli("compare", str(FLATS[0]), str(FLATS[1]), "-o", str(fifo))[0] == 0
     t.join(30)
     assert got and got[0].startswith(b"%PDF")
     assert fifo.is_fifo()
 
 
-def test_cli_refusals_are_one_line(capsys, tmp_path: Path):
-    code, _out, err = run(capsys, "compare", str(FLATS[0]), str(FLATS[1]), "--format", "json",
+def test_cli_refusals_are_one_line(cli, tmp_path: Path):
+    code, _out, err = cli("compare", str(FLATS[0]), str(FLATS[1]), "--format", "json",
                           "-o", str(tmp_path / "x.pdf"))
     assert code == 1 and "not with -o" in err and not (tmp_path / "x.pdf").exists()
     copy = tmp_path / "old.json"
     copy.write_text(FLATS[0].read_text(encoding="utf-8"), encoding="utf-8")
-    code, _out, err = run(capsys, "compare", str(copy), str(FLATS[1]), "-o", str(copy))
+    code, _out, err = cli("compare", str(copy), str(FLATS[1]), "-o", str(copy))
     assert code == 1 and "is the survey file" in err
     assert json.loads(copy.read_text(encoding="utf-8"))  # left as it was
     # without -o, text stays the default
-    code, out, _err = run(capsys, "compare", str(FLATS[0]), str(FLATS[1]))
+    code, out, _err = cli("compare", str(FLATS[0]), str(FLATS[1]))
     assert code == 0 and out.startswith("CAUTION:")

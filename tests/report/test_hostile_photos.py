@@ -33,14 +33,6 @@ def _bomb() -> bytes:
             + chunk(b"IDAT", zlib.compress(b"\0" * 64)) + chunk(b"IEND", b""))
 
 
-def _run(capsys, *argv: str) -> tuple[int, str, str]:
-    from triage.cli import main
-
-    code = main(list(argv))
-    out, err = capsys.readouterr()
-    return code, out, err
-
-
 def _survey(folder: Path, photos: dict[str, list[str]], name: str = "clinic.json") -> Path:
     """A survey file in `folder` whose first member group of storey 1 and first hazard have
     these photo paths."""
@@ -69,7 +61,7 @@ def _rows(db: Path) -> tuple[int, int, int]:
 
 
 def test_import_copies_photos_into_the_store_and_reports_show_them_once_files_are_gone(
-        tmp_path, capsys):
+        tmp_path, cli):
     field = tmp_path / "field"
     (field / "img").mkdir(parents=True)
     jpeg, png = _img("JPEG"), _img("PNG", shade=30)
@@ -78,7 +70,7 @@ def test_import_copies_photos_into_the_store_and_reports_show_them_once_files_ar
     src = _survey(field, {"member": ["img/c3.jpg", "img/gone.jpg"],
                           "hazard": ["img/parapet.png"]})
     db = tmp_path / "field.db"
-    code, out, err = _run(capsys, "--db", str(db), "import", str(src))
+    code, out, err = cli("--db", str(db), "import", str(src))
     assert code == 0, err
     assert out == "" and "2 photos stored" in err.splitlines()[0]
     assert err.count("\n") == 2 and "warning" in err and "img/gone.jpg" in err
@@ -95,14 +87,14 @@ def test_import_copies_photos_into_the_store_and_reports_show_them_once_files_ar
                                               "img/gone.jpg")]
         sid = row.id
     # importing the same file again changes nothing
-    code, _, err = _run(capsys, "--db", str(db), "import", str(src))
+    code, _, err = cli("--db", str(db), "import", str(src))
     assert code == 0 and err.startswith("unchanged")
     # the originals go; a report made from the database still shows both photos
     for f in field.rglob("*"):
         if f.is_file():
             f.unlink()
     pdf = tmp_path / "r.pdf"
-    code, _, err = _run(capsys, "--db", str(db), "report", sid[:8], "-o", str(pdf))
+    code, _, err = cli("--db", str(db), "report", sid[:8], "-o", str(pdf))
     assert code == 0, err
     assert _images(pdf) == 2
     text = " ".join(p.extract_text() for p in PdfReader(pdf).pages)
@@ -115,20 +107,20 @@ def test_import_copies_photos_into_the_store_and_reports_show_them_once_files_ar
     (_bomb, "pixels is over the 40-megapixel limit"),
     (lambda: _img("PNG")[:120], "damaged or truncated"),
 ])
-def test_a_photo_breaking_a_rule_refuses_its_survey_whole(tmp_path, capsys, bad, rule):
+def test_a_photo_breaking_a_rule_refuses_its_survey_whole(tmp_path, cli, bad, rule):
     (tmp_path / "img").mkdir()
     (tmp_path / "img" / "ok.jpg").write_bytes(_img())
     (tmp_path / "img" / "bad.jpg").write_bytes(bad())
     src = _survey(tmp_path, {"member": ["img/ok.jpg"], "hazard": ["img/bad.jpg"]})
     db = tmp_path / "field.db"
-    code, out, err = _run(capsys, "--db", str(db), "import", str(src))
+    code, out, err = cli("--db", str(db), "import", str(src))
     assert code == 1 and out == "" and err.count("\n") == 1
     assert "hazards[0].photos[0] (img/bad.jpg)" in err and rule in err
     assert _rows(db) == (0, 0, 0)            # nothing stored, not even the good photo
 
 
 @pytest.mark.parametrize("how", ["absolute", "dotdot", "symlink"])
-def test_photo_paths_leaving_the_folder_are_refused_on_import_and_report(tmp_path, capsys,
+def test_photo_paths_leaving_the_folder_are_refused_on_import_and_report(tmp_path, cli,
                                                                          how):
     secret = tmp_path / "secret.png"
     secret.write_bytes(_img("PNG", shade=5))
@@ -139,28 +131,28 @@ def test_photo_paths_leaving_the_folder_are_refused_on_import_and_report(tmp_pat
         (field / "img" / "nice.png").symlink_to(secret)
     src = _survey(field, {"member": [path]})
     pdf = tmp_path / "r.pdf"
-    code, _, err = _run(capsys, "report", str(src), "-o", str(pdf))
+    code, _, err = cli("report", str(src), "-o", str(pdf))
     assert code == 1 and err.count("\n") == 1 and not pdf.exists()
     assert "storeys[1].members[1].photos[0]" in err and "inside" in err
     db = tmp_path / "field.db"
-    code, _, err = _run(capsys, "--db", str(db), "import", str(src))
+    code, _, err = cli("--db", str(db), "import", str(src))
     assert code == 1 and err.count("\n") == 1 and "storeys[1].members[1].photos[0]" in err
     assert _rows(db) == (0, 0, 0)
 
 
-def test_a_survey_on_standard_input_has_no_folder_for_photos(tmp_path, capsys, monkeypatch):
+def test_a_survey_on_standard_input_has_no_folder_for_photos(tmp_path, cli, monkeypatch):
     src = _survey(tmp_path, {"member": ["img/c3.jpg"]})
     db = tmp_path / "field.db"
     monkeypatch.setattr("sys.stdin", io.StringIO(src.read_text(encoding="utf-8")))
-    code, _, err = _run(capsys, "--db", str(db), "import", "-")
+    code, _, err = cli("--db", str(db), "import", "-")
     assert code == 1 and "standard input has no folder" in err
     plain = _survey(tmp_path, {}, "plain.json")
     monkeypatch.setattr("sys.stdin", io.StringIO(plain.read_text(encoding="utf-8")))
-    code, out, err = _run(capsys, "--db", str(db), "import", "-")
+    code, out, err = cli("--db", str(db), "import", "-")
     assert code == 0 and out == "" and err.startswith("imported"), err
 
 
-def test_export_to_a_folder_backup_and_merge_carry_the_photos(tmp_path, capsys):
+def test_export_to_a_folder_backup_and_merge_carry_the_photos(tmp_path, cli):
     field = tmp_path / "field"
     (field / "img").mkdir(parents=True)
     jpeg = _img("JPEG")
@@ -168,14 +160,14 @@ def test_export_to_a_folder_backup_and_merge_carry_the_photos(tmp_path, capsys):
     (field / "photo of parapet.png").write_bytes(_img("PNG", shade=10))
     src = _survey(field, {"member": ["img/c3.jpg"], "hazard": ["photo of parapet.png"]})
     lap = tmp_path / "laptop.db"
-    assert _run(capsys, "--db", str(lap), "import", str(src))[0] == 0
-    sid = json.loads(_run(capsys, "--db", str(lap), "list", "--format", "json")[1])["surveys"][0]["id"]
+    assert cli("--db", str(lap), "import", str(src))[0] == 0
+    sid = json.loads(cli("--db", str(lap), "list", "--format", "json")[1])["surveys"][0]["id"]
     for f in field.rglob("*"):
         if f.is_file():
             f.unlink()
     # export DIR/: survey.json and img/, which import anywhere with their photos
     out = tmp_path / "handover"
-    code, said, err = _run(capsys, "--db", str(lap), "export", sid[:8], "-o", f"{out}/")
+    code, said, err = cli("--db", str(lap), "export", sid[:8], "-o", f"{out}/")
     assert code == 0, err
     assert said == "" and "with 2 photos" in err
     doc = json.loads((out / "survey.json").read_text(encoding="utf-8"))
@@ -184,33 +176,33 @@ def test_export_to_a_folder_backup_and_merge_carry_the_photos(tmp_path, capsys):
     assert paths[0] == "img/c3.jpg" and paths[1].startswith("img/") and paths[1].endswith(".png")
     assert (out / "img" / "c3.jpg").read_bytes() == jpeg
     other = tmp_path / "other.db"
-    code, said, err = _run(capsys, "--db", str(other), "import", str(out / "survey.json"))
+    code, said, err = cli("--db", str(other), "import", str(out / "survey.json"))
     assert code == 0 and said == "" and "2 photos stored" in err, err
     # backup and merge
     copy = tmp_path / "copy.db"
-    assert _run(capsys, "--db", str(lap), "backup", "-o", str(copy))[0] == 0
+    assert cli("--db", str(lap), "backup", "-o", str(copy))[0] == 0
     centre = tmp_path / "centre.db"
-    assert _run(capsys, "merge", str(copy), "--into", str(centre))[0] == 0
+    assert cli("merge", str(copy), "--into", str(centre))[0] == 0
     assert _rows(centre)[2] == 2
     pdf = tmp_path / "centre.pdf"
-    code, _, err = _run(capsys, "--db", str(centre), "report", sid, "-o", str(pdf))
+    code, _, err = cli("--db", str(centre), "report", sid, "-o", str(pdf))
     assert code == 0, err
     assert _images(pdf) == 2
 
 
-def test_merge_leaves_behind_a_blob_that_is_not_what_its_name_says(tmp_path, capsys):
+def test_merge_leaves_behind_a_blob_that_is_not_what_its_name_says(tmp_path, cli):
     field = tmp_path / "field"
     (field / "img").mkdir(parents=True)
     (field / "img" / "c3.jpg").write_bytes(_img())
     src = _survey(field, {"member": ["img/c3.jpg"]})
     lap = tmp_path / "laptop.db"
-    assert _run(capsys, "--db", str(lap), "import", str(src))[0] == 0
+    assert cli("--db", str(lap), "import", str(src))[0] == 0
     c = sqlite3.connect(lap)
     c.execute("UPDATE photos SET data = ?", (_img("PNG", shade=1),))   # swapped behind our back
     c.commit()
     c.close()
     centre = tmp_path / "centre.db"
-    assert _run(capsys, "merge", str(lap), "--into", str(centre))[0] == 0
+    assert cli("merge", str(lap), "--into", str(centre))[0] == 0
     assert _rows(centre)[2] == 0
     with Store.open(lap) as st:
         sid = st.list_surveys()[0].id

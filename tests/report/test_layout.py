@@ -5,6 +5,7 @@ fall in different places."""
 from __future__ import annotations
 
 import io
+import itertools
 import os
 import re
 import shutil
@@ -62,7 +63,7 @@ def _seen(trace):
 def test_a_heading_is_never_the_last_thing_on_a_page(drawn):
     _s, _pdf, trace = drawn
     seen = _seen(trace)
-    for here, after in zip(seen, seen[1:], strict=False):
+    for here, after in itertools.pairwise(seen):
         if here[1] == "Paragraph:h2":
             assert after[0] == here[0], f"heading {here[2]!r} ends page {here[0]}"
     assert seen[-1][1] != "Paragraph:h2"
@@ -71,7 +72,7 @@ def test_a_heading_is_never_the_last_thing_on_a_page(drawn):
 def test_a_small_table_is_never_split(drawn):
     _s, _pdf, trace = drawn
     tables = [t for t in _seen(trace) if t[1].startswith("Table:")]
-    for a, b in zip(tables, tables[1:], strict=False):
+    for a, b in itertools.pairwise(tables):
         if a[2] == b[2] and b[0] == a[0] + 1:  # the same header again on the next page: a split
             rows = int(a[1].split(":")[1]) + int(b[1].split(":")[1]) - 1
             assert rows > SMALL_TABLE, f"a table of {rows} rows split over pages {a[0]}-{b[0]}"

@@ -5,7 +5,6 @@ from __future__ import annotations
 
 import json
 import os
-import re
 import shutil
 import subprocess
 import sys
@@ -14,20 +13,12 @@ from pathlib import Path
 import pytest
 from pypdf import PdfReader
 
-from tests.helpers import make, reading, storey
+from tests.helpers import flat, make, pdf_pages, reading, storey
 from tests.report.conftest import clinic_dict
 from triage.assess import CAUTION, assess
 from triage.model import parse_survey, parse_survey_text
 from triage.report import read_embedded, read_embedded_files, render_report, write_report
 from triage.standards.vocabulary import words
-
-
-def flat(text: str) -> str:
-    return re.sub(r"\s+", " ", text)
-
-
-def pages_text(pdf: Path) -> list[str]:
-    return [flat(p.extract_text()) for p in PdfReader(pdf).pages]
 
 
 @pytest.fixture
@@ -40,7 +31,7 @@ def clinic_pdf(clinic_pair, tmp_path: Path) -> Path:
 
 
 def test_caution_and_page_numbers_on_every_page(clinic_pdf: Path):
-    texts = pages_text(clinic_pdf)
+    texts = pdf_pages(clinic_pdf)
     assert len(texts) >= 3
     for n, t in enumerate(texts, 1):
         assert CAUTION in t, f"page {n} lacks the caution"
@@ -51,7 +42,7 @@ def test_caution_and_page_numbers_on_every_page(clinic_pdf: Path):
 
 def test_page_one_has_tier_building_and_the_rest(clinic_pair, clinic_pdf: Path):
     _s, a = clinic_pair
-    one = pages_text(clinic_pdf)[0]
+    one = pdf_pages(clinic_pdf)[0]
     assert "◐ hold" in one
     assert "Ngāti Whare Clinic, Øster wing ≤ ± θ" in one
     assert "1 Test Lane, Kōwhai Bay" in one
@@ -66,14 +57,14 @@ def test_page_one_has_tier_building_and_the_rest(clinic_pair, clinic_pdf: Path):
 
 
 def test_markup_in_user_text_is_literal(clinic_pdf: Path):
-    everything = " ".join(pages_text(clinic_pdf))
+    everything = " ".join(pdf_pages(clinic_pdf))
     assert "north bay: <b>bold?</b> & </para> stays as typed" in everything
     assert "diagonal cracking <b>over 1 mm</b> & wide" in everything
     assert "loose <i>coping</i> & glass" in everything
 
 
 def test_later_pages_storeys_members_method(clinic_pdf: Path):
-    rest = " ".join(pages_text(clinic_pdf)[1:])
+    rest = " ".join(pdf_pages(clinic_pdf)[1:])
     for heading in ("Storeys (top to bottom)", "Drift profile", "Member groups", "Hazards",
                     "Repairability (named alternatives)", "Method", "Tables used",
                     "Assumptions applied"):
@@ -178,7 +169,7 @@ def test_tall_building_report(tmp_path: Path):
     s = make(storeys)
     out = tmp_path / "tall.pdf"
     info = write_report(s, assess(s), out)
-    texts = pages_text(out)
+    texts = pdf_pages(out)
     assert info.pages == len(texts) > 3
     assert all(CAUTION in t for t in texts)
     rest = " ".join(texts[1:])
@@ -193,7 +184,7 @@ def test_comparison_section_drawn(clinic_pair, tmp_path: Path):
     s, a = clinic_pair
     out = tmp_path / "cmp.pdf"
     write_report(s, a, out, comparison=Cmp())
-    rest = " ".join(pages_text(out)[1:])
+    rest = " ".join(pdf_pages(out)[1:])
     assert "Since the previous inspection" in rest
     assert "storey 1, y: 0.40% then, 0.60% now" in rest
 
@@ -213,7 +204,7 @@ def test_long_lists_continue_and_page_one_keeps_the_signing_block(tmp_path: Path
     s = make([storey("1", [reading("x", 3.0), reading("y", 1.0)])], hazards=hazards)
     out = tmp_path / "many.pdf"
     write_report(s, assess(s), out)
-    texts = pages_text(out)
+    texts = pdf_pages(out)
     one = texts[0]
     assert "Engineer of record" in one and "UNSIGNED" in one and "◐ hold" in one
     assert "more on the next page" in one

@@ -3,13 +3,12 @@ survey fields, no internal key, and the caution and signed state on every page."
 
 from __future__ import annotations
 
-import io
 import re
 from pathlib import Path
 
 import pytest
-from pypdf import PdfReader
 
+from tests.helpers import flat, pdf_pages
 from tests.report.conftest import clinic_dict
 from triage.assess import CAUTION, assess
 from triage.model import parse_survey, parse_survey_text
@@ -22,14 +21,6 @@ from triage.standards.vocabulary import vocabulary
 SAMPLES = sorted(samples_dir().glob("*.json"))
 
 
-def flat(text: str) -> str:
-    return re.sub(r"\s+", " ", text)
-
-
-def pages(pdf: bytes) -> list[str]:
-    return [flat(p.extract_text()) for p in PdfReader(io.BytesIO(pdf)).pages]
-
-
 def _sample(path: Path):
     s = parse_survey_text(path.read_text(encoding="utf-8"))
     return s, assess(s)
@@ -38,7 +29,7 @@ def _sample(path: Path):
 @pytest.fixture(scope="module", params=SAMPLES, ids=[p.stem for p in SAMPLES])
 def sample(request):
     s, a = _sample(request.param)
-    return s, a, pages(render_report(s, a, photo_dir=request.param.parent))
+    return s, a, pdf_pages(render_report(s, a, photo_dir=request.param.parent))
 
 
 def _num(v: float) -> str:
@@ -100,7 +91,7 @@ def test_caution_sits_with_the_tier(sample):
 def test_signed_state_on_every_page(clinic_pair, tmp_path: Path):
     s, a = clinic_pair
     key, _ = new_key("Aroha Ngāti", "R-77", tmp_path / "k.key", None, algorithm="ecdsa-p256")
-    text = pages(render_report(s, a, key=key))
+    text = pdf_pages(render_report(s, a, key=key))
     for page in text:
         assert "SIGNED by Aroha Ngāti" in page and "UNSIGNED" not in page
 
@@ -116,7 +107,7 @@ def test_new_fields_and_provisional_storeys_are_printed():
     s = parse_survey(d)
     a = assess(s)
     assert a.provisional
-    allt = " ".join(pages(render_report(s, a)))
+    allt = " ".join(pdf_pages(render_report(s, a)))
     for want in ("1968", "Mere Kawa (id T-9)", "Kōwhai Bay swarm, main shock",
                  "roof space above level 1", "rain, 12 °C", "storey 1 (no member group)"):
         assert want in allt, want
@@ -129,5 +120,5 @@ def test_a_reading_whose_place_is_at_the_text_limit_is_still_reported():
     place = " ".join(["north-west corner column face beside the stair"] * 42)[:2000]
     d["storeys"][0]["readings"][0]["where"] = place
     survey = parse_survey(d)
-    text = flat("".join(pages(render_report(survey, assess(survey)))))
+    text = flat("".join(pdf_pages(render_report(survey, assess(survey)))))
     assert flat(place[:200]) in text and flat(place[-40:]) in text

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import json
 from pathlib import Path
+from typing import Any
 
 import pytest
 
@@ -17,17 +18,34 @@ import triage.report as report
 import triage.report.draw as draw
 from triage.assess.result import Assessment
 from triage.report import write_report
-from triage.report.keys import TRUST_FILE, home, new_key
-from triage.report.verify import import_verdict, verify_report
-
-WAYS = ["ecdsa-p256", "ed25519"]
+from triage.report.keys import TRUST_FILE, home
+from triage.report.verify import VerifyResult, import_verdict, verify_report
 
 
-@pytest.fixture(params=WAYS)
-def key(request, tmp_path: Path):
-    k, _ = new_key("Aroha Ngāti", "R-77", tmp_path / "aroha.key", None, algorithm=request.param)
-    return k
+def _signed_with(monkeypatch, clinic_pair, key, out: Path, where: Any, name: str,
+                 stand_in: Any) -> VerifyResult:
+    """The clinic's report written to `out` and signed by `key` while `where.name` is
+    `stand_in` (so the signature is sound over what went in), then verified."""
+    monkeypatch.setattr(where, name, stand_in)
+    write_report(*clinic_pair, out, key=key)
+    monkeypatch.undo()
+    return verify_report(out, trusted=[key.public])
 
+
+def _survey_text(survey, *changes: tuple[Any, ...]):
+    """A stand-in for `survey_text`: the survey's JSON with each (path..., value) set."""
+    def text(_survey) -> str:
+        d = json.loads(survey.model_dump_json())
+        for *path, value in changes:
+            at = d
+            for k in path[:-1]:
+                at = at[k]
+            at[path[-1]] = value
+        return json.dumps(d)
+    return text
+
+
+NEGATIVE_HEIGHT = ("storeys", 0, "height_m", -3.0)   # no storey is of negative height
 
 @pytest.mark.parametrize("dropped", ["survey.json", "assessment.json", "signer.json"])
 def test_a_signed_report_missing_an_embedded_file_is_changed(clinic_pair, key, tmp_path,
@@ -37,11 +55,8 @@ def test_a_signed_report_missing_an_embedded_file_is_changed(clinic_pair, key, t
     def without(doc, files, signed):
         real(doc, [f for f in files if f[0] != dropped], signed)
 
-    monkeypatch.setattr(draw, "add_to_document", without)
     out = tmp_path / "r.pdf"
-    write_report(*clinic_pair, out, key=key)
-    monkeypatch.undo()
-    r = verify_report(out, trusted=[key.public])
+    r = _signed_with(monkeypatch, clinic_pair, key, out, draw, "add_to_document", without)
     assert (r.code, r.message) == (1, f"{out}: changed or damaged: embedded {dropped} missing")
     v = import_verdict(out, trusted=[key.public])
     assert v.refused == (f"{out}: refused, the report is changed or damaged: embedded "
@@ -64,18 +79,9 @@ def test_an_unreadable_trusted_key_list_is_said_and_not_trusted(clinic_pair, key
 
 def test_an_embedded_survey_this_engine_refuses_is_exit_5(clinic_pair, key, tmp_path,
                                                           monkeypatch):
-    s, a = clinic_pair
-
-    def refused(survey):
-        d = json.loads(s.model_dump_json())
-        d["storeys"][0]["height_m"] = -3.0   # no storey is of negative height
-        return json.dumps(d)
-
-    monkeypatch.setattr(report, "survey_text", refused)
     out = tmp_path / "r.pdf"
-    write_report(s, a, out, key=key)
-    monkeypatch.undo()
-    r = verify_report(out, trusted=[key.public])
+    r = _signed_with(monkeypatch, clinic_pair, key, out, report, "survey_text",
+                     _survey_text(clinic_pair[0], NEGATIVE_HEIGHT))
     assert r.code == 5, r.message
     assert "; but this engine refuses the embedded survey (storeys[0].height_m: " in r.message
     assert r.message.startswith(f"{out}: intact, signed by Aroha Ngāti (id R-77)")
@@ -93,15 +99,11 @@ def test_an_embedded_survey_this_engine_refuses_is_exit_5(clinic_pair, key, tmp_
 ], ids=["no tier", "an unknown tier", "two keys"])
 def test_an_embedded_assessment_this_engine_cannot_read_is_exit_5(clinic_pair, key, tmp_path,
                                                                   monkeypatch, change, said):
-    s, a = clinic_pair
-    d = json.loads(a.to_json())
+    d = json.loads(clinic_pair[1].to_json())
     change(d)
     text = json.dumps(d)
-    monkeypatch.setattr(Assessment, "to_json", lambda self: text)
-    out = tmp_path / "r.pdf"
-    write_report(s, a, out, key=key)
-    monkeypatch.undo()
-    r = verify_report(out, trusted=[key.public])
+    r = _signed_with(monkeypatch, clinic_pair, key, tmp_path / "r.pdf", Assessment, "to_json",
+                     lambda self: text)
     assert r.code == 5, r.message
     # each key refused is named, never "1 validation error for Assessment"
     more = f"; {len(said)} keys refused, each in the notes" if len(said) > 1 else ""
@@ -113,19 +115,10 @@ def test_an_embedded_assessment_this_engine_cannot_read_is_exit_5(clinic_pair, k
 
 def test_every_rule_an_embedded_survey_breaks_is_named_once_each(clinic_pair, key, tmp_path,
                                                                  monkeypatch, capsys):
-    s, a = clinic_pair
-
-    def refused(survey):
-        d = json.loads(s.model_dump_json())
-        d["storeys"][0]["height_m"] = -3.0
-        d["storeys"][0]["readings"][0]["dir"] = "z"
-        return json.dumps(d)
-
-    monkeypatch.setattr(report, "survey_text", refused)
     out = tmp_path / "r.pdf"
-    write_report(s, a, out, key=key)
-    monkeypatch.undo()
-    r = verify_report(out, trusted=[key.public])
+    r = _signed_with(monkeypatch, clinic_pair, key, out, report, "survey_text",
+                     _survey_text(clinic_pair[0], NEGATIVE_HEIGHT,
+                                  ("storeys", 0, "readings", 0, "dir", "z")))
     assert r.code == 5 and "more" not in r.message
     assert "(storeys[0].height_m: " in r.message and "; 2 rules broken, each in the notes)" \
         in r.message

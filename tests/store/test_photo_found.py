@@ -11,7 +11,6 @@ import pytest
 from PIL import Image
 
 from tests.store.conftest import sample_dict
-from triage.cli import main
 from triage.model import parse_survey
 from triage.photos import sha256_hex
 from triage.store import Store, SurveyConflict
@@ -21,12 +20,6 @@ def _jpeg(shade: int = 90) -> bytes:
     buf = io.BytesIO()
     Image.new("RGB", (64, 48), (shade, 100, 110)).save(buf, format="JPEG")
     return buf.getvalue()
-
-
-def _run(capsys: pytest.CaptureFixture[str], *argv: str) -> tuple[int, str, str]:
-    code = main(list(argv))
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def _file(folder: Path, name: str = "Harbour Flats") -> Path:
@@ -39,14 +32,14 @@ def _file(folder: Path, name: str = "Harbour Flats") -> Path:
     return f
 
 
-def test_a_photo_found_later_is_attached_to_the_same_survey(tmp_path, capsys):
+def test_a_photo_found_later_is_attached_to_the_same_survey(tmp_path, cli):
     field = tmp_path / "field"
     (field / "img").mkdir(parents=True)
     w2 = _jpeg(30)
     (field / "img" / "w2.jpg").write_bytes(w2)
     src = _file(field)
     db = tmp_path / "field.db"
-    code, out, err = _run(capsys, "--db", str(db), "import", str(src))
+    code, out, err = cli("--db", str(db), "import", str(src))
     assert code == 0 and out == "" and err.startswith("imported") and "img/stair.jpg" in err
     with Store.open(db) as st:
         (row,) = st.list_surveys()
@@ -55,7 +48,7 @@ def test_a_photo_found_later_is_attached_to_the_same_survey(tmp_path, capsys):
     # the photo turns up (copied off the camera late): import the same file again
     stair = _jpeg(200)
     (field / "img" / "stair.jpg").write_bytes(stair)
-    code, out, err = _run(capsys, "--db", str(db), "import", str(src))
+    code, out, err = cli("--db", str(db), "import", str(src))
     assert code == 0, err
     assert out == "" and err.startswith(f"photos added {sid}")
     assert "missing at import now found" in err
@@ -73,7 +66,7 @@ def test_a_photo_found_later_is_attached_to_the_same_survey(tmp_path, capsys):
         r = st.survey_row(sid)
         assert r is not None and r.revision == 2 and not r.stale
     # and once more: nothing left to do
-    code, out, err = _run(capsys, "--db", str(db), "import", str(src))
+    code, out, err = cli("--db", str(db), "import", str(src))
     assert code == 0 and out == "" and err.startswith("unchanged")
 
 

@@ -41,11 +41,17 @@ from triage.store.writes import import_uid
 PASSWORD = "bench-field-login"
 
 
-def demo_laptop(path: Path, n: int, seed: str = "bench") -> None:
-    """A laptop database of `n` demo-size surveys: the samples, then copies with new ids."""
-    st = Store.open(path, who="bench")
+def demo_laptop(path: Path, n: int, seed: str = "bench", who: str = "bench") -> list[str]:
+    """A laptop database of `n` demo-size surveys (the samples, then copies with new ids).
+
+    The samples go through `add_survey` (and the engine); each copy is a sample's rows with its
+    ids and building name changed and its assessment carried over, so thousands take seconds.
+    The same `seed` gives the same ids, JSON and import change ids on every laptop (as when two
+    laptops import the same files). Returns the survey ids. The centre's tests use it too.
+    """
+    st = Store.open(path, who=who)
     base = []
-    for p in sorted(samples_dir().glob("*.json")):
+    for p in sorted(samples_dir().glob("*.json"))[:n]:
         s = parse_survey_text(p.read_text(encoding="utf-8"))
         st.add_survey(s, source="sample")
         base.append(str(s.survey_id))
@@ -57,28 +63,31 @@ def demo_laptop(path: Path, n: int, seed: str = "bench") -> None:
                          (sid,)).fetchone() for sid in base}
     aj = {sid: json.loads(c.execute("SELECT json FROM assessments WHERE survey_id = ?",
                                     (sid,)).fetchone()[0]) for sid in base}
+    ids = list(base)
     c.execute("BEGIN IMMEDIATE")
     for i in range(len(base), n):
         src = base[i % len(base)]
         row = dict(rows[src])
         doc = json.loads(row["doc"])
-        sid = str(uuid.uuid5(uuid.NAMESPACE_URL, f"bench:{seed}:{i}"))
+        sid = str(uuid.uuid5(uuid.NAMESPACE_URL, f"laptop:{seed}:{i}"))
         doc["id"] = sid
-        doc["building"]["id"] = str(uuid.uuid5(uuid.NAMESPACE_URL, f"bench-b:{seed}:{i}"))
-        doc["building"]["name"] = f"{doc['building']['name']} ({i})"
+        doc["building"]["id"] = str(uuid.uuid5(uuid.NAMESPACE_URL, f"building:{seed}:{i}"))
+        doc["building"]["name"] = f"{doc['building']['name']} ({seed}{i})"
         text = canonical_json(doc)
         row.update(id=sid, doc=text, building_id=doc["building"]["id"],
                    building=doc["building"]["name"])
         c.execute(f"INSERT INTO surveys ({', '.join(names)}) VALUES "
                   f"({', '.join('?' for _ in names)})", [row[k] for k in names])
-        op, at, who = ch[src]
+        op, at, by = ch[src]
         c.execute("INSERT INTO changes (uid, survey_id, revision, op, path, old, new, at, who) "
                   "VALUES (?, ?, 1, ?, '', NULL, ?, ?, ?)",
-                  (import_uid(sid, text), sid, op, text, at, who))
+                  (import_uid(sid, text), sid, op, text, at, by))
         c.execute("INSERT INTO assessments (survey_id, revision, json) VALUES (?, 1, ?)",
                   (sid, json.dumps(dict(aj[src], survey=sid, building=doc["building"]["id"]))))
+        ids.append(sid)
     c.execute("COMMIT")
     st.close()
+    return ids
 
 
 def _centre(pg: Cluster, name: str) -> str:

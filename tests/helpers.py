@@ -9,6 +9,7 @@ import io
 import json
 import os
 import re
+import shutil
 from collections.abc import Callable
 from pathlib import Path
 from typing import Any
@@ -40,6 +41,17 @@ def cli(capsys: pytest.CaptureFixture[str]) -> Run:
         got = capsys.readouterr()
         return code, got.out, got.err
     return run
+
+
+def program(name: str, package: str) -> str:
+    """The path of a program some tests run (poppler's, tmux). Missing, it fails the test under
+    CI (`CI` set, as `.ci/run` sets it, which installs them all) and skips it elsewhere."""
+    found = shutil.which(name)
+    if found is None:
+        if os.environ.get("CI"):
+            pytest.fail(f"{name} ({package}) is required when CI is set; .ci/run installs it")
+        pytest.skip(f"{name} ({package}) is not installed; CI requires it")
+    return found
 
 
 def unmeasured_env() -> dict[str, str]:

@@ -11,25 +11,23 @@ from __future__ import annotations
 
 import atexit
 import itertools
-import json
 import os
 import shutil
 import subprocess
 import sys
 import tempfile
-import uuid
-from collections.abc import Callable, Iterator
+from collections.abc import Iterator
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
 import pytest
 
+from bench.centre_bench import demo_laptop
+from tests.helpers import cli  # noqa: F401  (the fixture: the command in this process)
 from triage.centre.cluster import Cluster, find_bindir
-from triage.model import canonical_json, parse_survey_text
 from triage.resources import samples_dir
 from triage.store import Store
-from triage.store.writes import import_uid
 
 ROOT = Path(__file__).resolve().parents[2]
 SECRET = "Sw0rdf1sh-kowhai-7731"   # a distinctive part of every test password
@@ -138,63 +136,25 @@ atexit.register(shutil.rmtree, _KEEP, True)
 
 
 def laptop(path: Path, n: int = 8, seed: str = "", who: str = "Tess Tester") -> list[str]:
-    """`make_laptop`, copied from the first one made alike in this session (same db_id)."""
+    """`demo_laptop`, copied from the first one made alike in this session (same db_id)."""
     key = (n, seed, who)
     if key in _made and _made[key][0].exists():
         shutil.copyfile(_made[key][0], path)
         return list(_made[key][1])
-    ids = make_laptop(path, n, seed, who)
+    ids = demo_laptop(path, n, seed, who)
     keep = _KEEP / f"{len(_made)}.db"
     shutil.copyfile(path, keep)
     _made[key] = (keep, ids)
     return ids
 
 
-def make_laptop(path: Path, n: int = 8, seed: str = "", who: str = "Tess Tester") -> list[str]:
-    """A laptop database of `n` demo-size surveys (the samples, then copies with new ids).
+def synced(centre: Centre, tmp_path: Path, n: int = 8) -> None:
+    """A laptop of `n` demo-size surveys (`lap.db` in `tmp_path`) synced into the centre."""
+    from triage.centre.sync import sync
 
-    The samples go through `add_survey` (and the engine); each copy is a sample's rows with
-    its ids and building name changed and its assessment carried over, so hundreds take well
-    under a second. The same `seed` gives the same ids, JSON and import change ids on every
-    laptop (as when two laptops import the same files). Returns the survey ids.
-    """
-    st = Store.open(path, who=who)
-    base = []
-    for text in samples()[:n]:
-        s = parse_survey_text(text)
-        st.add_survey(s, source="sample")
-        base.append(str(s.survey_id))
-    c = st.conn
-    names = [r[1] for r in c.execute("PRAGMA table_info(surveys)")]
-    ids = list(base[:n])
-    c.execute("BEGIN IMMEDIATE")
-    for i in range(len(base), n):
-        src = base[i % len(base)]
-        row = dict(zip(names, c.execute("SELECT * FROM surveys WHERE id = ?", (src,)).fetchone(),
-                       strict=True))
-        doc = json.loads(row["doc"])
-        sid = str(uuid.uuid5(uuid.NAMESPACE_URL, f"laptop:{seed}:{i}"))
-        doc["id"] = sid
-        doc["building"]["id"] = str(uuid.uuid5(uuid.NAMESPACE_URL, f"building:{seed}:{i}"))
-        doc["building"]["name"] = f"{doc['building']['name']} ({seed}{i})"
-        text = canonical_json(doc)
-        row.update(id=sid, doc=text, building_id=doc["building"]["id"],
-                   building=doc["building"]["name"])
-        c.execute(f"INSERT INTO surveys ({', '.join(names)}) VALUES "
-                  f"({', '.join('?' for _ in names)})", [row[k] for k in names])
-        ch = c.execute("SELECT op, at, who FROM changes WHERE survey_id = ?", (src,)).fetchone()
-        c.execute("INSERT INTO changes (uid, survey_id, revision, op, path, old, new, at, who) "
-                  "VALUES (?, ?, 1, ?, '', NULL, ?, ?, ?)",
-                  (import_uid(sid, text), sid, ch[0], text, ch[1], ch[2]))
-        a = json.loads(c.execute("SELECT json FROM assessments WHERE survey_id = ?",
-                                 (src,)).fetchone()[0])
-        a.update(survey=sid, building=doc["building"]["id"])
-        c.execute("INSERT INTO assessments (survey_id, revision, json) VALUES (?, 1, ?)",
-                  (sid, json.dumps(a)))
-        ids.append(sid)
-    c.execute("COMMIT")
-    st.close()
-    return ids
+    laptop(tmp_path / "lap.db", n)
+    with Store.open(tmp_path / "lap.db") as st:
+        assert sync(st, centre.field).versions == n
 
 
 def triage(*argv: str, env: dict[str, str] | None = None,
@@ -203,14 +163,3 @@ def triage(*argv: str, env: dict[str, str] | None = None,
     return subprocess.run([sys.executable, "-m", "triage", *argv], capture_output=True,
                           text=True, cwd=ROOT, timeout=timeout,
                           env={**os.environ, **(env or {})}, check=False)
-
-
-@pytest.fixture
-def cli(capsys: pytest.CaptureFixture[str]) -> Callable[..., tuple[int, str, str]]:
-    from triage.cli import main
-
-    def run(*argv: str) -> tuple[int, str, str]:
-        code = main(list(argv))
-        out, err = capsys.readouterr()
-        return code, out, err
-    return run

@@ -7,20 +7,12 @@ from __future__ import annotations
 import json
 
 import triage.centre.reassess as reassess_module
-from tests.centre.conftest import laptop
+from tests.centre.conftest import synced
 from triage.centre.reassess import reassess
-from triage.centre.sync import sync
-from triage.store import Store
-
-
-def _synced(centre, tmp_path, n: int = 8) -> None:
-    laptop(tmp_path / "lap.db", n)
-    with Store.open(tmp_path / "lap.db") as st:
-        assert sync(st, centre.field).versions == n
 
 
 def test_a_new_engine_version_assesses_each_current_version_once(centre, tmp_path, monkeypatch):
-    _synced(centre, tmp_path)
+    synced(centre, tmp_path)
     first = reassess(centre.admin)
     assert (first.assessed, first.current, first.failed) == (0, 8, 0)   # the laptop's own
     monkeypatch.setattr(reassess_module, "__version__", "99.0-test")
@@ -36,7 +28,7 @@ def test_a_new_engine_version_assesses_each_current_version_once(centre, tmp_pat
 
 def test_a_version_this_engine_refuses_is_counted_and_the_rest_assessed(centre, tmp_path,
                                                                        monkeypatch):
-    _synced(centre, tmp_path, n=3)
+    synced(centre, tmp_path, n=3)
     monkeypatch.setattr(reassess_module, "__version__", "99.0-test")
     real_loads = json.loads
     calls = {"n": 0}

@@ -5,7 +5,7 @@ from __future__ import annotations
 import psycopg
 import pytest
 
-from tests.centre.conftest import Centre, laptop, password
+from tests.centre.conftest import Centre, laptop, password, synced
 from triage.centre.schema import KEYS, SENT, TABLES, current_version
 from triage.centre.sync import sync
 from triage.store import Store
@@ -13,16 +13,10 @@ from triage.store import Store
 DATA_TABLES = list(TABLES)
 
 
-def _synced(centre: Centre, tmp_path, n: int = 8) -> None:
-    laptop(tmp_path / "lap.db", n)
-    with Store.open(tmp_path / "lap.db") as st:
-        assert sync(st, centre.field).versions == n
-
-
 def test_init_again_is_harmless_and_says_so(centre, cli, tmp_path):
-    _synced(centre, tmp_path)
+    synced(centre, tmp_path)
     before = centre.rows("SELECT count(*) FROM triage.versions")
-    code, out, err = cli("centre", "init", centre.admin)
+    code, _, err = cli("centre", "init", centre.admin)
     assert code == 0, err
     assert "schema already current" in err and "roles triage_field and triage_read present" in err
     assert centre.rows("SELECT max(version), count(*) FROM triage.schema_version") == [
@@ -50,7 +44,7 @@ def _refused(url: str, statement: str) -> str:
 
 
 def test_the_field_role_can_neither_update_delete_nor_truncate(centre, tmp_path):
-    _synced(centre, tmp_path)
+    synced(centre, tmp_path)
     for table in [*DATA_TABLES, "schema_version", "survey_heads", "building_latest"]:
         col = {"schema_version": "version", "survey_heads": "tier",
                "building_latest": "tier"}.get(table) or SENT[table][-1]
@@ -80,7 +74,7 @@ def test_the_field_role_cannot_forge_what_the_server_records(centre):
 
 
 def test_the_read_role_cannot_insert(centre, tmp_path):
-    _synced(centre, tmp_path)
+    synced(centre, tmp_path)
     for table in DATA_TABLES:
         cols = SENT[table]
         assert "permission denied" in _refused(
@@ -109,7 +103,7 @@ def test_a_login_in_no_role_is_told_in_one_line(centre, pg, tmp_path, cli):
 
 
 def test_the_map_view_is_a_postgis_layer_with_a_spatial_index(centre, tmp_path):
-    _synced(centre, tmp_path)
+    synced(centre, tmp_path)
     cols = dict(centre.rows("SELECT attname, format_type(atttypid, atttypmod) FROM "
                             "pg_attribute WHERE attrelid = 'triage.building_map'::regclass "
                             "AND attnum > 0"))
@@ -182,21 +176,20 @@ def test_an_older_schema_is_upgraded_in_place_keeping_every_row(pg, tmp_path, cl
         with Store.open(tmp_path / "lap.db") as st:
             assert sync(st, pg.url("older", "field3", password("field3"))).versions == 8
     # This triage refuses to use it until it is upgraded, then upgrades it, rows kept.
-    code, out, err = cli("--db", str(tmp_path / "lap.db"), "sync", "--to",
-                         pg.url("older", "field3", password("field3")))
+    code, _, err = cli("--db", str(tmp_path / "lap.db"), "sync", "--to",
+                       pg.url("older", "field3", password("field3")))
     assert code == 1 and "run 'triage centre init URL' there to upgrade" in err
-    code, out, err = cli("centre", "init", url)
+    code, _, err = cli("centre", "init", url)
     assert code == 0 and f"schema upgraded to version {current_version()}" in err, err
     assert pg.sql("SELECT count(*) FROM triage.versions", "older") == "8"
     assert pg.sql("SELECT count(*) FROM triage.building_map", "older") == "7"
-    code, out, err = cli("--db", str(tmp_path / "lap.db"), "sync", "--to",
-                         pg.url("older", "field3", password("field3")))
+    code, _, err = cli("--db", str(tmp_path / "lap.db"), "sync", "--to",
+                       pg.url("older", "field3", password("field3")))
     assert code == 0 and "nothing to send" in err, err
 
 
 def test_a_version_3_centre_gets_its_tables_filled_and_kept_current(pg, tmp_path, cli,
                                                                      monkeypatch):
-    from tests.centre.conftest import Centre
     from triage.centre import schema
 
     pg.createdb("third")
@@ -211,7 +204,7 @@ def test_a_version_3_centre_gets_its_tables_filled_and_kept_current(pg, tmp_path
             st.set_value(st.list_surveys()[0].id, "storeys[0].notes", "looked again")
             assert sync(st, pg.url("third", "field4", password("field4"))).versions == 8
         assert pg.sql("SELECT to_regclass('triage.survey_heads')", "third") == ""
-    code, out, err = cli("centre", "init", url)
+    code, _, err = cli("centre", "init", url)
     assert code == 0 and f"schema upgraded to version {current_version()}" in err, err
     assert pg.sql("SELECT to_regclass('triage.building_summary')", "third") == ""
     centre = Centre(pg, "third")

@@ -34,7 +34,7 @@ def test_no_password_in_any_output_of_any_command(centre, pg, tmp_path, cli):
         outputs.append(got[1] + got[2])
         return got
 
-    code, out, err = run("--db", str(db), "sync", "--to", centre.field)
+    code, _, err = run("--db", str(db), "sync", "--to", centre.field)
     assert code == 0 and f"postgresql://field1@127.0.0.1:{port}/{centre.name}" in err, err
     assert run("--db", str(db), "sync", "--to", centre.field)[0] == 0
     err = _one_line(*run("--db", str(db), "sync", "--to", wrong))

@@ -49,11 +49,11 @@ def test_sync_twice_sends_nothing_the_second_time_and_says_so(centre, tmp_path, 
     ids = laptop(db, 12)
     with Store.open(db) as st:
         st.record_report(ids[0], 1, "r.pdf", None)
-    code, out, err = cli("--db", str(db), "sync", "--to", centre.field)
+    code, _, err = cli("--db", str(db), "sync", "--to", centre.field)
     assert code == 0, err
     assert "sent 12 survey versions, 12 changes, 12 assessments, 1 report records" in err
     before = centre.rows("SELECT count(*), max(seq) FROM triage.versions")
-    code, out, err = cli("--db", str(db), "sync", "--to", centre.field)
+    code, _, err = cli("--db", str(db), "sync", "--to", centre.field)
     assert code == 0, err
     assert "nothing to send; the centre holds all 12 surveys" in err
     assert centre.rows("SELECT count(*), max(seq) FROM triage.versions") == before
@@ -63,7 +63,7 @@ def test_sync_twice_sends_nothing_the_second_time_and_says_so(centre, tmp_path, 
     # assessment recomputed by the laptop.
     with Store.open(db) as st:
         st.set_value(ids[3], "storeys[0].notes", "stair core checked again")
-    code, out, err = cli("--db", str(db), "sync", "--to", centre.field)
+    code, _, err = cli("--db", str(db), "sync", "--to", centre.field)
     assert code == 0, err
     assert "sent 1 survey version, 1 changes, 1 assessments, 0 report records" in err
     assert centre.rows("SELECT count(*) FROM triage.versions") == [(13,)]

@@ -93,7 +93,8 @@ def test_form_to_dash_is_the_pdf_a_file_gets(tmp_path):
     assert triage("form", "rc_frame", "-o", str(to_file), "--storeys", "2").returncode == 0
     got = triage("form", "rc_frame", "-o", "-", "--storeys", "2")
     assert got.returncode == 0 and got.stdout == to_file.read_bytes()
-    assert got.stderr.decode().startswith("standard output: paper form for concrete frame (rc_frame)")
+    assert got.stderr.decode().startswith(
+        "standard output: paper form for concrete frame (rc_frame)")
 
 
 def test_compare_to_dash_is_the_pdf_a_file_gets(tmp_path):

@@ -1,4 +1,5 @@
-"""Tables line up by display width: wide, combining and control characters, measured as rich does."""
+"""Tables line up by display width: wide, combining and control characters, measured as rich
+does."""
 
 from __future__ import annotations
 

@@ -8,9 +8,7 @@ grey (R = G = B).
 
 from __future__ import annotations
 
-import os
 import re
-import shutil
 import subprocess
 from pathlib import Path
 
@@ -18,6 +16,7 @@ import pytest
 
 from tests.forms.conftest import CASES
 from tests.forms.pdfgrid import Page, cell_text, grids
+from tests.helpers import program
 from triage import standards
 from triage.forms import load_form
 from triage.resources import forms_dir
@@ -30,32 +29,31 @@ UI = Path(member_pane.__file__).resolve().parents[1]
 
 # Every labelled box, top to bottom and left to right, and where the screens take its field:
 # (start of the printed label, screen source file, the field's path or key as that file names it)
+def _taken_by(source: str, *boxes: tuple[str, str]) -> list[tuple[str, str, str]]:
+    """(label, source, '"field"') for each (label, field) one screen source takes."""
+    return [(label, source, f'"{field}"') for label, field in boxes]
+
+
 PAGE_ONE = [
-    ("name", "screens/new_survey.py", '"building.name"'),
-    ("address", "screens/new_survey.py", '"building.address"'),
-    ("use", "screens/new_survey.py", '"building.use"'),
-    ("year built", "screens/new_survey.py", '"building.year_built"'),
-    ("latitude (°)", "screens/new_survey.py", '"building.location.lat"'),
-    ("longitude (°)", "screens/new_survey.py", '"building.location.lon"'),
-    ("storeys named (circle one", "screens/new_survey.py", '"storeys.naming"'),
-    ("storeys above ground", "screens/new_survey.py", '"storeys.above"'),
-    ("storeys below ground", "screens/new_survey.py", '"storeys.below"'),
-    ("inspector: name", "screens/new_survey.py", '"inspection.inspector.name"'),
-    ("inspector: id", "screens/new_survey.py", '"inspection.inspector.id"'),
-    ("date and time (with the UTC offset", "screens/new_survey.py", '"inspection.at"'),
-    ("team: name (id); name (id)", "screens/new_survey.py", '"inspection.team"'),
-    ("event", "screens/new_survey.py", '"inspection.event"'),
-    ("weather", "screens/new_survey.py", '"inspection.weather"'),
-    ("not inspected", "screens/new_survey.py", '"inspection.not_inspected"'),
+    *_taken_by("screens/new_survey.py",
+               ("name", "building.name"), ("address", "building.address"),
+               ("use", "building.use"), ("year built", "building.year_built"),
+               ("latitude (°)", "building.location.lat"),
+               ("longitude (°)", "building.location.lon"),
+               ("storeys named (circle one", "storeys.naming"),
+               ("storeys above ground", "storeys.above"),
+               ("storeys below ground", "storeys.below"),
+               ("inspector: name", "inspection.inspector.name"),
+               ("inspector: id", "inspection.inspector.id"),
+               ("date and time (with the UTC offset", "inspection.at"),
+               ("team: name (id); name (id)", "inspection.team"), ("event", "inspection.event"),
+               ("weather", "inspection.weather"), ("not inspected", "inspection.not_inspected")),
     ("previous survey, for a re-inspection", "screens/survey_list.py", "def action_reinspect"),
 ]
-STOREY = [
-    ("label (as marked on site)", "widgets/storey_pane.py", '"label"'),
-    ("height (m)", "widgets/storey_pane.py", '"height_m"'),
-    ("below ground", "widgets/storey_pane.py", '"below_grade"'),
-    ("access (circle one)", "widgets/storey_pane.py", '"access"'),
-    ("notes (and photo numbers", "widgets/storey_pane.py", '"notes"'),
-]
+STOREY = _taken_by("widgets/storey_pane.py",
+                   ("label (as marked on site)", "label"), ("height (m)", "height_m"),
+                   ("below ground", "below_grade"), ("access (circle one)", "access"),
+                   ("notes (and photo numbers", "notes"))
 READING_KEYS = {"direction": "dir", "where": "where", "offset (mm)": "offset_mm",
                 "gauge (mm)": "gauge_mm", "uncertainty (mm)": "sd_mm",
                 "as-built offset (mm)": "baseline_mm", "as-built uncertainty (mm)":
@@ -88,17 +86,20 @@ def _boxes(page: Page) -> list[str]:
     return out
 
 
-def _screens_take(source: str, name: str) -> bool:
-    return name in (UI / source).read_text(encoding="utf-8")
+def _asks_exactly(name: str, page: Page, wanted: list[tuple[str, str, str]]) -> list[str]:
+    """The page's labelled boxes, checked against `wanted` in order: each box's label, and
+    that the screen source named takes its field. Returns the boxes."""
+    boxes = [b for b in _boxes(page) if not b.startswith("Indicative only")]
+    assert len(boxes) == len(wanted), (name, boxes)
+    for text, (label, source, field) in zip(boxes, wanted, strict=True):
+        assert text.startswith(label), (name, text, label)
+        assert field in (UI / source).read_text(encoding="utf-8"), (label, source, field)
+    return boxes
 
 
 def test_page_one_asks_exactly_for_the_fields_the_screens_take(printed) -> None:
     for name, pages in printed.items():
-        boxes = [b for b in _boxes(pages[0]) if not b.startswith("Indicative only")]
-        assert len(boxes) == len(PAGE_ONE), (name, boxes)
-        for text, (label, source, field) in zip(boxes, PAGE_ONE, strict=True):
-            assert text.startswith(label), (name, text, label)
-            assert _screens_take(source, field), (label, source, field)
+        _asks_exactly(name, pages[0], PAGE_ONE)
         whole = " ".join(p.text for p in pages).lower()
         for absent in ("typed in by", "typed into triage by", "second inspector"):
             assert absent not in whole, (name, absent)
@@ -113,11 +114,7 @@ def test_page_one_asks_exactly_for_the_fields_the_screens_take(printed) -> None:
 def test_storey_bands_ask_for_the_fields_the_screens_take(printed) -> None:
     for name, pages in printed.items():
         band = next(p for p in pages if "Storey band 1" in p.text)
-        boxes = [b for b in _boxes(band) if not b.startswith("Indicative only")]
-        assert len(boxes) == len(STOREY), (name, boxes)
-        for text, (label, source, field) in zip(boxes, STOREY, strict=True):
-            assert text.startswith(label), (name, text, label)
-            assert _screens_take(source, field), (label, source, field)
+        boxes = _asks_exactly(name, band, STOREY)
         assert "all entered partly entered not entered" in " ".join(boxes[3].split())
         heads = {h for p in pages for g in grids(p) for h in g.heads(p)}
         signs = {words("signs", s) for s in standards.load().signs}
@@ -189,10 +186,7 @@ def test_every_colour_set_is_a_grey(printed) -> None:
 
 
 def test_every_pixel_is_grey(printed_forms, tmp_path: Path) -> None:
-    if shutil.which("pdftoppm") is None:
-        if os.environ.get("CI"):
-            pytest.fail("pdftoppm (poppler-utils) is required when CI is set; .ci/run installs it")
-        pytest.skip("poppler's pdftoppm is not installed (.ci/run installs poppler-utils)")
+    program("pdftoppm", "poppler-utils")
     from PIL import Image
 
     path, pages = printed_forms["mixed"]

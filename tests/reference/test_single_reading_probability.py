@@ -1,9 +1,10 @@
 """The tier probability of a single reading against scipy.stats.norm.
 
 Source: the normal distribution (standard statistics); the reading's stated standard
-uncertainty is its sigma (docs/references.md, default uncertainties: common practice for the defaults). For one
-reading d ~ N(mu, s) in a concrete frame, P(occupy) = P(|d| <= IO) = Phi((IO-mu)/s) -
-Phi((-IO-mu)/s), and P(evacuate) = 1 - P(|d| <= LS). Tolerance 1e-6.
+uncertainty is its sigma (docs/references.md, default uncertainties: common practice for the
+defaults). For one reading d ~ N(mu, s) in a concrete frame,
+P(occupy) = P(|d| <= IO) = Phi((IO-mu)/s) - Phi((-IO-mu)/s), and
+P(evacuate) = 1 - P(|d| <= LS). Tolerance 1e-6.
 """
 
 from __future__ import annotations

@@ -6,9 +6,7 @@ from __future__ import annotations
 
 import io
 import itertools
-import os
 import re
-import shutil
 import subprocess
 from pathlib import Path
 from typing import Any
@@ -17,6 +15,7 @@ from xml.etree import ElementTree
 import pytest
 from pypdf import PdfReader
 
+from tests.helpers import program
 from tests.report.conftest import clinic_dict
 from triage.assess import assess
 from triage.model import parse_survey, parse_survey_text
@@ -143,10 +142,7 @@ def _word_boxes(pdf: Path) -> list[list[tuple[float, float, float, float, str]]]
 
 def pdftotext_or_skip() -> None:
     """pdftotext is needed: a failure under CI, else a skip."""
-    if shutil.which("pdftotext") is None:
-        if os.environ.get("CI"):
-            pytest.fail("pdftotext (poppler-utils) is missing")
-        pytest.skip("pdftotext (poppler-utils) is not installed")
+    program("pdftotext", "poppler-utils")
 
 
 @pytest.mark.parametrize("path", SAMPLES, ids=[p.stem for p in SAMPLES])

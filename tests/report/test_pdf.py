@@ -4,8 +4,6 @@ reproducible bytes, embedded survey and assessment, photos, rendering with poppl
 from __future__ import annotations
 
 import json
-import os
-import shutil
 import subprocess
 import sys
 from pathlib import Path
@@ -13,7 +11,7 @@ from pathlib import Path
 import pytest
 from pypdf import PdfReader
 
-from tests.helpers import flat, make, pdf_pages, reading, storey
+from tests.helpers import flat, make, pdf_pages, program, reading, storey
 from tests.report.conftest import clinic_dict
 from triage.assess import CAUTION, assess
 from triage.model import parse_survey, parse_survey_text
@@ -125,10 +123,7 @@ def test_read_embedded_refuses_plainly(tmp_path: Path):
 
 
 def test_page_one_renders_with_poppler(clinic_pdf: Path, tmp_path: Path):
-    if shutil.which("pdftoppm") is None:
-        if os.environ.get("CI"):
-            pytest.fail("pdftoppm (poppler-utils) is required when CI is set; .ci/run installs it")
-        pytest.skip("poppler's pdftoppm is not installed (.ci/run installs poppler-utils)")
+    program("pdftoppm", "poppler-utils")
     from PIL import Image
 
     subprocess.run(["pdftoppm", "-png", "-r", "40", "-f", "1", "-l", "1", str(clinic_pdf),

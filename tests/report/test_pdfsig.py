@@ -8,25 +8,17 @@ laptop without poppler they are skipped, saying so.
 
 from __future__ import annotations
 
-import os
-import shutil
 import subprocess
 from pathlib import Path
 
-import pytest
-
+from tests.helpers import program
 from triage.report import write_report
 from triage.report.keys import new_key
 
 
 def pdfsig() -> str:
     """The pdfsig program; a failure under CI, a skip elsewhere, when it is missing."""
-    exe = shutil.which("pdfsig")
-    if exe is None:
-        if os.environ.get("CI"):
-            pytest.fail("pdfsig (poppler-utils) is required when CI is set; .ci/run installs it")
-        pytest.skip("pdfsig (poppler-utils) is not installed; CI requires it")
-    return exe
+    return program("pdfsig", "poppler-utils")
 
 
 def run_pdfsig(pdf: Path) -> str:

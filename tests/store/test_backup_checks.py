@@ -129,3 +129,45 @@ def test_a_copy_is_one_file_that_needs_no_journal(tmp_path: Path):
         assert c.execute("PRAGMA quick_check").fetchone()[0] == "ok"
     finally:
         c.close()
+
+
+def test_a_file_made_at_a_dangling_links_target_meanwhile_is_not_replaced(tmp_path: Path,
+                                                                          monkeypatch):
+    """The link's target is free when looked at, and another program makes it before the copy
+    goes there: refused as taken, that file kept, nothing left behind."""
+    import triage.output as output
+
+    db, link = tmp_path / "s.db", tmp_path / "usb.db"
+    target = tmp_path / "stick" / "field-copy.db"
+    target.parent.mkdir()
+    link.symlink_to(target)
+    real = output.output_target
+
+    def made_meanwhile(path: Path) -> Path:
+        found = real(path)
+        target.write_bytes(b"the other program's file")
+        return found
+
+    with Store.open(db) as st:
+        st.add_survey(sample("Harbour Flats"))
+        monkeypatch.setattr(output, "output_target", made_meanwhile)
+        with pytest.raises(StoreError) as err:
+            st.backup_to(link)
+    assert str(err.value) == (f"{os.path.realpath(target)}: exists already; choose a new file "
+                              "name for the backup")
+    assert target.read_bytes() == b"the other program's file" and link.is_symlink()
+    assert sorted(p.name for p in target.parent.iterdir()) == ["field-copy.db"]
+
+
+def test_the_name_a_database_was_opened_by_is_never_written_once_its_file_moved(tmp_path: Path):
+    """Its journal files still sit beside that name: a backup there is refused as the database
+    itself, and nothing is written."""
+    db = tmp_path / "s.db"
+    with Store.open(db) as st:
+        st.add_survey(sample("Harbour Flats"))
+        os.rename(db, tmp_path / "moved.db")
+        with pytest.raises(StoreError) as err:
+            st.backup_to(db)
+        assert str(err.value) == f"{db}: is the database itself; choose another file"
+        assert not db.exists() and not (tmp_path / "s.db.part").exists()
+        assert [s.building for s in st.list_surveys()] == ["Harbour Flats"]   # still open

@@ -242,7 +242,8 @@ def test_a_read_only_folder_refuses_in_one_line_and_changes_nothing(shared_dir):
     said = _as_a_user_who_cannot_write(_open_and_edit, str(new), sid)
     assert said == [f"open: {new}: cannot open or create the database there (missing or "
                     "read-only folder?); use triage --db PATH with a writable folder"]
-    assert _digest(p) == before and sorted(x.name for x in shared_dir.iterdir()) == ["field.db", "new.json"]
+    assert _digest(p) == before
+    assert sorted(x.name for x in shared_dir.iterdir()) == ["field.db", "new.json"]
 
 
 def test_a_read_only_file_is_read_but_an_edit_is_refused_and_nothing_changes(shared_dir):

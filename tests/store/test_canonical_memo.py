@@ -13,8 +13,8 @@ def _tall(storeys: int = 300) -> dict[str, Any]:
     return {"format": "triage-survey/2", "id": "s", "building": {"name": "Tall", "address": "1"},
             "inspection": {"at": "2026-11-29T09:00:00+13:00"}, "hazards": [],
             "storeys": [{"label": str(i), "height_m": 3.2,
-                         "readings": [{"dir": "xy"[r % 2], "offset_mm": float(r), "gauge_mm": 2000.0}
-                                      for r in range(8)],
+                         "readings": [{"dir": "xy"[r % 2], "offset_mm": float(r),
+                                       "gauge_mm": 2000.0} for r in range(8)],
                          "members": [{"kind": "column", "count": g + 1} for g in range(10)]}
                         for i in range(storeys)]}
 

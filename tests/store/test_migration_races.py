@@ -7,7 +7,9 @@ upgrade before anything changed.
 
 from __future__ import annotations
 
+import errno
 import multiprocessing
+import os
 import sqlite3
 import sys
 from pathlib import Path
@@ -28,6 +30,17 @@ def _counted_next(conn: sqlite3.Connection) -> None:
     # a test-only next version; ALTER TABLE twice would fail with "duplicate column name"
     CALLS.append(1)
     conn.execute("ALTER TABLE surveys ADD COLUMN weather TEXT NOT NULL DEFAULT 'unknown'")
+
+
+@pytest.fixture
+def behind(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
+    """A database of one survey, one step behind: a test-only next version, its runs counted."""
+    db = tmp_path / "field.db"
+    with Store.open(db) as st:
+        st.add_survey(sample())
+    monkeypatch.setattr(schema, "MIGRATIONS", [*schema.MIGRATIONS, _counted_next])
+    CALLS.clear()
+    return db
 
 
 def _version(path: Path) -> int:
@@ -109,26 +122,38 @@ class _NoVacuum:
         return self.conn.execute(sql, *args)
 
 
-def test_a_backup_that_cannot_be_written_stops_the_upgrade_unchanged(tmp_path, monkeypatch):
-    db = tmp_path / "field.db"
-    with Store.open(db) as st:
-        st.add_survey(sample())
-    monkeypatch.setattr(schema, "MIGRATIONS", [*schema.MIGRATIONS, _counted_next])
-    CALLS.clear()
-    before = _tables(db)
-    conn = connect(db)
+def _disk_full(conn: sqlite3.Connection, monkeypatch: pytest.MonkeyPatch) -> Any:
+    return _NoVacuum(conn)
+
+
+def _read_only_folder(conn: sqlite3.Connection, monkeypatch: pytest.MonkeyPatch) -> Any:
+    def read_only(*args: Any) -> int:
+        raise OSError(errno.EROFS, os.strerror(errno.EROFS))
+
+    monkeypatch.setattr(schema.os, "open", read_only)
+    return conn
+
+
+@pytest.mark.parametrize("fail,said", [
+    (_disk_full, "the disk is full; this change was not saved and earlier data is whole; free "
+                 "some space and try again"),
+    (_read_only_folder, "Read-only file system"),
+], ids=["the copy cannot be written", "its name cannot be claimed"])
+def test_a_backup_that_cannot_be_made_stops_the_upgrade_unchanged(behind, tmp_path, monkeypatch,
+                                                                  fail, said):
+    before = _tables(behind)
+    conn = connect(behind)
     try:
         with pytest.raises(StoreError) as err:
-            schema.ensure_schema(_NoVacuum(conn), db, NOW)   # type: ignore[arg-type]
+            schema.ensure_schema(fail(conn, monkeypatch), behind, NOW)
     finally:
+        monkeypatch.undo()
         conn.close()
     backup = tmp_path / f"field.v{NOW}-backup.db"
-    assert str(err.value) == (
-        f"{db}: could not back up before upgrading the schema ({backup}: the disk is full; "
-        "this change was not saved and earlier data is whole; free some space and try again); "
-        "nothing was changed")
-    assert CALLS == [] and _version(db) == NOW and _tables(db) == before
-    assert not backup.exists()     # the name claimed for the copy is given back
+    assert str(err.value) == (f"{behind}: could not back up before upgrading the schema "
+                              f"({backup}: {said}); nothing was changed")
+    assert CALLS == [] and _version(behind) == NOW and _tables(behind) == before
+    assert not backup.exists()     # the name claimed for the copy is given back, or never taken
 
 
 def test_the_backup_name_never_replaces_an_earlier_backup(tmp_path):
@@ -166,11 +191,8 @@ def test_a_backup_name_is_claimed_so_two_programs_never_share_one(tmp_path, monk
     assert (tmp_path / "field.v1-backup-4.db").read_text() == "the other program's copy"
 
 
-def test_an_upgrade_copies_into_the_name_it_claimed(tmp_path, monkeypatch):
-    db = tmp_path / "field.db"
-    with Store.open(db) as st:
-        st.add_survey(sample())
-    monkeypatch.setattr(schema, "MIGRATIONS", [*schema.MIGRATIONS, _counted_next])
+def test_an_upgrade_copies_into_the_name_it_claimed(behind, tmp_path):
+    db = behind
     (tmp_path / f"field.v{NOW}-backup.db").write_text("taken")
     conn = connect(db)
     try:
@@ -181,31 +203,3 @@ def test_an_upgrade_copies_into_the_name_it_claimed(tmp_path, monkeypatch):
     assert _version(saved) == NOW and _version(db) == NOW + 1
     assert (tmp_path / f"field.v{NOW}-backup.db").read_text() == "taken"
 
-
-def test_a_backup_name_that_cannot_be_claimed_stops_the_upgrade_unchanged(tmp_path,
-                                                                           monkeypatch):
-    import errno
-    import os
-
-    db = tmp_path / "field.db"
-    with Store.open(db) as st:
-        st.add_survey(sample())
-    monkeypatch.setattr(schema, "MIGRATIONS", [*schema.MIGRATIONS, _counted_next])
-    CALLS.clear()
-    before = _tables(db)
-
-    def read_only(*args: Any) -> int:
-        raise OSError(errno.EROFS, os.strerror(errno.EROFS))
-
-    conn = connect(db)
-    try:
-        monkeypatch.setattr(schema.os, "open", read_only)
-        with pytest.raises(StoreError) as err:
-            schema.ensure_schema(conn, db, NOW)
-    finally:
-        monkeypatch.undo()
-        conn.close()
-    assert str(err.value) == (
-        f"{db}: could not back up before upgrading the schema "
-        f"({tmp_path / f'field.v{NOW}-backup.db'}: Read-only file system); nothing was changed")
-    assert CALLS == [] and _version(db) == NOW and _tables(db) == before

@@ -137,14 +137,14 @@ def test_begin_refused_while_another_program_writes(saved, tmp_path: Path) -> No
 def test_an_error_inside_rolls_back_and_a_bug_passes_through_unchanged(tmp_path: Path) -> None:
     conn = sqlite3.connect(tmp_path / "t.db", isolation_level=None)
     conn.execute("CREATE TABLE t (x INTEGER NOT NULL)")
-    with pytest.raises(StoreError, match=r"database error: NOT NULL constraint failed: t\.x"):
-        with immediate(conn, tmp_path / "t.db") as c:
-            c.execute("INSERT INTO t VALUES (1)")
-            c.execute("INSERT INTO t VALUES (NULL)")
-    with pytest.raises(KeyError):   # not an SQLite error: rolled back, raised as it is
-        with immediate(conn, tmp_path / "t.db") as c:
-            c.execute("INSERT INTO t VALUES (2)")
-            raise KeyError("a bug of ours")
+    with (pytest.raises(StoreError, match=r"database error: NOT NULL constraint failed: t\.x"),
+          immediate(conn, tmp_path / "t.db") as c):
+        c.execute("INSERT INTO t VALUES (1)")
+        c.execute("INSERT INTO t VALUES (NULL)")
+    # not an SQLite error: rolled back, raised as it is
+    with pytest.raises(KeyError), immediate(conn, tmp_path / "t.db") as c:
+        c.execute("INSERT INTO t VALUES (2)")
+        raise KeyError("a bug of ours")
     assert conn.execute("SELECT count(*) FROM t").fetchone() == (0,)
     assert not conn.in_transaction
     conn.close()

@@ -4,14 +4,13 @@ from __future__ import annotations
 
 import os
 import re
-import shutil
 import subprocess
 import sys
 import time
 import uuid
 from pathlib import Path
 
-import pytest
+from helpers import program
 
 
 def test_no_terminal_is_one_line_and_status_1(tmp_path: Path) -> None:
@@ -28,11 +27,7 @@ def test_no_terminal_is_one_line_and_status_1(tmp_path: Path) -> None:
 
 
 def test_demo_removes_its_scratch_database(tmp_path: Path) -> None:
-    tmux = shutil.which("tmux")
-    if tmux is None:
-        if os.environ.get("CI"):
-            pytest.fail("tmux is required when CI is set; .ci/run installs it")
-        pytest.skip("tmux is not installed; CI requires it")
+    tmux = program("tmux", "tmux")
     scratch = tmp_path / "tmp"
     scratch.mkdir()
     sock = f"triage-test-{uuid.uuid4().hex[:8]}"

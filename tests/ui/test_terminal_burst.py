@@ -8,7 +8,6 @@ Textual's own driver, as an inspector's keyboard (or a paste) does. tmux is inst
 from __future__ import annotations
 
 import os
-import shutil
 import subprocess
 import sys
 import time
@@ -16,8 +15,8 @@ import uuid
 from collections.abc import Callable
 from pathlib import Path
 
-import pytest
 from conftest import SID, two_surveys
+from helpers import program
 
 from triage.model import parse_survey
 from triage.store import Store
@@ -34,11 +33,7 @@ def _wait(what: str, check: Callable[[], bool], seconds: float = 30.0,
 
 
 def test_keys_typed_ahead_through_a_terminal_are_all_saved(tmp_path: Path) -> None:
-    tmux = shutil.which("tmux")
-    if tmux is None:
-        if os.environ.get("CI"):
-            pytest.fail("tmux is required when CI is set; .ci/run installs it")
-        pytest.skip("tmux is not installed; CI requires it")
+    tmux = program("tmux", "tmux")
     db = tmp_path / "field.db"
     with Store.open(db) as st:
         for d in two_surveys():

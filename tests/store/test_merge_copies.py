@@ -120,13 +120,19 @@ def test_a_second_laptops_edit_never_overwrites_the_first_laptops_copy(tmp_path:
         assert offsets == [3.0, 30.0]                # ben's 30 mm kept beside ana's 3 mm
 
 
-def test_an_unrelated_undo_on_a_laptop_does_not_show_a_survey_hidden_at_the_centre(
-        tmp_path: Path):
+def _hidden_at_centre(tmp_path: Path) -> tuple[Path, Path, str]:
+    """A laptop's survey merged into the centre and hidden there: the laptop, the centre, its id."""
     lap, centre = tmp_path / "lap.db", tmp_path / "centre.db"
     (sid,) = laptop(lap, "Clinic")
     with Store.open(centre) as st:
         merge_into(st, [lap])
         st.hide_survey(sid)
+    return lap, centre, sid
+
+
+def test_an_unrelated_undo_on_a_laptop_does_not_show_a_survey_hidden_at_the_centre(
+        tmp_path: Path):
+    lap, centre, sid = _hidden_at_centre(tmp_path)
     with Store.open(lap, who="lap") as st:
         st.set_value(sid, OFFSET, 30.0)
         st.undo_last(sid)                            # an undo of a reading, not of a hide
@@ -139,11 +145,7 @@ def test_an_unrelated_undo_on_a_laptop_does_not_show_a_survey_hidden_at_the_cent
 
 
 def test_a_hide_made_on_both_sides_is_unchanged_at_the_centre(tmp_path: Path):
-    lap, centre = tmp_path / "lap.db", tmp_path / "centre.db"
-    (sid,) = laptop(lap, "Clinic")
-    with Store.open(centre) as st:
-        merge_into(st, [lap])
-        st.hide_survey(sid)
+    lap, centre, sid = _hidden_at_centre(tmp_path)
     with Store.open(lap, who="lap") as st:
         st.hide_survey(sid)
     with Store.open(centre) as st:
